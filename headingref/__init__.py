@@ -1,0 +1,44 @@
+"""headingref: geomagnetic variation and heading reference for high-latitude operations.
+
+The Earth's main field from IGRF-14 (or any IGRF-format or WMM coefficient file) on the WGS84
+ellipsoid, and the jobs built on it: heading conversions and routes, weak-field zones and the
+heading-reference error budget, compass base upkeep and swing analysis, runway designators.
+
+>>> import headingref
+>>> row = headingref.field(61.2, -149.9, "2026-12-02").iloc[0]
+>>> round(row.declination_deg, 1)  # east positive
+14.2
+"""
+
+from .errors import (
+    DataQualityWarning,
+    DateRangeError,
+    ExtrapolationWarning,
+    HeadingrefError,
+    HeadingrefWarning,
+    InputError,
+    ModelFileError,
+    UndefinedDeclinationWarning,
+)
+from .field import declination_uncertainty_deg, field, field_arrays, field_grid
+from .model import Model, load_model
+from .notices import CAUTION
+
+__all__ = [
+    "CAUTION",
+    "DataQualityWarning",
+    "DateRangeError",
+    "ExtrapolationWarning",
+    "HeadingrefError",
+    "HeadingrefWarning",
+    "InputError",
+    "Model",
+    "ModelFileError",
+    "UndefinedDeclinationWarning",
+    "declination_uncertainty_deg",
+    "field",
+    "field_arrays",
+    "field_grid",
+    "load_model",
+]
+__version__ = "0.1.0"
