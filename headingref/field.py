@@ -1,0 +1,372 @@
+"""The geomagnetic main field at places and dates: elements, annual rates, uncertainty, zones.
+
+Public API
+----------
+- :func:`field` -> pandas.DataFrame, one row per point.
+- :func:`field_arrays` -> dict of numpy arrays with the same names (fast path for library code).
+- :func:`field_grid` -> xarray.Dataset on a regular (lat, lon) grid, optionally several dates.
+- :func:`declination_uncertainty_deg`, :func:`classify_zone`, :data:`BLACKOUT_NT`, :data:`CAUTION_NT`.
+
+Conventions: geodetic WGS84 latitude/longitude (degrees) and height above the ellipsoid (km);
+declination east positive, inclination down positive; X north, Y east, Z down (nT); rates per
+year are analytic (from the coefficients' slopes), not differences of two dates.
+
+Declination uncertainty follows the WMM error model, ``sqrt(0.26^2 + (5417/H)^2)`` degrees with H
+in nT (WMM2020 and WMM2025 technical reports, section on uncertainty). Zones follow the same
+reports: ``blackout`` where H < 2000 nT (compasses unreliable), ``caution`` where 2000 <= H < 6000 nT,
+else ``normal``. Declination is undefined at the geographic poles and where H = 0 (below
+0.01 nT here): it is NaN there, with the reason in ``declination_flag``, and a warning is issued.
+
+>>> import headingref
+>>> df = headingref.field([60.0, 78.2], [25.0, 15.6], "2026-12-02")
+>>> list(df.zone)
+['normal', 'caution']
+"""
+
+from __future__ import annotations
+
+import warnings
+from collections.abc import Sequence
+from typing import Any
+
+import numpy as np
+import pandas as pd
+
+from . import synthesis
+from .errors import InputError, UndefinedDeclinationWarning
+from .model import Model, load_model
+from .units import HEIGHT_MAX_KM, HEIGHT_MIN_KM, decimal_year, parse_coordinate
+
+BLACKOUT_NT = 2000.0  # WMM2020/WMM2025 technical reports: Blackout Zone, H < 2000 nT
+CAUTION_NT = 6000.0  # WMM2020/WMM2025 technical reports: Caution Zone, 2000 <= H < 6000 nT
+UNCERTAINTY_CONST_DEG = 0.26  # WMM error model, declination: sqrt(0.26^2 + (5417/H)^2) deg
+UNCERTAINTY_SCALE_NT = 5417.0
+H_UNDEFINED_NT = 0.01  # below this the horizontal direction is numerically meaningless
+ZONE_NAMES = ("normal", "caution", "blackout")
+
+ELEMENTS = (
+    "declination_deg",
+    "inclination_deg",
+    "horizontal_nT",
+    "total_nT",
+    "declination_deg_per_year",
+    "inclination_deg_per_year",
+    "horizontal_nT_per_year",
+    "total_nT_per_year",
+    "declination_uncertainty_deg",
+    "north_nT",
+    "east_nT",
+    "down_nT",
+    "north_nT_per_year",
+    "east_nT_per_year",
+    "down_nT_per_year",
+)
+"""Order of the rows of the ``derive`` kernel's output."""
+
+COLUMNS = (
+    "lat_deg",
+    "lon_deg",
+    "alt_km",
+    "decimal_year",
+    "declination_deg",
+    "inclination_deg",
+    "horizontal_nT",
+    "north_nT",
+    "east_nT",
+    "down_nT",
+    "total_nT",
+    "declination_deg_per_year",
+    "inclination_deg_per_year",
+    "horizontal_nT_per_year",
+    "north_nT_per_year",
+    "east_nT_per_year",
+    "down_nT_per_year",
+    "total_nT_per_year",
+    "declination_uncertainty_deg",
+    "zone",
+    "declination_flag",
+)
+
+UNITS = {
+    "declination_deg": "degree (east positive)",
+    "inclination_deg": "degree (down positive)",
+    "horizontal_nT": "nT",
+    "total_nT": "nT",
+    "north_nT": "nT",
+    "east_nT": "nT",
+    "down_nT": "nT",
+    "declination_deg_per_year": "degree/year",
+    "inclination_deg_per_year": "degree/year",
+    "horizontal_nT_per_year": "nT/year",
+    "total_nT_per_year": "nT/year",
+    "north_nT_per_year": "nT/year",
+    "east_nT_per_year": "nT/year",
+    "down_nT_per_year": "nT/year",
+    "declination_uncertainty_deg": "degree (WMM error model, 1 sigma)",
+}
+
+_CONSTANTS: dict[int, tuple[np.ndarray, np.ndarray, np.ndarray]] = {}
+
+
+def _constants(nmax: int):
+    if nmax not in _CONSTANTS:
+        _CONSTANTS[nmax] = synthesis.recursion_constants(nmax)
+    return _CONSTANTS[nmax]
+
+
+def declination_uncertainty_deg(horizontal_nT: Any) -> np.ndarray:
+    """WMM error model for declination (degrees, 1 sigma): ``sqrt(0.26^2 + (5417/H)^2)``, H in nT.
+
+    Source: WMM2020 and WMM2025 technical reports (NOAA NCEI / BGS), uncertainty section.
+    """
+    h = np.asarray(horizontal_nT, dtype=np.float64)
+    with np.errstate(divide="ignore"):
+        return np.sqrt(UNCERTAINTY_CONST_DEG**2 + (UNCERTAINTY_SCALE_NT / h) ** 2)
+
+
+def classify_zone(horizontal_nT: Any, blackout_nT: float = BLACKOUT_NT, caution_nT: float = CAUTION_NT) -> np.ndarray:
+    """Zone names (``blackout``, ``caution``, ``normal``) for horizontal intensities in nT."""
+    if not 0 <= blackout_nT <= caution_nT:
+        raise InputError(f"zone thresholds must satisfy 0 <= blackout ({blackout_nT}) <= caution ({caution_nT}) nT")
+    h = np.asarray(horizontal_nT, dtype=np.float64)
+    codes = np.where(h < blackout_nT, 2, np.where(h < caution_nT, 1, 0))
+    return np.asarray(ZONE_NAMES, dtype=object)[codes]
+
+
+def _coordinates(values: Any, kind: str) -> np.ndarray:
+    arr = np.asarray(values)
+    if arr.dtype.kind in "OUS":
+        flat = [parse_coordinate(v, kind) for v in arr.ravel()]
+        arr = np.asarray(flat, dtype=np.float64).reshape(arr.shape)
+    elif arr.dtype.kind not in "fiub" or arr.dtype.kind == "b":
+        raise InputError(f"{'latitude' if kind == 'lat' else 'longitude'} values of type {arr.dtype} are not numbers")
+    arr = arr.astype(np.float64)
+    name = "latitude" if kind == "lat" else "longitude"
+    bad = ~np.isfinite(arr)
+    if bad.any():
+        raise InputError(f"{name} {arr.ravel()[np.argmax(bad.ravel())]!r} (point {int(np.argmax(bad.ravel()))}) is not a finite number")
+    if kind == "lat":
+        out = np.abs(arr) > 90.0
+        if out.any():
+            i = int(np.argmax(out.ravel()))
+            raise InputError(f"latitude {arr.ravel()[i]:g} (point {i}) is outside -90 to 90 degrees")
+    return arr
+
+
+def _heights(values: Any) -> np.ndarray:
+    arr = np.asarray(values)
+    if arr.dtype.kind not in "fiu":
+        raise InputError(f"alt_km must be numbers in km, got {arr.dtype}; parse text with headingref.units.parse_height_km")
+    arr = arr.astype(np.float64)
+    bad = ~np.isfinite(arr) | (arr < HEIGHT_MIN_KM) | (arr > HEIGHT_MAX_KM)
+    if bad.any():
+        i = int(np.argmax(bad.ravel()))
+        raise InputError(f"height {arr.ravel()[i]!r} km (point {i}) is outside -1 to 1000 km above the ellipsoid")
+    return arr
+
+
+def _prepare(lat, lon, years, alt_km, model, allow_extrapolation):
+    model = load_model(model) if not isinstance(model, Model) else model
+    lat_a = _coordinates(lat, "lat")
+    lon_a = _coordinates(lon, "lon")
+    alt_a = _heights(alt_km)
+    years_a = np.asarray(years, dtype=np.float64)
+    try:
+        lat_b, lon_b, alt_b, years_b = np.broadcast_arrays(lat_a, lon_a, alt_a, years_a)
+    except ValueError:
+        raise InputError(
+            f"lat {lat_a.shape}, lon {lon_a.shape}, alt_km {alt_a.shape} and dates {years_a.shape} do not broadcast "
+            "to one shape; give scalars or equal-length sequences"
+        ) from None
+    model.check_dates(years_b, allow_extrapolation)
+    return model, [np.ascontiguousarray(a, dtype=np.float64).ravel() for a in (lat_b, lon_b, alt_b, years_b)]
+
+
+def _synthesise(model: Model, lat, lon, alt, years) -> tuple[np.ndarray, np.ndarray]:
+    k, dt = model.locate(years)
+    k1, k2, diag = _constants(model.nmax)
+    xyz = np.empty((6, lat.size))
+    synthesis.scattered(lat, lon, alt, k, dt, model.g, model.h, model.g_rate, model.h_rate, k1, k2, diag,
+                        model.reference_radius_km, xyz)
+    return _derive(xyz)
+
+
+def _derive(xyz: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    out = np.empty((len(ELEMENTS), xyz.shape[1]))
+    zone = np.empty(xyz.shape[1], dtype=np.int8)
+    synthesis.derive(xyz, H_UNDEFINED_NT, UNCERTAINTY_CONST_DEG, UNCERTAINTY_SCALE_NT, BLACKOUT_NT, CAUTION_NT, out, zone)
+    return out, zone
+
+
+def _undefined_reasons(lat: np.ndarray, horizontal: np.ndarray, declination: np.ndarray) -> np.ndarray:
+    """Empty string where D is defined, else why it is not; also blanks D at geographic poles."""
+    reasons = np.full(lat.shape, "", dtype=object)
+    pole = np.abs(lat) == 90.0
+    weak = ~pole & ~(horizontal >= H_UNDEFINED_NT)
+    if pole.any() or weak.any():
+        declination[pole] = np.nan
+        reasons[pole] = "geographic pole: declination undefined"
+        reasons[weak] = f"horizontal field below {H_UNDEFINED_NT:g} nT: declination undefined"
+        warnings.warn(
+            f"declination is undefined at {int(pole.sum())} geographic-pole point(s) and {int(weak.sum())} point(s) "
+            "with no horizontal field; NaN there (see declination_flag)",
+            UndefinedDeclinationWarning,
+            stacklevel=3,
+        )
+    return reasons
+
+
+def field_arrays(
+    lat: Any,
+    lon: Any,
+    year: Any,
+    alt_km: Any = 0.0,
+    model: Model | str | None = None,
+    allow_extrapolation: bool = False,
+) -> dict[str, np.ndarray]:
+    """The field as a dict of flat numpy arrays (the fast path used by the library).
+
+    Parameters
+    ----------
+    lat, lon : float or array-like, degrees (geodetic WGS84; north and east positive)
+    year : float or array-like, decimal years (see :mod:`headingref.units`)
+    alt_km : float or array-like, height above the WGS84 ellipsoid, km
+    model : Model, path or None (IGRF-14)
+    allow_extrapolation : bool
+        Dates outside the model's validity raise :class:`~headingref.errors.DateRangeError`
+        unless this is true; then they warn.
+
+    Returns
+    -------
+    dict
+        Keys of :data:`COLUMNS` except ``zone``/``declination_flag``, plus ``zone_code`` (int8:
+        0 normal, 1 caution, 2 blackout) and ``declination_flag`` (object array of reasons).
+    """
+    years = decimal_year(year) if not isinstance(year, np.ndarray) or year.dtype.kind not in "fi" else year
+    model, (lat_f, lon_f, alt_f, years_f) = _prepare(lat, lon, years, alt_km, model, allow_extrapolation)
+    out, zone = _synthesise(model, lat_f, lon_f, alt_f, years_f)
+    result = {"lat_deg": lat_f, "lon_deg": lon_f, "alt_km": alt_f, "decimal_year": years_f}
+    for i, name in enumerate(ELEMENTS):
+        result[name] = out[i]
+    result["zone_code"] = zone
+    result["declination_flag"] = _undefined_reasons(lat_f, out[2], out[0])
+    return result
+
+
+def field(
+    lat: Any,
+    lon: Any,
+    date: Any,
+    alt_km: Any = 0.0,
+    model: Model | str | None = None,
+    allow_extrapolation: bool = False,
+) -> pd.DataFrame:
+    """The main field at places and dates, one row per point.
+
+    Parameters
+    ----------
+    lat, lon : scalar or array-like
+        Geodetic WGS84 latitude and longitude in degrees (north, east positive); text in the
+        forms :func:`headingref.units.parse_coordinate` accepts is parsed too.
+    date : one date, or one per point
+        ISO string, datetime, pandas Timestamp, numpy datetime64 or decimal year.
+    alt_km : scalar or array-like
+        Height above the WGS84 ellipsoid in km (-1 to 1000).
+    model : Model, path to a coefficient file, or None for IGRF-14.
+    allow_extrapolation : bool
+        Permit dates outside the model's validity (with a warning).
+
+    Returns
+    -------
+    pandas.DataFrame
+        Columns :data:`COLUMNS`; ``zone`` is categorical (normal < caution < blackout).
+
+    Examples
+    --------
+    >>> import headingref
+    >>> row = headingref.field(69.68, 18.94, "2025-01-01", alt_km=0.0).iloc[0]
+    >>> bool(0 < row.declination_deg < 20), row.zone
+    (True, 'normal')
+    """
+    arrays = field_arrays(lat, lon, decimal_year(date), alt_km, model, allow_extrapolation)
+    data = {name: arrays[name] for name in COLUMNS if name not in ("zone", "declination_flag")}
+    data["zone"] = pd.Categorical.from_codes(arrays["zone_code"], categories=list(ZONE_NAMES), ordered=True)
+    data["declination_flag"] = arrays["declination_flag"]
+    return pd.DataFrame(data, columns=list(COLUMNS), copy=False)
+
+
+def field_grid(
+    lats: Sequence[float] | np.ndarray,
+    lons: Sequence[float] | np.ndarray,
+    date: Any,
+    alt_km: float = 0.0,
+    model: Model | str | None = None,
+    allow_extrapolation: bool = False,
+):
+    """The field on a regular latitude-longitude grid, as an xarray Dataset.
+
+    The Legendre part depends only on latitude and the trigonometric part only on longitude, so
+    each latitude row is reduced to Fourier coefficients in longitude and the grid is one matrix
+    product (see :mod:`headingref.synthesis`).
+
+    Parameters
+    ----------
+    lats, lons : 1-D array-like, degrees
+    date : one date or a sequence of dates (then a ``time`` dimension, decimal years)
+    alt_km : float, height above the ellipsoid (km)
+
+    Returns
+    -------
+    xarray.Dataset
+        Variables named as in :func:`field` (float32-free: float64), ``zone`` as int8 codes with CF
+        ``flag_values``/``flag_meanings``, units in attributes. Writable with ``to_netcdf``.
+    """
+    import xarray as xr
+
+    model = load_model(model) if not isinstance(model, Model) else model
+    lat_a = _coordinates(np.atleast_1d(np.asarray(lats)), "lat").ravel()
+    lon_a = _coordinates(np.atleast_1d(np.asarray(lons)), "lon").ravel()
+    alt = float(_heights(alt_km))
+    multi = not isinstance(date, str) and np.ndim(date) > 0
+    years = np.atleast_1d(decimal_year(date)).astype(np.float64)
+    model.check_dates(years, allow_extrapolation)
+    k1, k2, diag = _constants(model.nmax)
+    ncol = model.nmax + 1
+    mvals = np.arange(ncol)
+    lon_rad = np.radians(lon_a)
+    trig = np.concatenate([np.cos(np.outer(mvals, lon_rad)), np.sin(np.outer(mvals, lon_rad))])  # (2ncol, nlon)
+    shape = (len(years), lat_a.size, lon_a.size)
+    data = {name: np.empty(shape) for name in ELEMENTS}
+    zone = np.empty(shape, dtype=np.int8)
+    terms = np.empty((6, lat_a.size, 2 * ncol))
+    for t, year in enumerate(years):
+        g, h, gr, hr = model.coefficients(year)
+        synthesis.grid_row_terms(lat_a, alt, g, h, gr, hr, k1, k2, diag, model.reference_radius_km, terms)
+        xyz = (terms.reshape(6 * lat_a.size, 2 * ncol) @ trig).reshape(6, -1)
+        out, codes = _derive(xyz)
+        for i, name in enumerate(ELEMENTS):
+            data[name][t] = out[i].reshape(lat_a.size, lon_a.size)
+        zone[t] = codes.reshape(lat_a.size, lon_a.size)
+    pole_rows = np.abs(lat_a) == 90.0
+    if pole_rows.any():
+        data["declination_deg"][:, pole_rows, :] = np.nan
+        data["declination_deg_per_year"][:, pole_rows, :] = np.nan
+        warnings.warn("declination is undefined on the geographic-pole row(s) of the grid; NaN there",
+                      UndefinedDeclinationWarning, stacklevel=2)
+    dims = ("time", "lat", "lon")
+    variables = {name: (dims, data[name], {"units": UNITS[name]}) for name in ELEMENTS}
+    variables["zone"] = (dims, zone, {
+        "flag_values": np.array([0, 1, 2], dtype=np.int8),
+        "flag_meanings": "normal caution blackout",
+        "long_name": f"WMM zone: blackout H < {BLACKOUT_NT:g} nT, caution H < {CAUTION_NT:g} nT",
+    })
+    ds = xr.Dataset(
+        variables,
+        coords={
+            "time": ("time", years, {"units": "decimal year (calendar-year fraction, UTC)"}),
+            "lat": ("lat", lat_a, {"units": "degrees_north", "long_name": "geodetic latitude (WGS84)"}),
+            "lon": ("lon", lon_a, {"units": "degrees_east"}),
+        },
+        attrs={"model": model.name, "alt_km": alt, "height_reference": "WGS84 ellipsoid"},
+    )
+    return ds if multi else ds.isel(time=0)

@@ -1,0 +1,290 @@
+"""Fast spherical-harmonic synthesis of the internal main field (numba kernels).
+
+Method: the scalar potential of a Schmidt semi-normalised internal field,
+``V = a sum_n (a/r)^(n+1) sum_m (g_nm cos m*lon + h_nm sin m*lon) P_n^m(cos theta)``
+(IAGA V-MOD, *International Geomagnetic Reference Field: the 14th generation*, 2024; the same
+expansion as the WMM technical reports, eqs. 2-10), differentiated analytically. The associated
+Legendre functions use the standard three-term recursion in degree for each order ``m``
+(e.g. Langel, *Main field*, in Geomagnetism vol. 1, 1987):
+
+- ``P_m^m = sqrt((2m-1)/(2m)) sin(theta) P_{m-1}^{m-1}`` for m >= 2, ``P_1^1 = sin(theta)``;
+- ``P_n^m = [(2n-1) cos(theta) P_{n-1}^m - sqrt((n-1)^2 - m^2) P_{n-2}^m] / sqrt(n^2 - m^2)``;
+
+and their theta-derivatives by the product rule. Geodetic WGS84 input is converted to geocentric
+radius and colatitude exactly (``p = (N + h) cos(lat)``, ``z = (N (1 - e^2) + h) sin(lat)``), and the
+geocentric (X', Y', Z') is rotated by the angle between the two verticals (WMM2020 report eq. 17).
+
+Two kernels:
+
+- :func:`scattered`: any points, each with its own time (interval index and offset), order-by-order
+  recursion held in registers so that nothing is allocated per point; parallel over points.
+- :func:`grid_row_terms` + a matrix product: on a regular grid the Legendre part depends only on
+  latitude and the trigonometric part only on longitude, so each latitude row reduces to
+  ``2 (nmax + 1)`` Fourier coefficients per component, and the whole grid is one BLAS product.
+
+Outputs are north, east, down components X, Y, Z (nT, geodetic frame) and their annual rates
+(nT/yr), which are linear in the coefficient rates and so exact, not differenced.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numba as nb
+import numpy as np
+
+WGS84_A_KM = 6378.137  # WGS84 semi-major axis (NIMA TR8350.2)
+WGS84_F = 1.0 / 298.257223563  # WGS84 flattening (NIMA TR8350.2)
+WGS84_E2 = WGS84_F * (2.0 - WGS84_F)
+
+# Geographic poles are a coordinate singularity of the east component (P_n^m / sin(theta)).
+# sin(theta) is held at or above this floor, which moves the point by ~1e-15 rad (nanometres):
+# the result is the limit approached along the given meridian, and far below the model's precision.
+_SIN_THETA_FLOOR = 1e-15
+
+
+def recursion_constants(nmax: int) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Constants of the Legendre recursion: K1[n,m], K2[n,m] and the diagonal factor D[m]."""
+    k1 = np.zeros((nmax + 1, nmax + 1))
+    k2 = np.zeros((nmax + 1, nmax + 1))
+    diag = np.zeros(nmax + 1)
+    for n in range(1, nmax + 1):
+        for m in range(0, n):
+            root = math.sqrt(n * n - m * m)
+            k1[n, m] = (2 * n - 1) / root
+            k2[n, m] = math.sqrt(max((n - 1) ** 2 - m * m, 0)) / root
+    for m in range(2, nmax + 1):
+        diag[m] = math.sqrt((2 * m - 1) / (2 * m))
+    return k1, k2, diag
+
+
+@nb.njit(cache=True, fastmath=True, inline="always")
+def _geocentric(lat_deg, alt_km):
+    """Geocentric radius (km), sin/cos of geocentric colatitude, sin/cos of psi = lat' - lat."""
+    phi = math.radians(lat_deg)
+    sp = math.sin(phi)
+    cp = math.cos(phi)
+    nrad = WGS84_A_KM / math.sqrt(1.0 - WGS84_E2 * sp * sp)
+    p = (nrad + alt_km) * cp
+    z = (nrad * (1.0 - WGS84_E2) + alt_km) * sp
+    r = math.sqrt(p * p + z * z)
+    st = p / r
+    ct = z / r
+    if st < _SIN_THETA_FLOOR:
+        st = _SIN_THETA_FLOOR
+    sin_psi = ct * cp - st * sp
+    cos_psi = st * cp + ct * sp
+    return r, st, ct, sin_psi, cos_psi
+
+
+@nb.njit(parallel=True, cache=True, fastmath=True)
+def scattered(lat_deg, lon_deg, alt_km, k_index, dt_years, g, h, g_rate, h_rate, k1, k2, diag, a_ref, out):
+    """Field and its rate at scattered points.
+
+    ``out`` (6, npts) receives X, Y, Z (nT) and dX/dt, dY/dt, dZ/dt (nT/yr), geodetic frame.
+    ``k_index``/``dt_years`` locate each point's date in the model's piecewise-linear intervals.
+    """
+    nmax = g.shape[1] - 1
+    npts = lat_deg.shape[0]
+    for i in nb.prange(npts):
+        r, st, ct, sin_psi, cos_psi = _geocentric(lat_deg[i], alt_km[i])
+        lam = math.radians(lon_deg[i])
+        cl = math.cos(lam)
+        sl = math.sin(lam)
+        ratio = a_ref / r
+        k = k_index[i]
+        t = dt_years[i]
+        xs = 0.0
+        ys = 0.0
+        zs = 0.0
+        dxs = 0.0
+        dys = 0.0
+        dzs = 0.0
+        cm = 1.0
+        sm = 0.0
+        pmm = 1.0
+        dpmm = 0.0
+        rm = ratio * ratio
+        for m in range(nmax + 1):
+            if m == 1:
+                pmm = st
+                dpmm = ct
+            elif m >= 2:
+                pnew = diag[m] * st * pmm
+                dpmm = diag[m] * (ct * pmm + st * dpmm)
+                pmm = pnew
+            if m >= 1:
+                cnew = cm * cl - sm * sl
+                sm = sm * cl + cm * sl
+                cm = cnew
+                rm *= ratio
+            p1 = pmm
+            dp1 = dpmm
+            p2 = 0.0
+            dp2 = 0.0
+            rn = rm
+            for n in range(m, nmax + 1):
+                if n > m:
+                    pn = k1[n, m] * ct * p1 - k2[n, m] * p2
+                    dpn = k1[n, m] * (ct * dp1 - st * p1) - k2[n, m] * dp2
+                    p2 = p1
+                    dp2 = dp1
+                    p1 = pn
+                    dp1 = dpn
+                    rn *= ratio
+                if n == 0:
+                    continue
+                gr = g_rate[k, n, m]
+                hr = h_rate[k, n, m]
+                gv = g[k, n, m] + t * gr
+                hv = h[k, n, m] + t * hr
+                cos_part = gv * cm + hv * sm
+                cos_rate = gr * cm + hr * sm
+                sin_part = gv * sm - hv * cm
+                sin_rate = gr * sm - hr * cm
+                rp = rn * p1
+                rdp = rn * dp1
+                xs += cos_part * rdp
+                dxs += cos_rate * rdp
+                ys += m * sin_part * rp
+                dys += m * sin_rate * rp
+                zs -= (n + 1) * cos_part * rp
+                dzs -= (n + 1) * cos_rate * rp
+        ys /= st
+        dys /= st
+        out[0, i] = xs * cos_psi - zs * sin_psi
+        out[1, i] = ys
+        out[2, i] = xs * sin_psi + zs * cos_psi
+        out[3, i] = dxs * cos_psi - dzs * sin_psi
+        out[4, i] = dys
+        out[5, i] = dxs * sin_psi + dzs * cos_psi
+
+
+@nb.njit(parallel=True, cache=True, fastmath=True)
+def grid_row_terms(lat_deg, alt_km, g, h, g_rate, h_rate, k1, k2, diag, a_ref, out):
+    """Fourier coefficients in longitude of X, Y, Z and their rates for each latitude row.
+
+    ``g``.. are the coefficients at one date, shape (nmax+1, nmax+1). ``out`` has shape
+    (6, nlat, 2 (nmax+1)): columns ``m`` multiply cos(m lon), columns ``nmax+1+m`` multiply
+    sin(m lon); components X, Y, Z, dX, dY, dZ (geodetic frame).
+    """
+    nmax = g.shape[0] - 1
+    ncol = nmax + 1
+    for i in nb.prange(lat_deg.shape[0]):
+        r, st, ct, sin_psi, cos_psi = _geocentric(lat_deg[i], alt_km)
+        ratio = a_ref / r
+        for c in range(6):
+            for j in range(2 * ncol):
+                out[c, i, j] = 0.0
+        pmm = 1.0
+        dpmm = 0.0
+        rm = ratio * ratio
+        for m in range(nmax + 1):
+            if m == 1:
+                pmm = st
+                dpmm = ct
+            elif m >= 2:
+                pnew = diag[m] * st * pmm
+                dpmm = diag[m] * (ct * pmm + st * dpmm)
+                pmm = pnew
+            if m >= 1:
+                rm *= ratio
+            p1 = pmm
+            dp1 = dpmm
+            p2 = 0.0
+            dp2 = 0.0
+            rn = rm
+            # geocentric sums: X' = sum rn dP (g cos + h sin); Y' = sum m rn P (g sin - h cos) / st;
+            # Z' = -sum (n+1) rn P (g cos + h sin)
+            xc = xs_ = yc = ys_ = zc = zs_ = 0.0
+            dxc = dxs_ = dyc = dys_ = dzc = dzs_ = 0.0
+            for n in range(m, nmax + 1):
+                if n > m:
+                    pn = k1[n, m] * ct * p1 - k2[n, m] * p2
+                    dpn = k1[n, m] * (ct * dp1 - st * p1) - k2[n, m] * dp2
+                    p2 = p1
+                    dp2 = dp1
+                    p1 = pn
+                    dp1 = dpn
+                    rn *= ratio
+                if n == 0:
+                    continue
+                rp = rn * p1
+                rdp = rn * dp1
+                gv = g[n, m]
+                hv = h[n, m]
+                gr = g_rate[n, m]
+                hr = h_rate[n, m]
+                xc += gv * rdp
+                xs_ += hv * rdp
+                dxc += gr * rdp
+                dxs_ += hr * rdp
+                yc -= m * hv * rp
+                ys_ += m * gv * rp
+                dyc -= m * hr * rp
+                dys_ += m * gr * rp
+                zc -= (n + 1) * gv * rp
+                zs_ -= (n + 1) * hv * rp
+                dzc -= (n + 1) * gr * rp
+                dzs_ -= (n + 1) * hr * rp
+            out[0, i, m] = xc * cos_psi - zc * sin_psi
+            out[0, i, ncol + m] = xs_ * cos_psi - zs_ * sin_psi
+            out[1, i, m] = yc / st
+            out[1, i, ncol + m] = ys_ / st
+            out[2, i, m] = xc * sin_psi + zc * cos_psi
+            out[2, i, ncol + m] = xs_ * sin_psi + zs_ * cos_psi
+            out[3, i, m] = dxc * cos_psi - dzc * sin_psi
+            out[3, i, ncol + m] = dxs_ * cos_psi - dzs_ * sin_psi
+            out[4, i, m] = dyc / st
+            out[4, i, ncol + m] = dys_ / st
+            out[5, i, m] = dxc * sin_psi + dzc * cos_psi
+            out[5, i, ncol + m] = dxs_ * sin_psi + dzs_ * cos_psi
+
+
+@nb.njit(parallel=True, cache=True, fastmath=False)
+def derive(xyz, h_undefined_nT, unc_const_deg, unc_scale_nT, blackout_nT, caution_nT, out, zone):
+    """Derived elements and rates from X, Y, Z and their rates.
+
+    ``xyz`` (6, n): X, Y, Z, dX, dY, dZ. ``out`` (15, n) receives D, I, H, F (deg, deg, nT, nT),
+    dD, dI, dH, dF (deg/yr, deg/yr, nT/yr, nT/yr), the declination uncertainty (deg), and then
+    copies of X, Y, Z, dX, dY, dZ. ``zone`` (n,) int8: 0 normal, 1 caution, 2 blackout.
+    D = atan2(Y, X), I = atan2(Z, H); rates by differentiating those (WMM2020 report eq. 19):
+    dD = (X dY - Y dX) / H^2, dI = (H dZ - Z dH) / F^2, dH = (X dX + Y dY) / H, dF = (X dX + Y dY + Z dZ) / F.
+    Where H < ``h_undefined_nT`` the declination, the rates of D, I and H and the uncertainty are NaN
+    (the horizontal direction, and so those one-sided derivatives, is undefined there).
+    """
+    deg = 180.0 / math.pi
+    for i in nb.prange(xyz.shape[1]):
+        x = xyz[0, i]
+        y = xyz[1, i]
+        z = xyz[2, i]
+        dx = xyz[3, i]
+        dy = xyz[4, i]
+        dz = xyz[5, i]
+        hh = math.sqrt(x * x + y * y)
+        ff = math.sqrt(hh * hh + z * z)
+        if hh >= h_undefined_nT:
+            out[0, i] = math.atan2(y, x) * deg
+            out[4, i] = (x * dy - y * dx) / (hh * hh) * deg
+            q = unc_scale_nT / hh
+            out[8, i] = math.sqrt(unc_const_deg * unc_const_deg + q * q)
+            dh = (x * dx + y * dy) / hh
+        else:
+            out[0, i] = np.nan
+            out[4, i] = np.nan
+            out[8, i] = np.nan
+            dh = np.nan
+        out[1, i] = math.atan2(z, hh) * deg
+        out[2, i] = hh
+        out[3, i] = ff
+        out[5, i] = (hh * dz - z * dh) / (ff * ff) * deg
+        out[6, i] = dh
+        out[7, i] = (x * dx + y * dy + z * dz) / ff
+        for c in range(6):
+            out[9 + c, i] = xyz[c, i]
+        if hh < blackout_nT:
+            zone[i] = 2
+        elif hh < caution_nT:
+            zone[i] = 1
+        else:
+            zone[i] = 0
