@@ -1,0 +1,498 @@
+"""Compass base upkeep: variation to mark, drift, resurvey date, uncertainty, setting-out.
+
+A compass base (swing site) carries a surveyed magnetic variation. The survey on the site governs:
+it includes the local crustal field, which the main-field model omits. The model supplies only the
+*change* since the survey. For each site and a planned swing date this module gives
+
+- the model variation there on the swing date and its annual change (minutes of arc a year, east
+  or west), and the model's change since the survey;
+- the predicted variation ``surveyed + (model at swing date - model at survey date)``, the
+  variation to mark on the base rounded to ``mark_step_deg`` (default 0.5 degree, common
+  practice for a base's marking) and the value for the record, to the nearest minute (common
+  practice);
+- the first date on which the predicted variation will differ from the marked value by more than
+  the tolerance (default 0.5 degree): found by stepping the model forward in 1/24-year steps from
+  the swing date, then a safeguarded Newton/bisection on the crossing using the model's analytic
+  annual rate (to better than 1e-6 year). Past the model's validity the answer is
+  'beyond model validity' unless extrapolation is opted in;
+- the resurvey due date: that date, or ``survey date + resurvey_years`` if an interval is given,
+  whichever is earlier;
+- the declination uncertainty (WMM error model) and the zone (normal / caution / blackout), with
+  the caution that local crustal anomalies are not in the model;
+- :func:`setting_out`: for each marked magnetic heading line, its true and grid azimuth and the
+  coordinates of points at given distances from the base centre along it (WGS84 forward geodesic,
+  :meth:`pyproj.Geod.fwd`).
+
+Conventions: variation east positive (``true = magnetic + variation``); grid azimuth
+``= true - convergence`` (see :mod:`headingref.headings`); distances in metres.
+
+The variation-versus-time function can be injected (``variation_function``) for tests or for a
+local model: a callable ``f(lat_deg, lon_deg, decimal_year, alt_km) -> (declination_deg,
+declination_deg_per_year)`` on numpy arrays.
+
+Public API
+----------
+:class:`Site`, :func:`make_site`, :func:`read_sites_csv`, :func:`base_upkeep`, :func:`setting_out`,
+:func:`model_variation_function`, :data:`DEFAULT_TOLERANCE_DEG`, :data:`DEFAULT_MARK_STEP_DEG`,
+:data:`SITE_CAUTION`.
+
+>>> from headingref.compass_base import make_site, base_upkeep, setting_out
+>>> site = make_site("North apron base", 69.3, 16.1, "9°00′E", "2024-06-01")
+>>> table = base_upkeep([site], "2026-12-02")
+>>> table.loc[0, "variation_to_mark"]  # 9.0 + model change since survey, to the nearest 0.5 deg
+'9°30′ E'
+>>> lines = setting_out(table, lines_deg=[0, 90], distances_m=[50.0])
+>>> list(lines.line)
+['000', '090']
+"""
+
+from __future__ import annotations
+
+import math
+import os
+import warnings
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass
+
+import numpy as np
+import pandas as pd
+import pyproj
+
+from .errors import DataQualityWarning, InputError
+from .headings import format_heading, format_variation, normalize_heading, parse_grid, parse_variation
+from .units import decimal_year, parse_coordinate, parse_height_km, timestamp_from_decimal_year
+
+__all__ = [
+    "DEFAULT_MARK_STEP_DEG",
+    "DEFAULT_TOLERANCE_DEG",
+    "SITE_CAUTION",
+    "Site",
+    "base_upkeep",
+    "make_site",
+    "model_variation_function",
+    "read_sites_csv",
+    "setting_out",
+]
+
+DEFAULT_TOLERANCE_DEG = 0.5
+"""Largest accepted error of the marked variation before the base is resurveyed (common practice)."""
+
+DEFAULT_MARK_STEP_DEG = 0.5
+"""The marked variation is rounded to this step, degrees (common practice; 1.0 is also seen)."""
+
+DEFAULT_LINES_DEG = tuple(float(h) for h in range(0, 360, 30))
+DEFAULT_DISTANCES_M = (50.0, 100.0)
+
+SITE_CAUTION = (
+    "The field model omits local crustal anomalies, which can reach several degrees; the survey on "
+    "the site governs, the model only carries the surveyed variation forward in time."
+)
+
+STEP_YEARS = 1.0 / 24.0
+"""Search step for the tolerance crossing; the secular change is smooth on this scale."""
+
+EXTRAPOLATION_HORIZON_YEARS = 25.0
+"""How far past the model's validity the search runs when extrapolation is opted in."""
+
+VariationFunction = Callable[[np.ndarray, np.ndarray, np.ndarray, np.ndarray], tuple[np.ndarray, np.ndarray]]
+
+
+@dataclass(frozen=True)
+class Site:
+    """One compass base: position, survey and upkeep parameters.
+
+    ``surveyed_variation_deg`` east positive; ``survey_year`` decimal year; ``alt_km`` above the
+    WGS84 ellipsoid; ``resurvey_years`` NaN when no fixed interval; ``row`` names the source row.
+    """
+
+    name: str
+    lat_deg: float
+    lon_deg: float
+    surveyed_variation_deg: float
+    survey_year: float
+    tolerance_deg: float = DEFAULT_TOLERANCE_DEG
+    resurvey_years: float = math.nan
+    alt_km: float = 0.0
+    row: str = ""
+
+
+def _now_year() -> float:
+    return float(decimal_year(pd.Timestamp.now(tz="UTC")))
+
+
+def _positive(value: float, what: str, where: str, accepted: str) -> float:
+    if not math.isfinite(value) or value <= 0:
+        raise InputError(f"{where}: {what} {value!r} must be a positive number ({accepted})")
+    return float(value)
+
+
+def make_site(
+    name: str,
+    lat,
+    lon,
+    surveyed_variation,
+    survey_date,
+    tolerance_deg: float | None = None,
+    resurvey_years: float | None = None,
+    alt_km=0.0,
+    row: str | None = None,
+    today=None,
+) -> Site:
+    """Build a :class:`Site` from user values, checking each one.
+
+    ``lat``/``lon`` as :func:`headingref.units.parse_coordinate` accepts; ``surveyed_variation`` as
+    :func:`headingref.headings.parse_variation` (``12.5W``, ``12°30′W``, ``E3.2``, ``-12.5``);
+    ``survey_date`` any date or decimal year, not in the future (``today`` overrides the clock);
+    ``alt_km`` as :func:`headingref.units.parse_height_km`. Errors name ``row`` (or the site).
+    """
+    where = row or f"site {name!r}"
+    try:
+        lat_deg = parse_coordinate(lat, "lat")
+        lon_deg = parse_coordinate(lon, "lon")
+        variation = parse_variation(surveyed_variation)
+        survey_year = float(decimal_year(survey_date))
+        alt = parse_height_km(alt_km)
+    except InputError as exc:
+        raise InputError(f"{where}: {exc}") from None
+    now = _now_year() if today is None else float(decimal_year(today))
+    if survey_year > now:
+        raise InputError(
+            f"{where}: survey date {survey_date} is in the future (today is "
+            f"{timestamp_from_decimal_year(now):%Y-%m-%d}); give the date the base was last surveyed"
+        )
+    tol = DEFAULT_TOLERANCE_DEG if tolerance_deg is None else _positive(tolerance_deg, "tolerance", where, "degrees, e.g. 0.5")
+    interval = math.nan if resurvey_years is None else _positive(resurvey_years, "resurvey interval", where, "years, e.g. 5")
+    return Site(str(name), lat_deg, lon_deg, variation, survey_year, tol, interval, alt, row or f"site {name!r}")
+
+
+def read_sites_csv(path: str | os.PathLike, tolerance_deg: float | None = None, resurvey_years: float | None = None, today=None) -> list[Site]:
+    """Read sites from a CSV: ``name, lat, lon, surveyed_variation, survey_date`` and optional
+    ``tolerance_deg, resurvey_years, alt`` (alt in km, or with a unit: ``35 m``).
+
+    Empty optional cells take ``tolerance_deg`` / ``resurvey_years`` given here. Every error names
+    the file and line.
+    """
+    from .io import read_table
+
+    table = read_table(
+        path,
+        required=["name", "lat", "lon", "surveyed_variation", "survey_date"],
+        optional=["tolerance_deg", "resurvey_years", "alt"],
+        what="compass bases",
+    )
+    sites = []
+    for line, record in table.iterrows():
+        where = f"{table.attrs['source']} line {line}"
+        extra = {}
+        for column, fallback in (("tolerance_deg", tolerance_deg), ("resurvey_years", resurvey_years)):
+            cell = record.get(column, "") or ""
+            if cell == "":
+                extra[column] = fallback
+                continue
+            try:
+                extra[column] = float(cell)
+            except ValueError:
+                raise InputError(f"{where}: {column} {cell!r} is not a number") from None
+        if not record["name"]:
+            raise InputError(f"{where}: name is empty; give each base a name")
+        sites.append(
+            make_site(
+                record["name"],
+                record["lat"],
+                record["lon"],
+                record["surveyed_variation"],
+                record["survey_date"],
+                alt_km=record.get("alt", "") or 0.0,
+                row=where,
+                today=today,
+                **extra,
+            )
+        )
+    return sites
+
+
+def model_variation_function(model=None, allow_extrapolation: bool = False) -> VariationFunction:
+    """The field model's declination and its analytic annual rate as a variation function."""
+    from .field import field_arrays
+
+    def variation(lat, lon, year, alt_km):
+        with warnings.catch_warnings():
+            # One warning per upkeep run is issued by base_upkeep itself.
+            warnings.simplefilter("ignore")
+            out = field_arrays(lat, lon, np.asarray(year, dtype=np.float64), alt_km, model=model, allow_extrapolation=allow_extrapolation)
+        return out["declination_deg"], out["declination_deg_per_year"]
+
+    return variation
+
+
+def _round_to(value: float, step: float) -> float:
+    return math.floor(value / step + 0.5) * step
+
+
+def _first_departure(
+    variation: VariationFunction,
+    site: Site,
+    offset_deg: float,
+    marked_deg: float,
+    start_year: float,
+    end_year: float,
+) -> float:
+    """First decimal year in (start, end] where |offset + D(t) - marked| > tolerance, else NaN.
+
+    ``offset = surveyed - D(survey)``. Stepping, then safeguarded Newton with the analytic rate.
+    """
+    if end_year <= start_year:
+        return math.nan
+    steps = max(2, int(math.ceil((end_year - start_year) / STEP_YEARS)) + 1)
+    years = np.linspace(start_year, end_year, steps)
+    n = len(years)
+    dec, _ = variation(np.full(n, site.lat_deg), np.full(n, site.lon_deg), years, np.full(n, site.alt_km))
+    excess = np.abs(offset_deg + np.asarray(dec) - marked_deg) - site.tolerance_deg
+    above = np.flatnonzero(excess > 0)
+    if len(above) == 0:
+        return math.nan
+    k = int(above[0])
+    if k == 0:
+        return start_year
+    lo, hi = float(years[k - 1]), float(years[k])
+    one = np.ones(1)
+
+    def g(t: float) -> tuple[float, float]:
+        d, rate = variation(one * site.lat_deg, one * site.lon_deg, one * t, one * site.alt_km)
+        diff = offset_deg + float(d[0]) - marked_deg
+        return abs(diff) - site.tolerance_deg, math.copysign(1.0, diff) * float(rate[0])
+
+    t = 0.5 * (lo + hi)
+    for _ in range(100):
+        value, slope = g(t)
+        if value > 0:
+            hi = t
+        else:
+            lo = t
+        if hi - lo < 1e-7:
+            break
+        newton = t - value / slope if slope != 0 else math.nan
+        t = newton if lo < newton < hi else 0.5 * (lo + hi)
+    return hi
+
+
+def _date_text(year: float) -> str:
+    return "" if not math.isfinite(year) else f"{timestamp_from_decimal_year(year):%Y-%m-%d}"
+
+
+def _annual_change_text(minutes_per_year: float) -> str:
+    if not math.isfinite(minutes_per_year):
+        return "undefined"
+    letter = "E" if minutes_per_year >= 0 else "W"
+    return f"{abs(minutes_per_year):.1f}′ {letter} a year"
+
+
+def base_upkeep(
+    sites: Sequence[Site] | Site,
+    swing_date,
+    *,
+    model=None,
+    allow_extrapolation: bool = False,
+    mark_step_deg: float = DEFAULT_MARK_STEP_DEG,
+    variation_function: VariationFunction | None = None,
+) -> pd.DataFrame:
+    """Upkeep of one or more compass bases for a planned swing date.
+
+    Parameters
+    ----------
+    sites : Site or sequence of Site
+        From :func:`make_site` or :func:`read_sites_csv`.
+    swing_date : date-like or decimal year
+        The planned swing; not before any site's survey.
+    model : Model, path or None
+        Field model (default IGRF-14). Used for uncertainty and zone, and for the variation unless
+        ``variation_function`` is given.
+    allow_extrapolation : bool
+        Let the drift search (and a swing date) go past the model's validity, with a warning.
+    mark_step_deg : float
+        Rounding step of the marked variation (0.5 degree by default; 1.0 for whole degrees).
+    variation_function : callable, optional
+        ``f(lat, lon, year, alt_km) -> (declination_deg, declination_deg_per_year)``; default the model.
+
+    Returns
+    -------
+    pandas.DataFrame, one row per site, columns: ``name, row, lat_deg, lon_deg, alt_km,
+    survey_date, swing_date, surveyed_variation_deg, model_variation_at_survey_deg,
+    survey_minus_model_deg, model_variation_deg, annual_change_min_per_year, annual_change,
+    model_change_since_survey_deg, predicted_variation_deg, variation_to_mark_deg,
+    variation_to_mark, variation_record, tolerance_deg, marked_off_date, marked_off_note,
+    resurvey_years, resurvey_due_date, resurvey_reason, horizontal_nT,
+    declination_uncertainty_deg, zone, caution``. Dates as ``YYYY-MM-DD`` text; decimal years in
+    ``marked_off_year`` and ``resurvey_due_year``.
+    """
+    from .field import field
+    from .model import load_model
+
+    if isinstance(sites, Site):
+        sites = [sites]
+    sites = list(sites)
+    if not sites:
+        raise InputError("no compass bases given; give at least one site")
+    if not math.isfinite(mark_step_deg) or not 0 < mark_step_deg <= 5:
+        raise InputError(f"mark step {mark_step_deg!r} deg: give a rounding step between 0 and 5 degrees (0.5 or 1)")
+    swing_year = float(decimal_year(swing_date))
+    loaded = load_model(model)
+    for site in sites:
+        if swing_year < site.survey_year:
+            raise InputError(
+                f"{site.row}: swing date {_date_text(swing_year)} is before the survey of {_date_text(site.survey_year)}; "
+                "give a swing date on or after the survey"
+            )
+        if site.survey_year < loaded.valid_from and not allow_extrapolation:
+            raise InputError(
+                f"{site.row}: survey date {_date_text(site.survey_year)} is before {loaded.name}'s validity "
+                f"({loaded.valid_from:g}); opt in to extrapolation or give a later survey"
+            )
+    variation = variation_function or model_variation_function(loaded, allow_extrapolation)
+    lat = np.array([s.lat_deg for s in sites])
+    lon = np.array([s.lon_deg for s in sites])
+    alt = np.array([s.alt_km for s in sites])
+    here = field(lat, lon, swing_year, alt, model=loaded, allow_extrapolation=allow_extrapolation)
+    dec_now, rate_now = (np.asarray(v, dtype=np.float64) for v in variation(lat, lon, np.full(len(sites), swing_year), alt))
+    dec_survey, _ = variation(lat, lon, np.array([s.survey_year for s in sites]), alt)
+    dec_survey = np.asarray(dec_survey, dtype=np.float64)
+    for i, site in enumerate(sites):
+        if not (math.isfinite(dec_now[i]) and math.isfinite(dec_survey[i])):
+            raise InputError(f"{site.row}: the variation is undefined at lat {site.lat_deg:g}, lon {site.lon_deg:g} (pole)")
+    end_year = loaded.valid_to + (EXTRAPOLATION_HORIZON_YEARS if allow_extrapolation else 0.0)
+    rows = []
+    for i, site in enumerate(sites):
+        change = float(dec_now[i] - dec_survey[i])
+        predicted = site.surveyed_variation_deg + change
+        marked = _round_to(predicted, mark_step_deg)
+        offset = site.surveyed_variation_deg - float(dec_survey[i])
+        off_year = _first_departure(variation, site, offset, marked, swing_year, end_year)
+        note = ""
+        if not math.isfinite(off_year):
+            note = (
+                f"beyond model validity (not before {_date_text(end_year)})"
+                if not allow_extrapolation
+                else f"not within {EXTRAPOLATION_HORIZON_YEARS:g} years past the model's validity"
+            )
+        elif off_year == swing_year:
+            note = "already off by more than the tolerance on the swing date (mark step too coarse for the tolerance)"
+        interval_year = site.survey_year + site.resurvey_years if math.isfinite(site.resurvey_years) else math.nan
+        candidates = [(y, why) for y, why in ((off_year, "variation drift"), (interval_year, "fixed interval")) if math.isfinite(y)]
+        due_year, reason = min(candidates) if candidates else (math.nan, "no due date within model validity")
+        uncertainty = float(here.declination_uncertainty_deg.iloc[i])
+        zone = str(here.zone.iloc[i])
+        caution = SITE_CAUTION
+        if zone != "normal":
+            caution = f"{zone} zone (H {here.horizontal_nT.iloc[i]:.0f} nT): compass unreliable here. " + caution
+        if abs(offset) > 2 * uncertainty:
+            caution += (
+                f" Survey differs from the model by {offset:+.2f} deg at the survey date (over twice the model's "
+                f"{uncertainty:.2f} deg uncertainty): a local anomaly or a survey error; check the survey."
+            )
+        rows.append(
+            {
+                "name": site.name,
+                "row": site.row,
+                "lat_deg": site.lat_deg,
+                "lon_deg": site.lon_deg,
+                "alt_km": site.alt_km,
+                "survey_date": _date_text(site.survey_year),
+                "swing_date": _date_text(swing_year),
+                "surveyed_variation_deg": site.surveyed_variation_deg,
+                "model_variation_at_survey_deg": float(dec_survey[i]),
+                "survey_minus_model_deg": offset,
+                "model_variation_deg": float(dec_now[i]),
+                "annual_change_min_per_year": float(rate_now[i]) * 60.0,
+                "annual_change": _annual_change_text(float(rate_now[i]) * 60.0),
+                "model_change_since_survey_deg": change,
+                "predicted_variation_deg": predicted,
+                "variation_to_mark_deg": marked,
+                "variation_to_mark": format_variation(marked),
+                "variation_record": format_variation(predicted),
+                "tolerance_deg": site.tolerance_deg,
+                "marked_off_year": off_year,
+                "marked_off_date": _date_text(off_year),
+                "marked_off_note": note,
+                "resurvey_years": site.resurvey_years,
+                "resurvey_due_year": due_year,
+                "resurvey_due_date": _date_text(due_year),
+                "resurvey_reason": reason,
+                "horizontal_nT": float(here.horizontal_nT.iloc[i]),
+                "declination_uncertainty_deg": uncertainty,
+                "zone": zone,
+                "caution": caution,
+            }
+        )
+    table = pd.DataFrame(rows)
+    if (table.zone != "normal").any():
+        names = ", ".join(table.name[table.zone != "normal"])
+        warnings.warn(f"compass base(s) {names} lie in a weak-horizontal-field zone; see the caution column", DataQualityWarning, stacklevel=2)
+    table.attrs["caution"] = SITE_CAUTION
+    return table
+
+
+def _number_list(values, what: str, low: float, high: float, unit: str) -> np.ndarray:
+    arr = np.asarray(values, dtype=np.float64).ravel()
+    if arr.size == 0 or not np.all(np.isfinite(arr)) or np.any(arr < low) or np.any(arr > high):
+        raise InputError(f"{what} {list(np.asarray(values).ravel())!r}: give numbers from {low:g} to {high:g} {unit}")
+    return arr
+
+
+def setting_out(
+    upkeep: pd.DataFrame,
+    lines_deg: Sequence[float] | None = None,
+    distances_m: Sequence[float] | None = None,
+    grid=None,
+) -> pd.DataFrame:
+    """Setting-out table for the survey party, one row per site, line and distance.
+
+    Parameters
+    ----------
+    upkeep : DataFrame from :func:`base_upkeep`
+        Uses ``name, lat_deg, lon_deg`` (the base centre) and ``predicted_variation_deg`` (the
+        variation the lines are laid out with: surveyed value carried to the swing date, full
+        precision, not the rounded mark).
+    lines_deg : sequence of float
+        Magnetic headings of the lines (default every 30 degrees from 000).
+    distances_m : sequence of float
+        Distances of the points from the centre along each line, metres (default 50 and 100).
+    grid : grid spec or None
+        As :func:`headingref.headings.parse_grid` (``polar``, ``lcc:...``, ``EPSG:...``); adds
+        ``convergence_deg`` and ``grid_azimuth_deg`` (``true - convergence``, at the centre).
+
+    Returns
+    -------
+    DataFrame: ``name, line, magnetic_heading_deg, variation_deg, true_azimuth_deg,
+    [convergence_deg, grid_azimuth_deg,] distance_m, lat_deg, lon_deg`` (point coordinates,
+    WGS84, from :meth:`pyproj.Geod.fwd`).
+    """
+    lines = normalize_heading(_number_list(DEFAULT_LINES_DEG if lines_deg is None else lines_deg, "lines", 0.0, 360.0, "degrees"))
+    distances = _number_list(DEFAULT_DISTANCES_M if distances_m is None else distances_m, "distances", 0.0, 100_000.0, "metres")
+    grid_obj = parse_grid(grid) if grid is not None else None
+    geod = pyproj.Geod(ellps="WGS84")
+    frames = []
+    for _, site in upkeep.iterrows():
+        true_az = normalize_heading(lines + site.predicted_variation_deg)
+        az = np.repeat(true_az, len(distances))
+        dist = np.tile(distances, len(lines))
+        lon2, lat2, _ = geod.fwd(np.full(az.size, site.lon_deg), np.full(az.size, site.lat_deg), az, dist)
+        frame = pd.DataFrame(
+            {
+                "name": site["name"],
+                "line": [format_heading(h) for h in np.repeat(lines, len(distances))],
+                "magnetic_heading_deg": np.repeat(lines, len(distances)),
+                "variation_deg": site.predicted_variation_deg,
+                "true_azimuth_deg": az,
+            }
+        )
+        if grid_obj is not None:
+            convergence = float(grid_obj.convergence_deg(site.lat_deg, site.lon_deg))
+            if not math.isfinite(convergence):
+                raise InputError(f"base {site['name']!r} lies outside grid {grid_obj.name}; choose a grid that covers it")
+            frame["convergence_deg"] = convergence
+            frame["grid_azimuth_deg"] = normalize_heading(az - convergence)
+        frame["distance_m"] = dist
+        frame["lat_deg"] = np.asarray(lat2)
+        frame["lon_deg"] = np.asarray(lon2)
+        frames.append(frame)
+    return pd.concat(frames, ignore_index=True)
