@@ -1,0 +1,484 @@
+"""Heading references: true, magnetic, compass and grid, and the trade's text forms.
+
+Sign conventions (used everywhere in headingref)
+------------------------------------------------
+- Headings and courses are clockwise from their north, in degrees, ``0 <= h < 360``.
+- **Variation** (magnetic declination) ``V`` is the angle from true north to magnetic
+  north, east positive. ``magnetic = true - V`` ("east is least, west is best").
+- **Deviation** ``d`` is the angle from magnetic north to compass north, east
+  positive. ``compass = magnetic - d``. A deviation may be a number, an array, or a
+  curve: any callable of the *magnetic* heading in degrees, or an object with a
+  method ``deviation_deg(magnetic_heading_deg)`` (the swing module's fitted curve).
+- **Convergence** ``C`` (meridian convergence of a grid) is the angle from true north
+  to grid north, clockwise (east) positive, as PROJ reports it in
+  ``pyproj.Proj.get_factors(...).meridian_convergence``. ``grid = true - C``.
+  Polar stereographic north referenced to meridian ``L0``: ``C = lon - L0`` (so
+  ``grid = true + west longitude`` on a Greenwich grid); south: ``C = -(lon - L0)``;
+  Lambert conformal conic: ``C = n (lon - L0)`` with ``n`` the cone constant;
+  transverse Mercator: ``C ~ (lon - L0) sin(lat)`` near the central meridian.
+- **Grivation** ``G`` (grid variation) is the angle from grid north to magnetic north,
+  east positive: ``G = V - C`` and ``magnetic = grid - G``.
+
+Grids are written as text: ``polar`` / ``polar:LON`` (north polar stereographic,
+reference meridian LON, default 0 = Greenwich), ``polar-south[:LON]``,
+``lcc:LAT1,LAT2,LON0`` (Lambert conformal conic), ``utm:ZONE[N|S]``, ``tm:LON0``
+(transverse Mercator), ``EPSG:NNNN`` or any projected CRS pyproj understands
+(a ``+proj=`` string, WKT, a ``pyproj.CRS``). All on WGS84.
+
+Public API
+----------
+Conversions (vectorised, results in ``[0, 360)``): :func:`normalize_heading`,
+:func:`wrap_angle`, :func:`true_to_magnetic`, :func:`magnetic_to_true`,
+:func:`magnetic_to_compass`, :func:`compass_to_magnetic`, :func:`true_to_compass`,
+:func:`compass_to_true`, :func:`true_to_grid`, :func:`grid_to_true`,
+:func:`grid_to_magnetic`, :func:`magnetic_to_grid`, :func:`grivation_deg`,
+:func:`model_variation_deg`.
+Grids: :class:`Grid`, :func:`parse_grid`, :func:`convergence_deg`.
+Text: :func:`parse_heading`, :func:`parse_variation`, :func:`format_heading`,
+:func:`format_variation`.
+
+>>> float(true_to_magnetic(45.0, variation_deg=-12.5))  # west variation is added
+57.5
+>>> format_heading(359.7), format_variation(-12.5)
+('000', '12°30′ W')
+>>> g = parse_grid("polar")
+>>> round(float(g.convergence_deg(75.0, 30.0)), 6)  # 30° E on a Greenwich polar grid
+30.0
+>>> float(true_to_grid(100.0, g.convergence_deg(75.0, 30.0)))
+70.0
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from collections.abc import Callable
+from dataclasses import dataclass, field
+from typing import Any
+
+import numpy as np
+import pyproj
+
+from .errors import InputError
+from .units import decimal_year, format_dm, parse_coordinate
+
+__all__ = [
+    "Grid",
+    "compass_to_magnetic",
+    "compass_to_true",
+    "convergence_deg",
+    "format_heading",
+    "format_variation",
+    "grid_to_magnetic",
+    "grid_to_true",
+    "grivation_deg",
+    "magnetic_to_compass",
+    "magnetic_to_grid",
+    "magnetic_to_true",
+    "normalize_heading",
+    "parse_grid",
+    "parse_heading",
+    "parse_variation",
+    "true_to_compass",
+    "true_to_grid",
+    "true_to_magnetic",
+    "model_variation_deg",
+    "wrap_angle",
+]
+
+
+# --------------------------------------------------------------------------- angles
+
+
+def _scalar_or_array(values: np.ndarray, like: Any) -> Any:
+    return float(values) if np.ndim(like) == 0 and np.ndim(values) == 0 else values
+
+
+def normalize_heading(heading_deg: Any) -> Any:
+    """Reduce headings to ``0 <= h < 360`` degrees (a tiny negative gives 0, never 360)."""
+    h = np.mod(np.asarray(heading_deg, dtype=np.float64), 360.0)
+    h = np.where(h >= 360.0, 0.0, h)
+    return _scalar_or_array(h, heading_deg)
+
+
+def wrap_angle(angle_deg: Any) -> Any:
+    """Reduce signed angles (variation, convergence, differences) to ``-180 < a <= 180``."""
+    a = np.asarray(angle_deg, dtype=np.float64)
+    out = 180.0 - np.mod(180.0 - a, 360.0)
+    out = np.where(out <= -180.0, out + 360.0, out)
+    return _scalar_or_array(out, angle_deg)
+
+
+# --------------------------------------------------------------------------- true / magnetic
+
+
+def model_variation_deg(lat: Any, lon: Any, date: Any, alt_km: Any = 0.0, model: Any = None) -> Any:
+    """Variation (declination, east positive, degrees) from the field model at places and a date.
+
+    Thin wrapper over :func:`headingref.field.field_arrays`. Raises :class:`InputError`
+    where the declination is undefined (geographic pole, H = 0), naming the place.
+    """
+    from .field import field_arrays
+
+    lat_a, lon_a, alt_a = np.broadcast_arrays(*(np.asarray(v, dtype=np.float64) for v in (lat, lon, alt_km)))
+    year = decimal_year(date)
+    result = field_arrays(lat_a.ravel(), lon_a.ravel(), year, alt_a.ravel(), model=model)
+    dec = np.asarray(result["declination_deg"], dtype=np.float64).reshape(lat_a.shape)
+    bad = ~np.isfinite(dec)
+    if bad.any():
+        i = int(np.flatnonzero(bad.ravel())[0])
+        raise InputError(
+            f"variation is undefined at lat {lat_a.ravel()[i]:g}, lon {lon_a.ravel()[i]:g} "
+            "(geographic or dip pole); give the variation explicitly"
+        )
+    return _scalar_or_array(dec, lat if np.ndim(lat) else lon)
+
+
+def _variation(variation: Any, lat: Any, lon: Any, date: Any, alt_km: Any, model: Any) -> np.ndarray:
+    if variation is not None:
+        return np.asarray(variation, dtype=np.float64)
+    if lat is None or lon is None or date is None:
+        raise InputError("give either variation_deg, or lat, lon and date to take the variation from the field model")
+    return np.asarray(model_variation_deg(lat, lon, date, alt_km, model), dtype=np.float64)
+
+
+def true_to_magnetic(
+    true_deg: Any,
+    variation_deg: Any = None,
+    *,
+    lat: Any = None,
+    lon: Any = None,
+    date: Any = None,
+    alt_km: Any = 0.0,
+    model: Any = None,
+) -> Any:
+    """Magnetic heading = true heading - variation (east positive), in ``[0, 360)``.
+
+    The variation is ``variation_deg`` if given, else taken from the field model at
+    ``lat``, ``lon``, ``date`` (and ``alt_km``, ``model``).
+    """
+    v = _variation(variation_deg, lat, lon, date, alt_km, model)
+    return _scalar_or_array(normalize_heading(np.asarray(true_deg, dtype=np.float64) - v), true_deg)
+
+
+def magnetic_to_true(
+    magnetic_deg: Any,
+    variation_deg: Any = None,
+    *,
+    lat: Any = None,
+    lon: Any = None,
+    date: Any = None,
+    alt_km: Any = 0.0,
+    model: Any = None,
+) -> Any:
+    """True heading = magnetic heading + variation (east positive), in ``[0, 360)``."""
+    v = _variation(variation_deg, lat, lon, date, alt_km, model)
+    return _scalar_or_array(normalize_heading(np.asarray(magnetic_deg, dtype=np.float64) + v), magnetic_deg)
+
+
+# --------------------------------------------------------------------------- magnetic / compass
+
+Deviation = float | np.ndarray | Callable[[Any], Any]
+
+
+def _deviation_function(deviation: Any) -> Callable[[np.ndarray], np.ndarray] | None:
+    """The deviation as a function of magnetic heading, or None for plain numbers."""
+    method = getattr(deviation, "deviation_deg", None)
+    if callable(method):
+        return lambda m: np.asarray(method(m), dtype=np.float64)
+    if callable(deviation):
+        return lambda m: np.asarray(deviation(m), dtype=np.float64)
+    return None
+
+
+def _deviation_at(deviation: Any, magnetic: np.ndarray) -> np.ndarray:
+    func = _deviation_function(deviation)
+    d = func(magnetic) if func is not None else np.asarray(deviation, dtype=np.float64)
+    if not np.all(np.isfinite(d)):
+        raise InputError(f"deviation {deviation!r} gives a non-finite value; give finite degrees, east positive")
+    return d
+
+
+def magnetic_to_compass(magnetic_deg: Any, deviation_deg: Deviation) -> Any:
+    """Compass heading = magnetic heading - deviation (east positive), in ``[0, 360)``.
+
+    ``deviation_deg`` is a number/array, or a curve of the magnetic heading (a callable,
+    or an object with ``deviation_deg(magnetic_heading_deg)``).
+    """
+    m = np.asarray(magnetic_deg, dtype=np.float64)
+    d = _deviation_at(deviation_deg, normalize_heading(m))
+    return _scalar_or_array(normalize_heading(m - d), magnetic_deg)
+
+
+def compass_to_magnetic(compass_deg: Any, deviation_deg: Deviation, tol_deg: float = 1e-12) -> Any:
+    """Magnetic heading = compass heading + deviation, in ``[0, 360)``.
+
+    With a deviation curve of the magnetic heading, ``m = c + d(m)`` is solved by
+    fixed-point iteration (it converges while the curve's slope stays below 1 per
+    degree, true of any real deviation card); :class:`InputError` if it does not.
+    """
+    c = np.asarray(compass_deg, dtype=np.float64)
+    func = _deviation_function(deviation_deg)
+    if func is None:
+        d = _deviation_at(deviation_deg, c)
+        return _scalar_or_array(normalize_heading(c + d), compass_deg)
+    m = normalize_heading(c + func(normalize_heading(c)))
+    for _ in range(200):
+        m_new = normalize_heading(c + _deviation_at(deviation_deg, np.asarray(m)))
+        step = np.abs(wrap_angle(np.asarray(m_new) - m))
+        m = m_new
+        if np.all(step <= tol_deg):
+            return _scalar_or_array(np.asarray(m), compass_deg)
+    raise InputError(
+        "deviation curve: compass heading could not be converted to magnetic (the curve changes by "
+        "1 degree or more per degree of heading); check the deviation curve"
+    )
+
+
+def true_to_compass(true_deg: Any, variation_deg: Any, deviation_deg: Deviation) -> Any:
+    """Compass heading from true: subtract the variation, then the deviation (both east positive)."""
+    return magnetic_to_compass(true_to_magnetic(true_deg, variation_deg), deviation_deg)
+
+
+def compass_to_true(compass_deg: Any, deviation_deg: Deviation, variation_deg: Any) -> Any:
+    """True heading from compass: add the deviation, then the variation (both east positive)."""
+    return magnetic_to_true(compass_to_magnetic(compass_deg, deviation_deg), variation_deg)
+
+
+# --------------------------------------------------------------------------- grids
+
+
+def true_to_grid(true_deg: Any, convergence_deg: Any) -> Any:
+    """Grid heading = true heading - convergence (true north to grid north, east positive)."""
+    return _scalar_or_array(
+        normalize_heading(np.asarray(true_deg, dtype=np.float64) - np.asarray(convergence_deg, dtype=np.float64)),
+        true_deg,
+    )
+
+
+def grid_to_true(grid_deg: Any, convergence_deg: Any) -> Any:
+    """True heading = grid heading + convergence."""
+    return _scalar_or_array(
+        normalize_heading(np.asarray(grid_deg, dtype=np.float64) + np.asarray(convergence_deg, dtype=np.float64)),
+        grid_deg,
+    )
+
+
+def grivation_deg(variation_deg: Any, convergence_deg: Any) -> Any:
+    """Grivation = variation - convergence: grid north to magnetic north, east positive, in (-180, 180]."""
+    return wrap_angle(np.asarray(variation_deg, dtype=np.float64) - np.asarray(convergence_deg, dtype=np.float64))
+
+
+def grid_to_magnetic(grid_deg: Any, grivation: Any) -> Any:
+    """Magnetic heading = grid heading - grivation."""
+    return _scalar_or_array(
+        normalize_heading(np.asarray(grid_deg, dtype=np.float64) - np.asarray(grivation, dtype=np.float64)), grid_deg
+    )
+
+
+def magnetic_to_grid(magnetic_deg: Any, grivation: Any) -> Any:
+    """Grid heading = magnetic heading + grivation."""
+    return _scalar_or_array(
+        normalize_heading(np.asarray(magnetic_deg, dtype=np.float64) + np.asarray(grivation, dtype=np.float64)),
+        magnetic_deg,
+    )
+
+
+_GRID_HELP = (
+    "polar, polar:LON, polar-south, polar-south:LON, lcc:LAT1,LAT2,LON0, utm:ZONE[N|S], tm:LON0, "
+    "EPSG:NNNN (a projected CRS) or a +proj= string"
+)
+
+
+@dataclass(frozen=True)
+class Grid:
+    """A map grid on WGS84 and its meridian convergence.
+
+    Attributes
+    ----------
+    name : str
+        The canonical spec (``polar:0``, ``lcc:60,70,10``, ``EPSG:3413`` ...).
+    crs : pyproj.CRS
+        The projected CRS whose +y (northing) axis defines grid north.
+    """
+
+    name: str
+    crs: pyproj.CRS
+    _proj: pyproj.Proj = field(repr=False, compare=False, hash=False)
+
+    def convergence_deg(self, lat: Any, lon: Any) -> Any:
+        """Meridian convergence in degrees, in (-180, 180]: true north to grid north, east positive.
+
+        From ``pyproj.Proj.get_factors(lon, lat).meridian_convergence`` (PROJ). Points
+        outside the grid's domain give NaN.
+        """
+        lat_a, lon_a = np.broadcast_arrays(np.asarray(lat, dtype=np.float64), np.asarray(lon, dtype=np.float64))
+        flat_lat, flat_lon = lat_a.ravel(), lon_a.ravel()
+        if flat_lat.size == 0:
+            return np.empty(lat_a.shape)
+        factors = self._proj.get_factors(flat_lon, flat_lat, errcheck=False)
+        conv = np.asarray(factors.meridian_convergence, dtype=np.float64)
+        conv = np.where(np.isfinite(conv), conv, np.nan).reshape(lat_a.shape)
+        return _scalar_or_array(wrap_angle(conv), lat if np.ndim(lat) else lon)
+
+
+def _number(text: str, what: str, spec: str) -> float:
+    try:
+        value = float(text)
+    except ValueError:
+        raise InputError(f"grid {spec!r}: {what} {text!r} is not a number; give {_GRID_HELP}") from None
+    if not math.isfinite(value):
+        raise InputError(f"grid {spec!r}: {what} {text!r} is not finite; give {_GRID_HELP}")
+    return value
+
+
+def _check_range(value: float, low: float, high: float, what: str, spec: str) -> float:
+    if not low <= value <= high:
+        raise InputError(f"grid {spec!r}: {what} {value:g} is outside {low:g} to {high:g} degrees")
+    return value
+
+
+def _make_grid(name: str, crs_input: Any, spec: Any) -> Grid:
+    try:
+        crs = pyproj.CRS.from_user_input(crs_input)
+    except pyproj.exceptions.CRSError:
+        raise InputError(f"grid {spec!r} is not a coordinate reference system pyproj knows; give {_GRID_HELP}") from None
+    if not crs.is_projected:
+        raise InputError(f"grid {spec!r} is not a projected CRS (it has no grid north); give {_GRID_HELP}")
+    return Grid(name, crs, pyproj.Proj(crs))
+
+
+def parse_grid(spec: Any) -> Grid:
+    """Build a :class:`Grid` from its text spec (see the module docstring) or a pyproj CRS.
+
+    Raises :class:`InputError` naming the spec for anything else.
+    """
+    if isinstance(spec, Grid):
+        return spec
+    if isinstance(spec, pyproj.CRS):
+        return _make_grid(spec.to_string(), spec, spec)
+    if not isinstance(spec, str) or not spec.strip():
+        raise InputError(f"grid {spec!r} is not understood; give {_GRID_HELP}")
+    text = spec.strip()
+    lower = text.lower()
+    kind, _, rest = lower.partition(":")
+    if kind in ("polar", "polar-north", "polar-south"):
+        lon0 = _check_range(_number(rest, "reference meridian", text), -180, 180, "reference meridian", text) if rest else 0.0
+        south = kind == "polar-south"
+        lat0 = -90 if south else 90
+        proj = f"+proj=stere +lat_0={lat0} +lat_ts={lat0} +lon_0={lon0!r} +datum=WGS84 +units=m +no_defs"
+        return _make_grid(f"{'polar-south' if south else 'polar'}:{lon0:g}", proj, spec)
+    if kind == "lcc":
+        parts = [p.strip() for p in rest.split(",")]
+        if len(parts) != 3:
+            raise InputError(f"grid {spec!r}: lcc needs three numbers LAT1,LAT2,LON0; give {_GRID_HELP}")
+        lat1, lat2, lon0 = (_number(p, w, text) for p, w in zip(parts, ("LAT1", "LAT2", "LON0"), strict=True))
+        for value, what in ((lat1, "LAT1"), (lat2, "LAT2")):
+            _check_range(value, -89.0, 89.0, what, text)
+        _check_range(lon0, -180, 180, "LON0", text)
+        if abs(lat1 + lat2) < 1e-9:
+            raise InputError(f"grid {spec!r}: standard parallels symmetric about the equator make no cone; use tm or utm")
+        proj = f"+proj=lcc +lat_1={lat1!r} +lat_2={lat2!r} +lat_0={(lat1 + lat2) / 2!r} +lon_0={lon0!r} +datum=WGS84 +units=m +no_defs"
+        return _make_grid(f"lcc:{lat1:g},{lat2:g},{lon0:g}", proj, spec)
+    if kind == "utm":
+        match = re.fullmatch(r"\s*(\d{1,2})\s*([ns]?)\s*", rest)
+        if not match or not 1 <= int(match[1]) <= 60:
+            raise InputError(f"grid {spec!r}: utm needs a zone 1 to 60 with optional N or S (utm:33N); give {_GRID_HELP}")
+        zone, south = int(match[1]), match[2] == "s"
+        proj = f"+proj=utm +zone={zone}{' +south' if south else ''} +datum=WGS84 +units=m +no_defs"
+        return _make_grid(f"utm:{zone}{'S' if south else 'N'}", proj, spec)
+    if kind == "tm":
+        lon0 = _check_range(_number(rest, "central meridian", text), -180, 180, "central meridian", text)
+        proj = f"+proj=tmerc +lat_0=0 +lon_0={lon0!r} +k=1 +datum=WGS84 +units=m +no_defs"
+        return _make_grid(f"tm:{lon0:g}", proj, spec)
+    if kind in ("epsg", "esri") or lower.startswith("+proj") or text.startswith(("PROJCRS", "PROJCS", "{")):
+        name = text.upper() if kind in ("epsg", "esri") else text
+        return _make_grid(name, text, spec)
+    raise InputError(f"grid {spec!r} is not understood; give {_GRID_HELP}")
+
+
+def convergence_deg(lat: Any, lon: Any, grid: Any = "polar") -> Any:
+    """Meridian convergence (true north to grid north, east positive, degrees) of ``grid`` at lat, lon."""
+    return parse_grid(grid).convergence_deg(lat, lon)
+
+
+# --------------------------------------------------------------------------- text forms
+
+_HEADING_RE = re.compile(
+    r"^\s*(?P<num>\d{1,3}(?:\.\d*)?|\.\d+)\s*(?:°|º|deg)?\s*(?P<ref>[TMGC]|true|mag|grid|compass)?\s*$",
+    re.IGNORECASE,
+)
+_REFERENCE_NAMES = {"t": "T", "true": "T", "m": "M", "mag": "M", "g": "G", "grid": "G", "c": "C", "compass": "C"}
+_HEADING_HELP = "0 to 360 degrees, e.g. 045, 045°T, 270.5 M (360 is read as 000)"
+
+
+def parse_heading(text: Any, reference: str | None = None) -> float:
+    """Parse a heading or course such as ``045``, ``45``, ``045°T``, ``270.5 M``, ``360``.
+
+    The optional letter names the reference (T true, M magnetic, G grid, C compass).
+    If ``reference`` is given and the text carries a different letter, that is an
+    error. Returns degrees in ``[0, 360)``; ``360`` is read as ``000``.
+    """
+    if isinstance(text, (bool, np.bool_)):
+        raise InputError(f"heading {text!r} is not understood; give {_HEADING_HELP}")
+    if isinstance(text, (int, float, np.integer, np.floating)):
+        value, letter = float(text), None
+        if not math.isfinite(value):
+            raise InputError(f"heading {text!r} is not a finite number; give {_HEADING_HELP}")
+    else:
+        match = _HEADING_RE.match(str(text).replace("−", "-"))
+        if not match:
+            raise InputError(f"heading {text!r} is not understood; give {_HEADING_HELP}")
+        value = float(match["num"])
+        letter = _REFERENCE_NAMES[match["ref"].lower()] if match["ref"] else None
+    if not 0.0 <= value <= 360.0:
+        raise InputError(f"heading {text!r} is outside 0 to 360 degrees; give {_HEADING_HELP}")
+    if reference is not None and letter is not None and letter != reference.upper()[:1]:
+        raise InputError(f"heading {text!r} is marked {letter} but a {reference.upper()[:1]} heading is wanted")
+    return 0.0 if value == 360.0 else value
+
+
+_VARIATION_HELP = "degrees east positive, e.g. -12.5, 12.5W, E3.2, 12°30′W"
+
+
+def parse_variation(text: Any) -> float:
+    """Parse a variation (or deviation, declination): ``-12.5``, ``12.5W``, ``E3.2``, ``12°30′W``.
+
+    East positive, degrees, within -180 to 180. The letter may come before or after;
+    a sign and a letter together are an error.
+    """
+    try:
+        return parse_coordinate(text, "lon")
+    except InputError:
+        raise InputError(f"variation {text!r} is not understood; give {_VARIATION_HELP}") from None
+
+
+def format_heading(heading_deg: float, decimals: int = 0, reference: str = "") -> str:
+    """Format a heading as three digits (``045``, ``000`` not ``360``), optional decimals and letter.
+
+    ``format_heading(44.96, reference='T')`` gives ``'045°T'``; NaN gives ``'---'``.
+    """
+    if heading_deg is None or not math.isfinite(heading_deg):
+        return "---"
+    value = round(float(normalize_heading(heading_deg)), decimals)
+    if value >= 360.0:
+        value = 0.0
+    width = 3 + (decimals + 1 if decimals else 0)
+    body = f"{value:0{width}.{decimals}f}"
+    return f"{body}°{reference}" if reference else body
+
+
+def format_variation(variation: float, style: str = "dm", decimals: int = 0) -> str:
+    """Format a variation with its E/W letter: ``12°30′ W`` (``style='dm'``) or ``12.5° W`` (``'decimal'``).
+
+    ``decimals`` applies to the minutes (dm) or the degrees (decimal). NaN gives ``undefined``.
+    """
+    if style == "dm":
+        return format_dm(variation, "E", "W", decimals)
+    if style != "decimal":
+        raise ValueError("style must be 'dm' or 'decimal'")
+    if variation is None or not math.isfinite(variation):
+        return "undefined"
+    value = round(abs(float(variation)), decimals)
+    letter = "E" if variation >= 0 or value == 0 else "W"
+    return f"{value:.{decimals}f}° {letter}"
