@@ -43,6 +43,7 @@ UNCERTAINTY_CONST_DEG = 0.26  # WMM error model, declination: sqrt(0.26^2 + (541
 UNCERTAINTY_SCALE_NT = 5417.0
 H_UNDEFINED_NT = 0.01  # below this the horizontal direction is numerically meaningless
 ZONE_NAMES = ("normal", "caution", "blackout")
+ZONE_DTYPE = pd.CategoricalDtype(list(ZONE_NAMES), ordered=True)
 
 ELEMENTS = (
     "declination_deg",
@@ -54,14 +55,11 @@ ELEMENTS = (
     "horizontal_nT_per_year",
     "total_nT_per_year",
     "declination_uncertainty_deg",
-    "north_nT",
-    "east_nT",
-    "down_nT",
-    "north_nT_per_year",
-    "east_nT_per_year",
-    "down_nT_per_year",
 )
 """Order of the rows of the ``derive`` kernel's output."""
+
+VECTOR = ("north_nT", "east_nT", "down_nT", "north_nT_per_year", "east_nT_per_year", "down_nT_per_year")
+"""Order of the rows of the synthesis kernels' output."""
 
 COLUMNS = (
     "lat_deg",
@@ -182,20 +180,20 @@ def _prepare(lat, lon, years, alt_km, model, allow_extrapolation):
     return model, [np.ascontiguousarray(a, dtype=np.float64).ravel() for a in (lat_b, lon_b, alt_b, years_b)]
 
 
-def _synthesise(model: Model, lat, lon, alt, years) -> tuple[np.ndarray, np.ndarray]:
+def _synthesise(model: Model, lat, lon, alt, years) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     k, dt = model.locate(years)
     k1, k2, diag = _constants(model.nmax)
     xyz = np.empty((6, lat.size))
     synthesis.scattered(lat, lon, alt, k, dt, model.g, model.h, model.g_rate, model.h_rate, k1, k2, diag,
                         model.reference_radius_km, xyz)
-    return _derive(xyz)
+    out = np.empty((len(ELEMENTS), lat.size))
+    zone = np.empty(lat.size, dtype=np.int8)
+    _derive(xyz, out, zone)
+    return xyz, out, zone
 
 
-def _derive(xyz: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    out = np.empty((len(ELEMENTS), xyz.shape[1]))
-    zone = np.empty(xyz.shape[1], dtype=np.int8)
+def _derive(xyz: np.ndarray, out: np.ndarray, zone: np.ndarray) -> None:
     synthesis.derive(xyz, H_UNDEFINED_NT, UNCERTAINTY_CONST_DEG, UNCERTAINTY_SCALE_NT, BLACKOUT_NT, CAUTION_NT, out, zone)
-    return out, zone
 
 
 def _undefined_reasons(lat: np.ndarray, horizontal: np.ndarray, declination: np.ndarray) -> np.ndarray:
@@ -244,10 +242,12 @@ def field_arrays(
     """
     years = decimal_year(year) if not isinstance(year, np.ndarray) or year.dtype.kind not in "fi" else year
     model, (lat_f, lon_f, alt_f, years_f) = _prepare(lat, lon, years, alt_km, model, allow_extrapolation)
-    out, zone = _synthesise(model, lat_f, lon_f, alt_f, years_f)
+    xyz, out, zone = _synthesise(model, lat_f, lon_f, alt_f, years_f)
     result = {"lat_deg": lat_f, "lon_deg": lon_f, "alt_km": alt_f, "decimal_year": years_f}
     for i, name in enumerate(ELEMENTS):
         result[name] = out[i]
+    for i, name in enumerate(VECTOR):
+        result[name] = xyz[i]
     result["zone_code"] = zone
     result["declination_flag"] = _undefined_reasons(lat_f, out[2], out[0])
     return result
@@ -290,7 +290,7 @@ def field(
     """
     arrays = field_arrays(lat, lon, decimal_year(date), alt_km, model, allow_extrapolation)
     data = {name: arrays[name] for name in COLUMNS if name not in ("zone", "declination_flag")}
-    data["zone"] = pd.Categorical.from_codes(arrays["zone_code"], categories=list(ZONE_NAMES), ordered=True)
+    data["zone"] = pd.Categorical.from_codes(arrays["zone_code"], dtype=ZONE_DTYPE)
     data["declination_flag"] = arrays["declination_flag"]
     return pd.DataFrame(data, columns=list(COLUMNS), copy=False)
 
@@ -336,17 +336,19 @@ def field_grid(
     lon_rad = np.radians(lon_a)
     trig = np.concatenate([np.cos(np.outer(mvals, lon_rad)), np.sin(np.outer(mvals, lon_rad))])  # (2ncol, nlon)
     shape = (len(years), lat_a.size, lon_a.size)
-    data = {name: np.empty(shape) for name in ELEMENTS}
-    zone = np.empty(shape, dtype=np.int8)
+    npts = lat_a.size * lon_a.size
+    derived = np.empty((len(years), len(ELEMENTS), npts))
+    vector = np.empty((len(years), 6, npts))
+    zone = np.empty((len(years), npts), dtype=np.int8)
     terms = np.empty((6, lat_a.size, 2 * ncol))
     for t, year in enumerate(years):
         g, h, gr, hr = model.coefficients(year)
         synthesis.grid_row_terms(lat_a, alt, g, h, gr, hr, k1, k2, diag, model.reference_radius_km, terms)
-        xyz = (terms.reshape(6 * lat_a.size, 2 * ncol) @ trig).reshape(6, -1)
-        out, codes = _derive(xyz)
-        for i, name in enumerate(ELEMENTS):
-            data[name][t] = out[i].reshape(lat_a.size, lon_a.size)
-        zone[t] = codes.reshape(lat_a.size, lon_a.size)
+        np.matmul(terms.reshape(6 * lat_a.size, 2 * ncol), trig, out=vector[t].reshape(6 * lat_a.size, lon_a.size))
+        _derive(vector[t], derived[t], zone[t])
+    data = {name: derived[:, i].reshape(shape) for i, name in enumerate(ELEMENTS)}
+    data.update({name: vector[:, i].reshape(shape) for i, name in enumerate(VECTOR)})
+    zone = zone.reshape(shape)
     pole_rows = np.abs(lat_a) == 90.0
     if pole_rows.any():
         data["declination_deg"][:, pole_rows, :] = np.nan
@@ -354,7 +356,7 @@ def field_grid(
         warnings.warn("declination is undefined on the geographic-pole row(s) of the grid; NaN there",
                       UndefinedDeclinationWarning, stacklevel=2)
     dims = ("time", "lat", "lon")
-    variables = {name: (dims, data[name], {"units": UNITS[name]}) for name in ELEMENTS}
+    variables = {name: (dims, data[name], {"units": UNITS[name]}) for name in ELEMENTS + VECTOR}
     variables["zone"] = (dims, zone, {
         "flag_values": np.array([0, 1, 2], dtype=np.int8),
         "flag_meanings": "normal caution blackout",

@@ -232,15 +232,23 @@ def _load_cached(path: str, mtime: float) -> Model:
     return _read_shc(p, text)
 
 
+_DEFAULT: Model | None = None
+
+
 def load_model(path: str | os.PathLike | None = None) -> Model:
     """Load a coefficient file (SHC or WMM .COF); ``None`` gives IGRF-14 from ``ppigrf``.
 
     Raises :class:`~headingref.errors.ModelFileError` naming the file and the fault.
     Models are cached by path and modification time.
     """
+    global _DEFAULT
     if isinstance(path, Model):
         return path
-    p = Path(path) if path is not None else default_coefficient_file()
+    if path is None:
+        if _DEFAULT is None:
+            _DEFAULT = load_model(default_coefficient_file())
+        return _DEFAULT
+    p = Path(path)
     if not p.is_file():
         raise ModelFileError(f"coefficient file {str(p)!r} does not exist; give an IGRF-format .shc or a WMM .COF file")
     return _load_cached(str(p.resolve()), p.stat().st_mtime)

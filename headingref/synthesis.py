@@ -245,9 +245,8 @@ def grid_row_terms(lat_deg, alt_km, g, h, g_rate, h_rate, k1, k2, diag, a_ref, o
 def derive(xyz, h_undefined_nT, unc_const_deg, unc_scale_nT, blackout_nT, caution_nT, out, zone):
     """Derived elements and rates from X, Y, Z and their rates.
 
-    ``xyz`` (6, n): X, Y, Z, dX, dY, dZ. ``out`` (15, n) receives D, I, H, F (deg, deg, nT, nT),
-    dD, dI, dH, dF (deg/yr, deg/yr, nT/yr, nT/yr), the declination uncertainty (deg), and then
-    copies of X, Y, Z, dX, dY, dZ. ``zone`` (n,) int8: 0 normal, 1 caution, 2 blackout.
+    ``xyz`` (6, n): X, Y, Z, dX, dY, dZ. ``out`` (9, n) receives D, I, H, F (deg, deg, nT, nT),
+    dD, dI, dH, dF (deg/yr, deg/yr, nT/yr, nT/yr) and the declination uncertainty (deg). ``zone`` (n,) int8: 0 normal, 1 caution, 2 blackout.
     D = atan2(Y, X), I = atan2(Z, H); rates by differentiating those (WMM2020 report eq. 19):
     dD = (X dY - Y dX) / H^2, dI = (H dZ - Z dH) / F^2, dH = (X dX + Y dY) / H, dF = (X dX + Y dY + Z dZ) / F.
     Where H < ``h_undefined_nT`` the declination, the rates of D, I and H and the uncertainty are NaN
@@ -280,8 +279,6 @@ def derive(xyz, h_undefined_nT, unc_const_deg, unc_scale_nT, blackout_nT, cautio
         out[5, i] = (hh * dz - z * dh) / (ff * ff) * deg
         out[6, i] = dh
         out[7, i] = (x * dx + y * dy + z * dz) / ff
-        for c in range(6):
-            out[9 + c, i] = xyz[c, i]
         if hh < blackout_nT:
             zone[i] = 2
         elif hh < caution_nT:
