@@ -21,9 +21,13 @@ ch. V; the same form in the Admiralty Manual of Navigation)::
 - D, E: quadrantal deviation from magnetism induced in soft iron by the Earth's field.
 
 The coefficients are fitted by linear least squares (:func:`numpy.linalg.lstsq`) to any number of
-readings. On the eight cardinal and intercardinal headings the fit reduces exactly to the
-handbook's approximate-coefficient formulas (:func:`eight_point_coefficients`), because the five
-basis functions are orthogonal on equally spaced headings. Standard errors are
+readings. On the eight cardinal and intercardinal headings the basis functions are orthogonal and
+the fit becomes the handbook's approximate-coefficient formulas (:func:`eight_point_coefficients`):
+A, D and E identically; B and C identically whenever the deviations follow the five-term curve.
+(The handbook's B = (E - W)/2 uses the two cardinal headings only, the least-squares B also the
+four intercardinal ones, ``B = [E - W + (NE + SE - SW - NW) sin 45°] / 4``; the two differ by the
+third harmonic that the five-term curve leaves out, and the least-squares value is the less noisy.)
+Standard errors are
 ``sqrt(s2 * diag((X^T X)^-1))`` with ``s2 = RSS / (n - p)``; the *inflation* of each coefficient is
 its ``sqrt(diag((X^T X)^-1))`` divided by that of an evenly spread swing with the same number of
 readings (1 is ideal; headings bunched on one side of the circle give large values).
