@@ -23,6 +23,7 @@ from .errors import (
 from .field import declination_uncertainty_deg, field, field_arrays, field_grid
 from .model import Model, load_model
 from .notices import CAUTION
+from .zones import dip_poles, geomagnetic_poles, heading_error, pole_tracks, zones
 
 __all__ = [
     "CAUTION",
@@ -40,5 +41,10 @@ __all__ = [
     "field_arrays",
     "field_grid",
     "load_model",
+    "dip_poles",
+    "geomagnetic_poles",
+    "heading_error",
+    "pole_tracks",
+    "zones",
 ]
 __version__ = "0.1.0"

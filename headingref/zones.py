@@ -54,6 +54,7 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
+from .detector import heading_error  # noqa: F401  (re-exported by the package)
 from .errors import InputError, UndefinedDeclinationWarning
 from .units import decimal_year, timestamp_from_decimal_year
 
