@@ -1,0 +1,260 @@
+"""Compass swing analysis against published formulas, a handbook example and exact synthetic curves.
+
+Sources named beside each check:
+- NGA, Handbook of Magnetic Compass Adjustment (2004, formerly Pub. No. 226), ch. V art. 501
+  "Simple analysis": the eight deviations of a typical curve and the approximate-coefficient
+  formulas A = mean of the eight, B = (E - W)/2, C = (N - S)/2, D = (NE + SW - SE - NW)/4,
+  E = (N + S - E - W)/4, east deviation plus, west minus.
+- 14 CFR 23.1327 / 25.1327(b) / 29.1327(b): the compensated installation may not have a deviation,
+  in level flight, greater than 10 degrees on any heading.
+- CAA NZ / CASA advisory material on calibration of aircraft compasses (AC 43-17): "Deviation means
+  the angle required to be added algebraically to a compass reading to obtain the aircraft
+  magnetic heading", i.e. magnetic = compass + deviation.
+"""
+
+from __future__ import annotations
+
+import warnings
+
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from headingref import headings
+from headingref.cli import main
+from headingref.errors import DataQualityWarning, InputError
+from headingref.swing import (
+    DEFAULT_LIMIT_DEG,
+    DeviationCurve,
+    analyse_swing,
+    correction_card,
+    deviation_from_readings,
+    eight_point_coefficients,
+    fit_deviation,
+)
+
+DATA = __import__("pathlib").Path(__file__).parent / "data"
+
+# Pub. 226 art. 501 deviations on N, NE, E, SE, S, SW, W, NW (east +, west -).
+HANDBOOK_501 = [10.5, 20.0, 11.5, -1.2, -5.5, -8.0, -12.5, -6.8]
+EIGHT = np.arange(0.0, 360.0, 45.0)
+
+
+def _curve(a, b, c, d, e, h):
+    """Five-term curve written out independently of the module (handbook form)."""
+    r = np.radians(h)
+    return a + b * np.sin(r) + c * np.cos(r) + d * np.sin(2 * r) + e * np.cos(2 * r)
+
+
+def test_sign_convention_east_deviation_means_compass_reads_low():
+    # AC 43-17 definition: magnetic = compass + deviation. Compass 087 on magnetic 090 -> 3 deg E (+).
+    assert deviation_from_readings(90.0, 87.0) == pytest.approx(3.0, abs=1e-12)
+    # Across north: magnetic 002, compass 358 -> 4 deg E; magnetic 358, compass 002 -> 4 deg W.
+    assert deviation_from_readings(2.0, 358.0) == pytest.approx(4.0, abs=1e-12)
+    assert deviation_from_readings(358.0, 2.0) == pytest.approx(-4.0, abs=1e-12)
+    # Normalised to (-180, 180]: exactly opposite gives +180, never -180.
+    assert deviation_from_readings(180.0, 0.0) == pytest.approx(180.0)
+    assert deviation_from_readings(0.0, 180.0) == pytest.approx(180.0)
+
+
+def test_eight_point_formulas_on_handbook_example():
+    # Pub. 226 art. 501 data and formulas; arithmetic done by hand:
+    # 8A = 10.5 + 20.0 + 11.5 - 1.2 - 5.5 - 8.0 - 12.5 - 6.8 = 8.0 -> A = 1.0 E
+    # B = (11.5 + 12.5)/2 = 12.0 E; C = (10.5 + 5.5)/2 = 8.0 E
+    # D = (20.0 - 8.0 + 1.2 + 6.8)/4 = 5.0 E; E = (10.5 - 5.5 - 11.5 + 12.5)/4 = 1.5 E
+    coeffs = eight_point_coefficients(HANDBOOK_501)
+    expected = {"A": 1.0, "B": 12.0, "C": 8.0, "D": 5.0, "E": 1.5}
+    for name, value in expected.items():
+        assert coeffs[name] == pytest.approx(value, abs=1e-12), name
+
+
+def test_least_squares_on_handbook_example_matches_eight_point_a_d_e_and_lsq_b_c():
+    # On eight equally spaced headings the basis is orthogonal: A, D, E from least squares are the
+    # Pub. 226 formulas exactly; B and C use all eight readings: B = [E - W + (NE + SE - SW - NW) sin 45]/4
+    # (discrete Fourier coefficient), by hand: (24 + 33.6 * 0.70711) / 4 = 11.9397; C = [N - S + (NE - SE - SW + NW) sin 45]/4
+    # = (16 + (20 + 1.2 + 8 - 6.8) * 0.70711)/4 = 7.9598.
+    fit = fit_deviation(EIGHT, HANDBOOK_501)
+    c = fit.curve
+    assert c.A_deg == pytest.approx(1.0, abs=1e-12)
+    assert c.D_deg == pytest.approx(5.0, abs=1e-12)
+    assert c.E_deg == pytest.approx(1.5, abs=1e-12)
+    assert c.B_deg == pytest.approx((24 + 33.6 * np.sqrt(0.5)) / 4, abs=1e-12)
+    assert c.C_deg == pytest.approx((16 + 22.4 * np.sqrt(0.5)) / 4, abs=1e-12)
+    # Condition number of an evenly spread 8-heading design: sqrt(8/4) (X^T X = diag(8, 4, 4, 4, 4)).
+    assert fit.condition_number == pytest.approx(np.sqrt(2.0), abs=1e-12)
+
+
+coefficient = st.floats(min_value=-5.9, max_value=5.9, allow_nan=False)  # |dev| < 30: readings stay plausible
+
+
+@settings(max_examples=60, deadline=None)
+@given(a=coefficient, b=coefficient, c=coefficient, d=coefficient, e=coefficient)
+def test_eight_point_formulas_equal_least_squares_for_a_five_term_curve(a, b, c, d, e):
+    # Pub. 226 art. 501 formulas are exact for a pure five-term curve sampled on N..NW.
+    dev = _curve(a, b, c, d, e, EIGHT)
+    eight = eight_point_coefficients(dev)
+    fit = fit_deviation(EIGHT, dev).curve.coefficients()
+    for name, value in zip("ABCDE", (a, b, c, d, e), strict=True):
+        assert eight[name] == pytest.approx(value, abs=1e-9)
+        assert fit[name] == pytest.approx(value, abs=1e-9)
+
+
+@settings(max_examples=40, deadline=None)
+@given(
+    a=coefficient, b=coefficient, c=coefficient, d=coefficient, e=coefficient,
+    n=st.sampled_from([8, 12, 24]),
+    start=st.floats(min_value=0.0, max_value=359.0),
+)
+def test_recovers_known_coefficients_from_synthetic_readings(a, b, c, d, e, n, start):
+    # Exact synthetic readings: compass = magnetic - dev(magnetic) (sign convention of AC 43-17).
+    magnetic = np.mod(start + np.arange(n) * 360.0 / n, 360.0)
+    compass = np.mod(magnetic - _curve(a, b, c, d, e, magnetic), 360.0)
+    result = analyse_swing(magnetic, compass)
+    got = result.curve.coefficients()
+    for name, value in zip("ABCDE", (a, b, c, d, e), strict=True):
+        assert got[name] == pytest.approx(value, abs=1e-9), name
+    # Evenly spread: every coefficient as well determined as possible (inflation 1).
+    np.testing.assert_allclose(result.coefficients.inflation, 1.0, atol=1e-9)
+
+
+@settings(max_examples=40, deadline=None)
+@given(a=coefficient, b=coefficient, c=coefficient, d=coefficient, e=coefficient,
+       wanted=st.lists(st.floats(min_value=0.0, max_value=359.999), min_size=1, max_size=12))
+def test_card_round_trip_against_the_curve(a, b, c, d, e, wanted):
+    curve = DeviationCurve(a, b, c, d, e)
+    card = correction_card(curve, wanted)
+    # The compass on magnetic heading M reads M - dev(M): the card must give exactly that ...
+    expected = np.mod(np.asarray(wanted) - _curve(a, b, c, d, e, np.asarray(wanted)), 360.0)
+    diff = np.mod(card.compass_heading_deg.to_numpy() - expected + 180.0, 360.0) - 180.0
+    assert np.max(np.abs(diff)) < 1e-9
+    # ... and steering that compass heading brings the aircraft back onto M (Newton inversion here,
+    # and the independent inversion in headingref.headings.compass_to_magnetic).
+    for back in (curve.magnetic_from_compass_deg(card.compass_heading_deg.to_numpy()),
+                 headings.compass_to_magnetic(card.compass_heading_deg.to_numpy(), curve)):
+        err = np.mod(np.asarray(back) - np.mod(wanted, 360.0) + 180.0, 360.0) - 180.0
+        assert np.max(np.abs(err)) < 1e-9
+
+
+def test_card_is_not_the_deviation_at_the_wrong_heading():
+    # Strong B: dev(h) = 10 sin h. For magnetic 045, steer 045 - 7.071 = 037.9 -> '038'. Subtracting the
+    # deviation read at the compass heading instead would give 045 - 10 sin(38) = 038.8 -> '039'.
+    card = correction_card(DeviationCurve(B_deg=10.0), [45.0])
+    assert card.compass_heading_deg.iloc[0] == pytest.approx(45.0 - 10.0 * np.sin(np.radians(45.0)), abs=1e-12)
+    assert card.steer_compass.iloc[0] == "038"
+    assert correction_card(DeviationCurve(A_deg=0.3), [0.0]).steer_compass.iloc[0] == "000"  # 359.7 prints 000
+
+
+def test_residuals_after_b_and_c_and_verdict():
+    # Synthetic: after a compensator removes B and C the deviation left is A + D sin 2h + E cos 2h.
+    a, b, c, d, e = 1.0, 6.0, -4.0, 2.5, -1.0
+    magnetic = np.arange(0.0, 360.0, 30.0)
+    compass = magnetic - _curve(a, b, c, d, e, magnetic)
+    result = analyse_swing(magnetic, compass)
+    left = _curve(a, 0, 0, d, e, magnetic)
+    np.testing.assert_allclose(result.readings.residual_after_bc_deg, left, atol=1e-9)
+    assert result.max_residual_deg == pytest.approx(np.max(np.abs(left)), abs=1e-9)
+    # 14 CFR 25.1327(b): 10 deg default limit.
+    assert DEFAULT_LIMIT_DEG == 10.0
+    assert result.verdict == "pass"
+    tight = analyse_swing(magnetic, compass, limit_deg=2.0)  # a tighter limit for a remote-indicating system
+    assert tight.verdict == "fail"
+
+
+def test_standard_errors_match_monte_carlo_scatter():
+    # Gauss-Markov: the formula standard error should match the scatter of B over noisy swings.
+    rng = np.random.default_rng(5)
+    magnetic = np.arange(0.0, 360.0, 30.0)
+    clean = _curve(0.5, 3.0, -2.0, 1.0, 0.4, magnetic)
+    sigma = 0.5
+    b_values, b_se = [], []
+    for _ in range(400):
+        fit = fit_deviation(magnetic, clean + rng.normal(0.0, sigma, magnetic.size))
+        b_values.append(fit.curve.B_deg)
+        b_se.append(fit.table.standard_error_deg.iloc[1])
+    # Theory for an evenly spread swing: SE(B) = sigma * sqrt(2/n) = 0.2041.
+    assert np.std(b_values) == pytest.approx(sigma * np.sqrt(2 / 12), rel=0.12)
+    assert np.mean(b_se) == pytest.approx(sigma * np.sqrt(2 / 12), rel=0.12)
+
+
+def test_four_cardinal_headings_fit_abce_only():
+    # Pub. 226 formulas on four cardinals: A = mean, B = (E - W)/2, C = (N - S)/2, E = (N + S - E - W)/4.
+    n, e_, s, w = 4.0, 3.0, -2.0, -1.0
+    magnetic = np.array([0.0, 90.0, 180.0, 270.0])
+    dev = np.array([n, e_, s, w])
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", DataQualityWarning)  # exactly determined: no redundancy
+        fit = fit_deviation(magnetic, dev, coefficients="ABCE")
+    c = fit.curve
+    assert c.A_deg == pytest.approx((n + e_ + s + w) / 4, abs=1e-12)
+    assert c.B_deg == pytest.approx((e_ - w) / 2, abs=1e-12)
+    assert c.C_deg == pytest.approx((n - s) / 2, abs=1e-12)
+    assert c.E_deg == pytest.approx((n + s - e_ - w) / 4, abs=1e-12)
+    assert c.D_deg == 0.0 and not fit.table.determined.iloc[3]
+
+
+# ------------------------------------------------------------------------------ bad input
+
+
+def test_fewer_readings_than_coefficients():
+    with pytest.raises(InputError, match="cannot determine 5 coefficients"):
+        analyse_swing([0, 90, 180, 270], [0, 90, 180, 270])
+
+
+def test_headings_that_cannot_separate_a_coefficient_name_it():
+    # Cardinal headings only: sin 2h is zero on every one of them, so D cannot be found.
+    with pytest.raises(InputError, match="cannot separate coefficient\\(s\\) D"):
+        fit_deviation([0, 90, 180, 270], [1, 2, 3, 4], coefficients="ABD")
+
+
+def test_bunched_headings_warn_with_condition_number():
+    magnetic = np.arange(0.0, 100.0, 10.0)  # all in the north-east quadrant
+    compass = magnetic - _curve(1, 2, 3, 0.5, 0.2, magnetic)
+    with pytest.warns(DataQualityWarning, match="bunched on one side.*condition number") as record:
+        result = analyse_swing(magnetic, compass)
+    assert result.condition_number > 50
+    assert result.coefficients.inflation.max() > 2
+    assert "largest gap 270 deg" in str(record[0].message)
+
+
+def test_duplicate_headings_warn_naming_rows():
+    magnetic = [0, 45, 90, 135, 180, 225, 270, 315, 90]
+    compass = [0, 45, 89, 135, 180, 225, 270, 315, 88.5]
+    with pytest.warns(DataQualityWarning, match="duplicate heading 090 on reading 3, reading 9"):
+        analyse_swing(magnetic, compass)
+
+
+def test_reading_far_from_heading_names_row():
+    magnetic = [0, 45, 90, 135, 180, 225, 270, 315]
+    compass = [0, 45, 90, 315, 180, 225, 270, 315]  # 135 typed as 315
+    rows = [f"readings.csv line {i}" for i in range(2, 10)]
+    with pytest.raises(InputError, match="readings.csv line 5: compass reading 315 is 180.0 deg"):
+        analyse_swing(magnetic, compass, rows=rows)
+
+
+def test_csv_errors_name_the_line(tmp_path):
+    path = tmp_path / "readings.csv"
+    path.write_text("magnetic_heading_deg,compass_reading_deg\n0,1\n45,4x\n", encoding="utf-8")
+    assert main(["swing", "--input", str(path)]) == 2
+
+
+def test_cli_writes_coefficients_card_and_residuals(tmp_path, capsys):
+    # Pub. 226 art. 501 deviations put on magnetic headings 000..315 (compass = magnetic - deviation).
+    out, card, res, plot = (tmp_path / n for n in ("c.csv", "card.csv", "r.csv", "dev.png"))
+    code = main(["swing", "--input", str(DATA / "swing_handbook_501.csv"), "--limit", "5",
+                 "--output", str(out), "--card", str(card), "--residuals", str(res), "--plot", str(plot)])
+    assert code == 0
+    import pandas as pd
+
+    row = pd.read_csv(out).iloc[0]
+    assert list(pd.read_csv(out).columns[:7]) == ["A_deg", "B_deg", "C_deg", "D_deg", "E_deg", "max_residual_deg", "verdict"]
+    assert row.A_deg == pytest.approx(1.0, abs=1e-9)  # Pub. 226 art. 501: A = 1.0 E
+    assert row.D_deg == pytest.approx(5.0, abs=1e-9)  # D = 5.0 E
+    assert row.E_deg == pytest.approx(1.5, abs=1e-9)  # E = 1.5 E
+    # Residual after B, C on SW, by hand: -8.0 - (B sin 225 + C cos 225) with the least-squares B, C.
+    b, c = (24 + 33.6 * np.sqrt(0.5)) / 4, (16 + 22.4 * np.sqrt(0.5)) / 4
+    assert row.max_residual_deg == pytest.approx(-8.0 + (b + c) * np.sqrt(0.5), abs=1e-9)
+    assert row.verdict == "fail"  # 6.07 deg > the 5 deg limit given
+    assert len(pd.read_csv(card)) == 12 and len(pd.read_csv(res)) == 8
+    assert plot.stat().st_size > 10_000
+    assert "FAIL" in capsys.readouterr().out
