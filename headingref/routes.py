@@ -12,6 +12,7 @@ samples (:func:`headingref.field.field_arrays`). Sign conventions are those of
 Public API
 ----------
 :func:`route` -> :class:`RouteResult` ``(legs, samples)``; :func:`read_waypoints`;
+:func:`route_geojson` (legs as GeoJSON lines cut at the antimeridian, RFC 7946 3.1.9);
 :func:`rhumb_inverse`, :func:`meridian_distance_m` (the rhumb-line pieces).
 
 >>> import headingref
@@ -19,8 +20,8 @@ Public API
 >>> legs, samples = headingref.route(wps, "2026-12-02", grid="polar")
 >>> round(float(legs.distance_nm.iloc[0]), 1)  # WGS84 geodesic
 555.8
->>> list(legs.columns[:4])
-['from', 'to', 'distance_nm', 'distance_km']
+>>> list(legs.columns[:2]), "magnetic_course_deg_mid" in legs
+(['from', 'to'], True)
 
 Notes
 -----
@@ -48,7 +49,7 @@ from .headings import grivation_deg, normalize_heading, parse_grid, wrap_angle
 from .io import coordinate_column, read_table
 from .units import NAUTICAL_MILE_M, decimal_year, parse_coordinate, parse_height_km
 
-__all__ = ["RouteResult", "meridian_distance_m", "read_waypoints", "rhumb_inverse", "route"]
+__all__ = ["RouteResult", "meridian_distance_m", "read_waypoints", "rhumb_inverse", "route", "route_geojson"]
 
 GEOD = pyproj.Geod(ellps="WGS84")
 _A = GEOD.a  # WGS84 semi-major axis, m
@@ -278,7 +279,8 @@ def route(
     Returns
     -------
     RouteResult
-        ``legs``: ``from, to, distance_nm, distance_km``, true/magnetic course at
+        ``legs``: ``from, to``, their ``from_lat_deg, from_lon_deg, to_lat_deg,
+        to_lon_deg``, ``distance_nm, distance_km``, true/magnetic course at
         start, ``_mid`` and ``_end`` (``true_course_deg`` ...), ``grid_course_deg`` and
         ``grid_course_deg_end``, ``variation_deg`` and ``grivation_deg`` (+ ``_mid``,
         ``_end``), ``min_horizontal_nT``, ``max_declination_uncertainty_deg``, ``zone``
@@ -426,6 +428,10 @@ def route(
         {
             "from": names[:-1],
             "to": names[1:],
+            "from_lat_deg": lat1,
+            "from_lon_deg": lon1,
+            "to_lat_deg": lat2,
+            "to_lon_deg": lon2,
             "distance_nm": dist_nm,
             "distance_km": dist_m / 1000.0,
             "true_course_deg": s_course[start_idx],
@@ -452,3 +458,62 @@ def route(
     legs.attrs.update(grid=grid_obj.name, path=path, decimal_year=float(year), spacing_nm=spacing)
     samples.attrs.update(legs.attrs)
     return RouteResult(legs, samples)
+
+
+# --------------------------------------------------------------------------- GeoJSON
+
+
+def _split_antimeridian(lon: np.ndarray, lat: np.ndarray) -> list[list[list[float]]]:
+    """Cut a lon/lat polyline where it crosses 180 degrees (RFC 7946 section 3.1.9)."""
+    pieces: list[list[list[float]]] = [[[float(lon[0]), float(lat[0])]]]
+    for i in range(1, lon.size):
+        step = lon[i] - lon[i - 1]
+        if abs(step) > 180.0:
+            edge = 180.0 if step < 0 else -180.0  # leaving through +180 (eastward) or -180 (westward)
+            unwrapped = lon[i] + (360.0 if step < 0 else -360.0)
+            t = (edge - lon[i - 1]) / (unwrapped - lon[i - 1])
+            lat_x = float(lat[i - 1] + t * (lat[i] - lat[i - 1]))
+            pieces[-1].append([edge, lat_x])
+            pieces.append([[-edge, lat_x]])
+        pieces[-1].append([float(lon[i]), float(lat[i])])
+    return [p for p in pieces if len(p) >= 2]
+
+
+def _json_value(value: Any) -> Any:
+    if isinstance(value, (np.floating, float)):
+        return float(value) if math.isfinite(value) else None
+    if isinstance(value, np.integer):
+        return int(value)
+    return value
+
+
+def route_geojson(result: RouteResult) -> dict:
+    """The route as a GeoJSON FeatureCollection (WGS84 lon/lat degrees).
+
+    One Feature per leg, a LineString through its samples, or a MultiLineString when the
+    leg crosses the antimeridian (cut there, RFC 7946 section 3.1.9), with the leg's row of
+    the legs table as properties; and one Point per waypoint.
+    """
+    legs, samples = result.legs, result.samples
+    features = []
+    for leg_no, part in samples.groupby("leg", sort=True):
+        pieces = _split_antimeridian(part.lon_deg.to_numpy(), part.lat_deg.to_numpy())
+        geometry = (
+            {"type": "LineString", "coordinates": pieces[0]}
+            if len(pieces) == 1
+            else {"type": "MultiLineString", "coordinates": pieces}
+        )
+        props = {"leg": int(leg_no), **{k: _json_value(v) for k, v in legs.iloc[int(leg_no) - 1].items()}}
+        features.append({"type": "Feature", "properties": props, "geometry": geometry})
+    names = list(legs["from"]) + [legs["to"].iloc[-1]]
+    lons = list(legs.from_lon_deg) + [legs.to_lon_deg.iloc[-1]]
+    lats = list(legs.from_lat_deg) + [legs.to_lat_deg.iloc[-1]]
+    for i, (name, lo, la) in enumerate(zip(names, lons, lats, strict=True)):
+        features.append(
+            {
+                "type": "Feature",
+                "properties": {"waypoint": i + 1, "name": str(name)},
+                "geometry": {"type": "Point", "coordinates": [float(lo), float(la)]},
+            }
+        )
+    return {"type": "FeatureCollection", "properties": dict(legs.attrs), "features": features}
