@@ -23,9 +23,12 @@ from .errors import (
 from .field import declination_uncertainty_deg, field, field_arrays, field_grid
 from .model import Model, load_model
 from .notices import CAUTION
+from .routes import RouteResult, route
 from .zones import dip_poles, geomagnetic_poles, heading_error, pole_tracks, zones
 
 __all__ = [
+    "RouteResult",
+    "route",
     "CAUTION",
     "DataQualityWarning",
     "DateRangeError",
