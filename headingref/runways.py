@@ -360,7 +360,7 @@ def _numbers(frame: pd.DataFrame, column: str, kind: str, problems: _Problems, p
         unparsed = np.zeros(len(frame), dtype=bool)
     else:
         text = series.astype(str).str.strip().str.replace("−", "-", regex=False)
-        values = pd.to_numeric(text, errors="coerce").to_numpy(dtype=np.float64)
+        values = pd.to_numeric(text, errors="coerce").to_numpy(dtype=np.float64, copy=True)
         unparsed = present & np.isnan(values)
     for i in np.flatnonzero(unparsed):
         cell = series.iloc[i]
@@ -526,14 +526,17 @@ class RunwayCheck:
         return "\n".join(lines)
 
     def changes_text(self, limit: int | None = None) -> str:
+        """The runways whose implied designator changes within the horizon, soonest first."""
         rows = self.changes if limit is None else self.changes.head(limit)
         if rows.empty:
-            return "No implied designator changes within the horizon."
-        out = ["change date  airport   runway  implied now -> next  magnetic now  years"]
+            return f"No implied designator changes before {self.summary['forecast_end']}."
+        a = max(7, rows["airport"].astype(str).str.len().max())
+        w = max(6, rows["runway"].astype(str).str.len().max())
+        out = [f"{'change':<10}  {'airport':<{a}}  {'runway':<{w}}  {'implied now -> next':<19}  {'magnetic now':>12}  {'in years':>8}"]
         for r in rows.itertuples():
             out.append(
-                f"{r.change_date:<12} {str(r.airport):<9} {str(r.runway):<7} {r.designator_implied:>11} -> {r.next_designator:<5}"
-                f" {r.magnetic_bearing_deg:12.2f}  {r.years_to_change:5.2f}"
+                f"{r.change_date:<10}  {r.airport:<{a}}  {r.runway:<{w}}  {r.designator_implied + ' -> ' + r.next_designator:<19}"
+                f"  {r.magnetic_bearing_deg:12.2f}  {r.years_to_change:8.2f}"
             )
         if limit is not None and len(self.changes) > limit:
             out.append(f"... and {len(self.changes) - limit} more (see the output table)")
