@@ -1,0 +1,349 @@
+"""Scenario files: one TOML file that ties a study's inputs and options together.
+
+A scenario names the analysis date and field model, the routes to fly, the weak-field zone
+and error-budget settings, the compass bases and a swing, and the runways to check. Every key
+is validated once, here: an unknown key is rejected with a suggestion, a bad value with the
+key, the value and what is accepted. Relative file names are taken relative to the folder of
+the TOML file. The format is documented in ``data/demo/README.md`` (see the bundled
+``data/demo/scenario.toml``).
+
+Layout (every section is optional; a missing section's job is left out of the report)::
+
+    title = "..."                      # optional, free text
+    operator = "..."                   # optional, free text
+    analysis_date = "2026-12-02"       # required: ISO date or decimal year
+    model = "IGRF-14"                  # or a coefficient file (.shc / .COF)
+    allow_extrapolation = false
+
+    [routes]        spacing_nm, path, grid, alt, and [[routes.plan]] name, file[, alt]
+    [zones]         cap, edge_lat_deg, step_deg, blackout_nT, caution_nT, compare_date
+    [error_budget]  residual_field_nT, bank_angle_deg, acceleration_mps2, joint_limit_deg,
+                    limit_deg, slaving_rate_deg_per_min, turn_duration_s
+    [compass_bases] file, swing_date, tolerance_deg, resurvey_years, setting_out_lines_deg,
+                    setting_out_distances_m
+    [swing]         file, base, limit_deg
+    [runways]       file, horizon_years, boundary_band_deg
+
+Public API: :func:`load_scenario`, :class:`Scenario`, :data:`SCHEMA`, :data:`DEMO_SCENARIO`.
+
+>>> from headingref.scenario import load_scenario, DEMO_SCENARIO
+>>> sc = load_scenario(DEMO_SCENARIO)
+>>> sc.analysis_date, sc.routes["spacing_nm"] > 0
+('2026-12-02', True)
+"""
+
+from __future__ import annotations
+
+import difflib
+import math
+import os
+import tomllib
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any, NamedTuple
+
+from .errors import InputError
+from .notices import DATA_DIR
+
+__all__ = ["DEMO_SCENARIO", "SCHEMA", "Scenario", "load_scenario"]
+
+DEMO_SCENARIO: Path = DATA_DIR / "demo" / "scenario.toml"
+"""The bundled, invented demo scenario."""
+
+DEFAULT_MODEL_NAMES = ("igrf-14", "igrf14", "default")
+
+
+class Key(NamedTuple):
+    """One accepted key: its kind, default, bounds and a short description."""
+
+    kind: str  # str, date, bool, float, floats, choice, path, model, height, grid, plans
+    default: Any = None
+    required: bool = False
+    low: float | None = None
+    high: float | None = None
+    choices: tuple[str, ...] = ()
+    doc: str = ""
+    open_low: bool = False  # low bound excluded
+
+
+_POSITIVE = {"low": 0.0, "open_low": True}
+
+SCHEMA: dict[str, dict[str, Key]] = {
+    "": {
+        "title": Key("str", "headingref scenario", doc="report title"),
+        "operator": Key("str", "", doc="operator or organisation"),
+        "analysis_date": Key("date", required=True, doc="date of the study (ISO date or decimal year)"),
+        "model": Key("model", None, doc="IGRF-14 (default) or a coefficient file (.shc or WMM .COF)"),
+        "allow_extrapolation": Key("bool", False, doc="evaluate the model outside its validity (warns)"),
+    },
+    "routes": {
+        "spacing_nm": Key("float", 10.0, high=500.0, doc="sample spacing along legs, NM", **_POSITIVE),
+        "path": Key("choice", "geodesic", choices=("geodesic", "rhumb"), doc="path between waypoints"),
+        "grid": Key("grid", "polar", doc="grid for grid courses: polar, polar:LON, lcc:LAT1,LAT2,LON0, utm:ZONE, EPSG:NNNN"),
+        "alt": Key("height", 0.0, doc="altitude of waypoints that give none: km, or '35000 ft', 'FL350'"),
+        "plan": Key("plans", required=True, doc="the routes, as [[routes.plan]] tables with name and file"),
+    },
+    "routes.plan": {
+        "name": Key("str", required=True, doc="route name"),
+        "file": Key("path", required=True, doc="waypoint CSV: name, lat, lon[, alt]"),
+    },
+    "zones": {
+        "cap": Key("choice", "north", choices=("north", "south"), doc="polar cap to map"),
+        "edge_lat_deg": Key("float", 55.0, low=0.0, high=85.0, doc="latitude of the map's edge (absolute), deg"),
+        "step_deg": Key("float", 0.5, low=0.05, high=5.0, doc="grid step of the zone maps, deg"),
+        "blackout_nT": Key("float", 2000.0, high=60000.0, doc="H below this: blackout zone, nT", **_POSITIVE),
+        "caution_nT": Key("float", 6000.0, high=60000.0, doc="H below this: caution zone, nT", **_POSITIVE),
+        "compare_date": Key("date", None, doc="second date to show how the zone boundary moves"),
+    },
+    "error_budget": {
+        "residual_field_nT": Key("float", 50.0, low=0.0, high=20000.0, doc="uncompensated aircraft field, nT"),
+        "bank_angle_deg": Key("float", 25.0, low=0.0, high=80.0, doc="bank angle of a coordinated turn, deg"),
+        "acceleration_mps2": Key("float", 0.0, low=0.0, high=20.0, doc="along-track acceleration, m/s2"),
+        "joint_limit_deg": Key("float", 25.0, low=0.0, high=90.0, doc="detector universal-joint freedom, deg"),
+        "limit_deg": Key("float", 2.0, high=45.0, doc="acceptable combined heading error, deg", **_POSITIVE),
+        "slaving_rate_deg_per_min": Key("float", 3.0, high=600.0, doc="gyro slaving rate, deg/min", **_POSITIVE),
+        "turn_duration_s": Key("float", 60.0, high=3600.0, doc="duration of the turn, s", **_POSITIVE),
+    },
+    "compass_bases": {
+        "file": Key("path", required=True, doc="bases CSV: name, lat, lon, surveyed_variation, survey_date[, tolerance_deg, resurvey_years]"),
+        "swing_date": Key("date", None, doc="planned swing date (default: analysis_date)"),
+        "tolerance_deg": Key("float", 0.5, high=10.0, doc="default tolerance of the marked variation, deg", **_POSITIVE),
+        "resurvey_years": Key("float", None, high=50.0, doc="default fixed resurvey interval, years", **_POSITIVE),
+        "setting_out_lines_deg": Key("floats", [float(h) for h in range(0, 360, 30)], low=0.0, high=360.0,
+                                     doc="magnetic heading lines to set out, deg"),
+        "setting_out_distances_m": Key("floats", [50.0, 100.0], low=0.0, high=10000.0, doc="distances of marks from the centre, m"),
+    },
+    "swing": {
+        "file": Key("path", required=True, doc="readings CSV: magnetic_heading_deg, compass_reading_deg"),
+        "base": Key("str", "", doc="compass base the swing was made on (a name in the bases CSV)"),
+        "limit_deg": Key("float", 10.0, high=45.0, doc="largest acceptable residual deviation, deg", **_POSITIVE),
+    },
+    "runways": {
+        "file": Key("path", required=True, doc="runway CSV: airport, runway, lat, lon and end_lat, end_lon or true_bearing_deg"),
+        "horizon_years": Key("float", 10.0, low=0.0, high=50.0, doc="forecast horizon, years"),
+        "boundary_band_deg": Key("float", None, low=0.0, high=2.0, doc="band around a rounding boundary judged 'on the boundary', deg"),
+    },
+}
+"""Every accepted key by section ('' is the top level)."""
+
+SECTIONS = tuple(name for name in SCHEMA if name and "." not in name)
+
+
+@dataclass(frozen=True)
+class Scenario:
+    """A validated scenario.
+
+    Each section is a dict of its keys (defaults filled in), or None when the file has no such
+    section. Paths are absolute. ``model`` is None for IGRF-14 or the coefficient file's path.
+    """
+
+    path: Path
+    title: str
+    operator: str
+    analysis_date: str
+    decimal_year: float
+    model: Path | None
+    allow_extrapolation: bool
+    routes: dict | None = None
+    zones: dict | None = None
+    error_budget: dict | None = None
+    compass_bases: dict | None = None
+    swing: dict | None = None
+    runways: dict | None = None
+    raw: dict = field(default_factory=dict, repr=False)
+
+    @property
+    def folder(self) -> Path:
+        return self.path.parent
+
+    @property
+    def model_name(self) -> str:
+        return "IGRF-14" if self.model is None else self.model.name
+
+
+def _label(section: str, key: str) -> str:
+    return f"[{section}] {key}" if section else key
+
+
+def _suggest(word: str, options) -> str:
+    close = difflib.get_close_matches(word, list(options), n=1, cutoff=0.6)
+    return f" (did you mean {close[0]!r}?)" if close else ""
+
+
+def _check_unknown(table: dict, section: str, where: str) -> None:
+    accepted = SCHEMA[section]
+    extra = set(SECTIONS) if section == "" else set()
+    for key in table:
+        if key not in accepted and key not in extra:
+            names = sorted(accepted) + (sorted(f"[{s}]" for s in SECTIONS) if section == "" else [])
+            raise InputError(
+                f"{where}: unknown key {_label(section, key)!r}{_suggest(key, list(accepted) + list(extra))}; "
+                f"accepted{' in [' + section + ']' if section else ''}: {', '.join(names)}"
+            )
+
+
+def _number(value: Any, label: str, spec: Key, where: str) -> float:
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        raise InputError(f"{where}: {label} = {value!r} is not a number; {spec.doc}")
+    value = float(value)
+    if not math.isfinite(value):
+        raise InputError(f"{where}: {label} = {value!r} is not a finite number; {spec.doc}")
+    low_ok = spec.low is None or (value > spec.low if spec.open_low else value >= spec.low)
+    high_ok = spec.high is None or value <= spec.high
+    if not (low_ok and high_ok):
+        low = "above" if spec.open_low else "from"
+        raise InputError(f"{where}: {label} = {value:g} is out of range; accepted {low} {spec.low:g} to {spec.high:g} ({spec.doc})")
+    return value
+
+
+def _path(value: Any, label: str, spec: Key, where: str, folder: Path) -> Path:
+    if not isinstance(value, str) or not value.strip():
+        raise InputError(f"{where}: {label} = {value!r} must be a file name (relative to the scenario's folder); {spec.doc}")
+    path = Path(os.path.expanduser(value.strip()))
+    path = path if path.is_absolute() else folder / path
+    if not path.is_file():
+        raise InputError(f"{where}: {label} = {value!r}: no such file {str(path)!r}")
+    return path.resolve()
+
+
+def _value(value: Any, section: str, key: str, spec: Key, where: str, folder: Path) -> Any:
+    label = _label(section, key)
+    kind = spec.kind
+    if kind == "str":
+        if not isinstance(value, str):
+            raise InputError(f"{where}: {label} = {value!r} must be text in quotes; {spec.doc}")
+        return value.strip()
+    if kind == "bool":
+        if not isinstance(value, bool):
+            raise InputError(f"{where}: {label} = {value!r} must be true or false")
+        return value
+    if kind == "float":
+        return _number(value, label, spec, where)
+    if kind == "floats":
+        if not isinstance(value, list) or not value:
+            raise InputError(f"{where}: {label} = {value!r} must be a non-empty list of numbers, e.g. [0, 90, 180]; {spec.doc}")
+        return [_number(v, label, spec, where) for v in value]
+    if kind == "choice":
+        if not isinstance(value, str) or value.strip().lower() not in spec.choices:
+            raise InputError(f"{where}: {label} = {value!r} is not accepted; use one of {', '.join(spec.choices)}")
+        return value.strip().lower()
+    if kind == "date":
+        from .units import decimal_year
+
+        if isinstance(value, bool) or not isinstance(value, (str, int, float)) and not hasattr(value, "isoformat"):
+            raise InputError(f"{where}: {label} = {value!r} is not a date; give an ISO date such as \"2026-12-02\" or a decimal year")
+        text = value.isoformat() if hasattr(value, "isoformat") else value
+        try:
+            decimal_year(text)
+        except InputError as exc:
+            raise InputError(f"{where}: {label}: {exc}") from None
+        return str(text)
+    if kind == "height":
+        from .units import parse_height_km
+
+        if isinstance(value, bool):
+            raise InputError(f"{where}: {label} = {value!r} is not a height; give km, or text such as '35000 ft' or 'FL350'")
+        try:
+            return float(parse_height_km(value))
+        except InputError as exc:
+            raise InputError(f"{where}: {label}: {exc}") from None
+    if kind == "grid":
+        if not isinstance(value, str):
+            raise InputError(f"{where}: {label} = {value!r} must be text; {spec.doc}")
+        from .headings import parse_grid
+
+        try:
+            parse_grid(value)
+        except InputError as exc:
+            raise InputError(f"{where}: {label}: {exc}") from None
+        return value.strip()
+    if kind == "path":
+        return _path(value, label, spec, where, folder)
+    if kind == "model":
+        if not isinstance(value, str) or not value.strip():
+            raise InputError(f"{where}: {label} = {value!r}; give \"IGRF-14\" or a coefficient file name")
+        if value.strip().lower() in DEFAULT_MODEL_NAMES:
+            return None
+        return _path(value, label, spec, where, folder)
+    if kind == "plans":
+        if not isinstance(value, list) or not value or not all(isinstance(v, dict) for v in value):
+            raise InputError(f"{where}: {label} must be one or more [[routes.plan]] tables with name and file")
+        plans = [_section(v, "routes.plan", f"{where} [[routes.plan]] #{i + 1}", folder) for i, v in enumerate(value)]
+        names = [p["name"] for p in plans]
+        dupes = sorted({n for n in names if names.count(n) > 1})
+        if dupes:
+            raise InputError(f"{where}: route name(s) {', '.join(dupes)} appear more than once in [[routes.plan]]")
+        return plans
+    raise AssertionError(kind)  # pragma: no cover - schema kinds are fixed above
+
+
+def _section(table: Any, section: str, where: str, folder: Path) -> dict:
+    if not isinstance(table, dict):
+        raise InputError(f"{where}: [{section}] must be a table of keys, not {table!r}")
+    _check_unknown(table, section, where)
+    out = {}
+    for key, spec in SCHEMA[section].items():
+        if key in table:
+            out[key] = _value(table[key], section, key, spec, where, folder)
+        elif spec.required:
+            raise InputError(f"{where}: {_label(section, key)} is missing; {spec.doc}")
+        else:
+            out[key] = list(spec.default) if isinstance(spec.default, list) else spec.default
+    return out
+
+
+def load_scenario(path: str | os.PathLike) -> Scenario:
+    """Read and validate a scenario TOML file.
+
+    Parameters
+    ----------
+    path : str or path-like
+        The TOML file. Relative file names inside it are resolved against its folder.
+
+    Returns
+    -------
+    Scenario
+
+    Raises
+    ------
+    InputError
+        Unreadable or malformed TOML; unknown keys (with a suggestion); missing required keys;
+        values of the wrong type or out of range; files that do not exist.
+    """
+    path = Path(path).expanduser()
+    where = f"scenario {path.name}"
+    if not path.is_file():
+        raise InputError(f"{where}: no such file {str(path)!r}")
+    try:
+        raw = tomllib.loads(path.read_text(encoding="utf-8-sig"))
+    except UnicodeDecodeError:
+        raise InputError(f"{where}: not UTF-8 text; save the scenario as UTF-8") from None
+    except tomllib.TOMLDecodeError as exc:
+        raise InputError(f"{where}: not valid TOML ({exc})") from None
+    path = path.resolve()
+    folder = path.parent
+    top = _section({k: v for k, v in raw.items() if k not in SECTIONS}, "", where, folder)
+    from .units import decimal_year
+
+    sections = {}
+    for name in SECTIONS:
+        sections[name] = _section(raw[name], name, where, folder) if name in raw else None
+    zones = sections["zones"]
+    if zones and zones["blackout_nT"] >= zones["caution_nT"]:
+        raise InputError(
+            f"{where}: [zones] blackout_nT = {zones['blackout_nT']:g} must be below caution_nT = {zones['caution_nT']:g}"
+        )
+    bases = sections["compass_bases"]
+    if bases and bases["swing_date"] is None:
+        bases["swing_date"] = top["analysis_date"]
+    return Scenario(
+        path=path,
+        title=top["title"],
+        operator=top["operator"],
+        analysis_date=top["analysis_date"],
+        decimal_year=float(decimal_year(top["analysis_date"])),
+        model=top["model"],
+        allow_extrapolation=top["allow_extrapolation"],
+        raw=raw,
+        **sections,
+    )

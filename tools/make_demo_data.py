@@ -1,0 +1,153 @@
+"""Regenerate the invented demo scenario's CSV files in data/demo/ (one-off, for maintainers).
+
+Everything here is invented: the operator (Tern Meridian Air), the airfield names and their
+identifiers (first letter ``J``, which ICAO allocates to no region), the survey history of the
+compass bases (the model's variation at the survey date plus a small invented local offset) and
+the swing readings (an invented deviation curve plus Gaussian noise). Only the coordinates are
+real places. Invented en-route waypoints are named ``TM`` + letter + two digits. Runway geometry is placed with the field model (IGRF-14) so that, on the analysis
+date, each runway end sits where the demo wants it (well inside its designator, near a rounding
+boundary, or already past one). Run from the repository root::
+
+    PYTHONPATH=. python tools/make_demo_data.py
+"""
+
+from __future__ import annotations
+
+import csv
+from pathlib import Path
+
+import numpy as np
+import pyproj
+
+import headingref
+
+DEMO = Path(__file__).resolve().parent.parent / "data" / "demo"
+ANALYSIS_DATE = "2026-12-02"
+GEOD = pyproj.Geod(ellps="WGS84")
+
+# Invented names and identifiers at real high-latitude coordinates.
+AIRFIELDS = {
+    "JXKV": ("Kvitnes Strand", 69.6830, 18.9190),
+    "JXSF": ("Svalbrekka", 78.2460, 15.4660),
+    "JXRH": ("Ravnhogda", 76.5310, -68.7030),
+    "JXTB": ("Tallurut Bight", 69.1080, -105.1380),
+    "JXSB": ("Sikutaq Bay", 71.2850, -156.7660),
+    "JXLS": ("Lisovets Spit", 64.7350, 177.7410),
+    "JXBK": ("Birchkettle Field", 64.8150, -147.8560),
+    "JXQR": ("Qarsaq Ridge", 74.7170, -94.9690),
+    "JXNL": ("Nareslys", 82.5180, -62.2810),
+    "JXYV": ("Yelvik Sound", 67.0110, -50.7110),
+}
+
+ROUTES = {
+    "tm101_polar.csv": [  # across the polar cap, past the north dip pole
+        ("JXKV", None), ("JXSF", None), ("TMN88", (88.0, 120.0)), ("JXSB", None)],
+    "tm205_antimeridian.csv": [  # across the antimeridian
+        ("JXLS", None), ("TMB66", (66.0, -172.0)), ("JXBK", None)],
+    "tm310_archipelago.csv": [  # through the caution zone over the Canadian Arctic
+        ("JXBK", None), ("JXTB", None), ("JXQR", None), ("JXNL", None)],
+    "tm412_greenland.csv": [
+        ("JXYV", None), ("JXRH", None), ("JXSF", None), ("JXKV", None)],
+}
+
+# (airport, designator of this end, of the other end, magnetic azimuth wanted on the analysis
+#  date for this end, runway length m, lateral offset m of the threshold, note)
+RUNWAYS = [
+    ("JXKV", "19", "01", 186.0, 2450, 0, "well inside its designator"),
+    ("JXKV", "11", "29", 108.0, 1600, 900, "well inside its designator"),
+    ("JXSF", "28", "10", 277.3, 2480, 0, "2.3 deg from 275: becomes 27 within the horizon"),
+    ("JXRH", "25", "07", 245.3, 3050, 0, "0.3 deg from 245: becomes 24 within months"),
+    ("JXTB", "13", "31", 136.0, 1550, 0, "out of date: magnetic 136 is runway 14"),
+    ("JXSB", "07", "25", 73.0, 2130, 0, "2 deg from 075: becomes 08 within the horizon"),
+    ("JXLS", "01", "19", 14.6, 2500, 0, "0.4 deg from 015: becomes 02 soon"),
+    ("JXLS", "36", "18", 4.0, 1300, 1200, "across 355-005: 004 is runway 36"),
+    ("JXBK", "02L", "20R", 20.0, 3200, 0, "parallel pair, well inside"),
+    ("JXBK", "02R", "20L", 20.0, 2300, 210, "parallel pair, well inside"),
+    ("JXQR", "34", "16", 351.0, 1950, 0, "out of date: magnetic 351 is runway 35"),
+    ("JXNL", "31", "13", 305.02, 1830, 0, "on the 305 boundary (weak field)"),
+    ("JXYV", "09", "27", 93.0, 2810, 0, "well inside its designator"),
+]
+
+# Compass bases: (name, lat, lon, invented local offset deg, survey dates, tolerance, resurvey years)
+BASES = [
+    ("Svalbrekka compass base", 78.2431, 15.4905, 0.15, ["2016-06-14", "2019-06-20", "2022-07-05"], 0.5, 5),
+    ("Birchkettle compass base", 64.8112, -147.8712, -0.10, ["2018-05-09", "2021-05-10", "2024-05-14"], 1.0, 5),
+]
+
+# Invented deviation curve of the swung aircraft's standby compass, degrees (east positive).
+SWING_COEFFS = {"A": 0.5, "B": 6.5, "C": -5.0, "D": 0.8, "E": -0.4}
+SWING_NOISE_DEG = 0.2
+SWING_SEED = 7
+
+
+def variation(lat: float, lon: float, date: str) -> float:
+    return float(headingref.field(lat, lon, date).declination_deg.iloc[0])
+
+
+def write(path: Path, header: list[str], rows: list[list]) -> None:
+    path.parent.mkdir(parents=True, exist_ok=True)
+    with path.open("w", newline="", encoding="utf-8") as fh:
+        writer = csv.writer(fh, lineterminator="\n")
+        writer.writerow(header)
+        writer.writerows(rows)
+
+
+def make_routes() -> None:
+    for filename, points in ROUTES.items():
+        rows = []
+        for ident, coords in points:
+            lat, lon = coords if coords else AIRFIELDS[ident][1:]
+            rows.append([ident, f"{lat:.4f}", f"{lon:.4f}", "FL350"])
+        rows[0][3] = rows[-1][3] = "0 ft"  # departure and destination on the ground
+        write(DEMO / "routes" / filename, ["name", "lat", "lon", "alt"], rows)
+
+
+def make_runways() -> None:
+    rows = []
+    for ident, this, other, magnetic, length_m, offset_m, _note in RUNWAYS:
+        _, lat0, lon0 = AIRFIELDS[ident]
+        if offset_m:
+            lon0, lat0, _ = GEOD.fwd(lon0, lat0, 90.0, offset_m)
+        true_bearing = magnetic
+        for _ in range(3):  # variation at the runway midpoint depends (weakly) on the geometry
+            lon1, lat1, _ = GEOD.fwd(lon0, lat0, true_bearing, length_m)
+            lon_m, lat_m, _ = GEOD.fwd(lon0, lat0, true_bearing, length_m / 2)
+            true_bearing = magnetic + variation(lat_m, lon_m, ANALYSIS_DATE)
+        lon1, lat1, _ = GEOD.fwd(lon0, lat0, true_bearing, length_m)
+        a = [f"{lat0:.6f}", f"{((lon0 + 180) % 360) - 180:.6f}"]
+        b = [f"{lat1:.6f}", f"{((lon1 + 180) % 360) - 180:.6f}"]
+        rows.append([ident, this, *a, *b])
+        rows.append([ident, other, *b, *a])
+    write(DEMO / "runways.csv", ["airport", "runway", "lat", "lon", "end_lat", "end_lon"], rows)
+
+
+def make_bases() -> None:
+    rows = []
+    for name, lat, lon, offset, dates, tolerance, interval in BASES:
+        for date in dates:
+            value = round(variation(lat, lon, date) + offset, 1)
+            text = f"{abs(value):.1f}{'E' if value >= 0 else 'W'}"
+            rows.append([name, f"{lat:.4f}", f"{lon:.4f}", text, date, f"{tolerance:g}", f"{interval:g}"])
+    write(
+        DEMO / "compass_bases.csv",
+        ["name", "lat", "lon", "surveyed_variation", "survey_date", "tolerance_deg", "resurvey_years"],
+        rows,
+    )
+
+
+def make_swing() -> None:
+    rng = np.random.default_rng(SWING_SEED)
+    h = np.arange(0.0, 360.0, 30.0)
+    r = np.radians(h)
+    c = SWING_COEFFS
+    dev = c["A"] + c["B"] * np.sin(r) + c["C"] * np.cos(r) + c["D"] * np.sin(2 * r) + c["E"] * np.cos(2 * r)
+    reading = (h - dev + rng.normal(0.0, SWING_NOISE_DEG, h.size)) % 360.0
+    write(DEMO / "swing_readings.csv", ["magnetic_heading_deg", "compass_reading_deg"], [[f"{a:.0f}", f"{b:.1f}"] for a, b in zip(h, reading, strict=True)])
+
+
+if __name__ == "__main__":
+    make_routes()
+    make_runways()
+    make_bases()
+    make_swing()
+    print(f"demo data written to {DEMO}")
