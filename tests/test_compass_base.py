@@ -1,0 +1,218 @@
+"""Compass base upkeep against independent references.
+
+Sources named beside each check: geographiclib (Karney's geodesics, independent of PROJ) for the
+setting-out points; ppigrf (an independent IGRF-14 implementation) for the model change since the
+survey, the annual change and the drift date; closed forms for a synthetic constant-rate variation
+and for the convergence of a polar stereographic grid. All sites are invented.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import math
+
+import numpy as np
+import pandas as pd
+import ppigrf
+import pytest
+from geographiclib.geodesic import Geodesic
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from headingref.cli import main
+from headingref.compass_base import base_upkeep, make_site, read_sites_csv, setting_out
+from headingref.errors import DataQualityWarning, InputError
+from headingref.units import decimal_year, timestamp_from_decimal_year
+
+DATA = __import__("pathlib").Path(__file__).parent / "data"
+
+
+def constant_rate(start_deg: float, rate_deg_per_year: float, epoch: float):
+    """A synthetic variation D(t) = start + rate (t - epoch), the same everywhere."""
+
+    def variation(lat, lon, year, alt_km):
+        year = np.asarray(year, dtype=np.float64)
+        return start_deg + rate_deg_per_year * (year - epoch), np.full(year.shape, rate_deg_per_year)
+
+    return variation
+
+
+def ppigrf_declination(lat, lon, when: dt.datetime) -> float:
+    """Declination from ppigrf (geodetic east/north components), degrees east positive."""
+    be, bn, _ = ppigrf.igrf(lon, lat, 0.0, when)
+    return float(np.degrees(np.arctan2(np.ravel(be)[0], np.ravel(bn)[0])))
+
+
+def as_datetime(year: float) -> dt.datetime:
+    return timestamp_from_decimal_year(year).to_pydatetime()
+
+
+@pytest.mark.parametrize("rate", [0.1, -0.1])
+def test_resurvey_due_five_years_after_survey_at_point_one_degree_a_year(rate):
+    # Closed form: |0.1 deg/yr * t| exceeds 0.5 deg after t = 5 years; survey 2020-01-01 -> 2025-01-01.
+    site = make_site("Invented drift base", 65.0, -20.0, "10.0E", "2020-01-01")
+    table = base_upkeep([site], "2020-01-01", variation_function=constant_rate(3.0, rate, 2020.0))
+    due = pd.Timestamp(table.resurvey_due_date.iloc[0])
+    exact = timestamp_from_decimal_year(table.resurvey_due_year.iloc[0])
+    assert abs(exact - pd.Timestamp("2025-01-01")) < pd.Timedelta(days=1)
+    assert due == pd.Timestamp("2025-01-01")
+    assert table.resurvey_reason.iloc[0] == "variation drift"
+    assert table.variation_to_mark_deg.iloc[0] == 10.0
+
+
+def test_fixed_interval_comes_first_when_earlier():
+    site = make_site("Invented drift base", 65.0, -20.0, "10.0E", "2020-01-01", resurvey_years=3)
+    table = base_upkeep([site], "2020-01-01", variation_function=constant_rate(3.0, 0.1, 2020.0))
+    assert table.resurvey_due_date.iloc[0] == "2023-01-01"  # survey + 3 years
+    assert table.resurvey_reason.iloc[0] == "fixed interval"
+    assert table.marked_off_date.iloc[0] == "2025-01-01"  # drift date still reported
+
+
+def test_mark_rounding_and_change_since_survey():
+    # Surveyed 9.0 E on 2022-01-01, synthetic change 0.26 deg/yr: 2026-01-01 predicted 10.04 E,
+    # marked to the nearest 0.5 deg (common practice) 10.0 E, to the whole degree 10 E; record 10°02′ E.
+    site = make_site("Invented rounding base", 60.0, 10.0, "9°00′E", "2022-01-01")
+    variation = constant_rate(7.0, 0.26, 2022.0)
+    half = base_upkeep([site], "2026-01-01", variation_function=variation)
+    assert half.model_change_since_survey_deg.iloc[0] == pytest.approx(0.26 * 4, abs=1e-9)
+    assert half.predicted_variation_deg.iloc[0] == pytest.approx(10.04, abs=1e-9)
+    assert half.variation_to_mark.iloc[0] == "10°00′ E"
+    assert half.variation_record.iloc[0] == "10°02′ E"
+    assert half.annual_change.iloc[0] == "15.6′ E a year"  # 0.26 deg = 15.6 minutes
+    # Marked 10.0, drifting 0.26/yr: off by > 0.5 when predicted > 10.5: 2026 + 0.46/0.26 years.
+    assert half.marked_off_year.iloc[0] == pytest.approx(2026.0 + 0.46 / 0.26, abs=2e-6)
+    # Survey minus model at the survey date: 9.0 - 7.0.
+    assert half.survey_minus_model_deg.iloc[0] == pytest.approx(2.0, abs=1e-12)
+    whole = base_upkeep([site], "2026-01-01", variation_function=variation, mark_step_deg=1.0)
+    assert whole.variation_to_mark_deg.iloc[0] == 10.0
+
+
+def test_beyond_model_validity_unless_opted_in():
+    site = make_site("Invented slow base", 65.0, -20.0, "10.0E", "2020-01-01")
+    slow = constant_rate(3.0, 0.02, 2020.0)  # 0.5 deg takes 25 years: 2045, past IGRF-14 (2030)
+    table = base_upkeep([site], "2020-01-01", variation_function=slow)
+    assert table.marked_off_date.iloc[0] == ""
+    assert table.marked_off_note.iloc[0].startswith("beyond model validity")
+    assert table.resurvey_due_date.iloc[0] == ""
+    opted = base_upkeep([site], "2020-01-01", variation_function=slow, allow_extrapolation=True)
+    assert opted.marked_off_date.iloc[0] == "2045-01-01"  # closed form 2020 + 0.5/0.02
+
+
+def test_model_values_and_drift_date_against_ppigrf():
+    # Invented base in northern Norway; IGRF-14 evaluated independently by ppigrf.
+    site = make_site("Invented fjord base", 69.3, 16.1, "9.0E", "2024-06-01")
+    table = base_upkeep([site], "2026-12-02")
+    row = table.iloc[0]
+    survey, swing = dt.datetime(2024, 6, 1), dt.datetime(2026, 12, 2)
+    d_survey, d_swing = ppigrf_declination(69.3, 16.1, survey), ppigrf_declination(69.3, 16.1, swing)
+    assert row.model_variation_deg == pytest.approx(d_swing, abs=0.005)
+    assert row.model_change_since_survey_deg == pytest.approx(d_swing - d_survey, abs=0.002)
+    # Annual change: central difference of ppigrf over +-0.1 year, minutes per year.
+    y = decimal_year("2026-12-02")
+    fd = (ppigrf_declination(69.3, 16.1, as_datetime(y + 0.1)) - ppigrf_declination(69.3, 16.1, as_datetime(y - 0.1))) / 0.2
+    assert row.annual_change_min_per_year == pytest.approx(fd * 60.0, abs=0.1)
+    # Drift date: bisection on ppigrf's declination for |9.0 + D(t) - D(survey) - mark| = 0.5.
+    mark = row.variation_to_mark_deg
+
+    def excess(year):
+        return abs(9.0 + ppigrf_declination(69.3, 16.1, as_datetime(year)) - d_survey - mark) - 0.5
+
+    lo, hi = y, 2030.0
+    assert excess(lo) < 0 < excess(hi)
+    for _ in range(40):
+        mid = 0.5 * (lo + hi)
+        lo, hi = (lo, mid) if excess(mid) > 0 else (mid, hi)
+    assert abs(row.marked_off_year - hi) * 365.25 < 2.0  # within two days
+
+
+def test_setting_out_points_against_geographiclib():
+    site = make_site("Invented apron base", 69.3, 16.1, "9.0E", "2024-06-01")
+    table = base_upkeep([site], "2026-12-02")
+    variation = table.predicted_variation_deg.iloc[0]
+    points = setting_out(table, lines_deg=[0, 30, 135, 330], distances_m=[25.0, 100.0, 5000.0], grid="polar")
+    assert len(points) == 12
+    for _, p in points.iterrows():
+        # Magnetic to true: east variation is added (true = magnetic + variation), common practice.
+        assert p.true_azimuth_deg == pytest.approx((p.magnetic_heading_deg + variation) % 360.0, abs=1e-9)
+        ref = Geodesic.WGS84.Direct(69.3, 16.1, p.true_azimuth_deg, p.distance_m)  # geographiclib
+        assert p.lat_deg == pytest.approx(ref["lat2"], abs=1e-9)
+        assert p.lon_deg == pytest.approx(ref["lon2"], abs=1e-9)
+        # Polar stereographic on Greenwich: convergence = longitude (closed form), grid = true - convergence.
+        assert p.convergence_deg == pytest.approx(16.1, abs=1e-6)
+        assert p.grid_azimuth_deg == pytest.approx((p.true_azimuth_deg - 16.1) % 360.0, abs=1e-6)
+    assert list(points.line[:3]) == ["000", "000", "000"]
+
+
+@settings(max_examples=50, deadline=None)
+@given(value=st.floats(min_value=-60.0, max_value=60.0, allow_nan=False), style=st.sampled_from(["suffix", "prefix", "sign"]))
+def test_surveyed_variation_forms(value, style):
+    # The trade's forms: 12.5W, E3.2, -12.5 (east positive).
+    value = round(value, 4)  # typed values carry a few decimals, never exponents
+    letter = "E" if value >= 0 else "W"
+    text = {"suffix": f"{abs(value):.4f}{letter}", "prefix": f"{letter}{abs(value):.4f}", "sign": f"{value:.4f}"}[style]
+    site = make_site("Invented", 60.0, 10.0, text, "2020-01-01")
+    assert site.surveyed_variation_deg == pytest.approx(value, abs=1e-12)
+
+
+def test_degree_minute_variation():
+    assert make_site("Invented", 60.0, 10.0, "12°30′W", "2020-01-01").surveyed_variation_deg == -12.5
+
+
+# ------------------------------------------------------------------------------ bad input
+
+
+def test_future_survey_date_names_the_row(tmp_path):
+    path = tmp_path / "sites.csv"
+    path.write_text(
+        "name,lat,lon,surveyed_variation,survey_date\nInvented A,60,10,3E,2020-01-01\nInvented B,61,11,3E,2031-05-01\n",
+        encoding="utf-8",
+    )
+    with pytest.raises(InputError, match="sites.csv line 3: survey date 2031-05-01 is in the future"):
+        read_sites_csv(path, today="2026-12-02")
+
+
+def test_unparseable_variation_names_the_row(tmp_path):
+    path = tmp_path / "sites.csv"
+    path.write_text("name,lat,lon,surveyed_variation,survey_date\nInvented A,60,10,3 east-ish,2020-01-01\n", encoding="utf-8")
+    with pytest.raises(InputError, match="sites.csv line 2: variation '3 east-ish' is not understood"):
+        read_sites_csv(path)
+
+
+def test_other_bad_inputs():
+    with pytest.raises(InputError, match="tolerance"):
+        make_site("Invented", 60, 10, "3E", "2020-01-01", tolerance_deg=-1)
+    site = make_site("Invented", 60, 10, "3E", "2024-01-01")
+    with pytest.raises(InputError, match="before the survey"):
+        base_upkeep([site], "2023-01-01")
+    with pytest.raises(InputError, match="lines"):
+        setting_out(base_upkeep([site], "2026-01-01"), lines_deg=[0, 400])
+    with pytest.raises(InputError, match="grid"):
+        setting_out(base_upkeep([site], "2026-01-01"), grid="mercatorish")
+
+
+def test_weak_field_site_warns_and_cautions():
+    # Near the north dip pole (Canadian Arctic, invented base): horizontal field well under 6000 nT.
+    site = make_site("Invented high base", 84.0, -130.0, "20E", "2024-01-01")
+    with pytest.warns(DataQualityWarning, match="weak-horizontal-field"):
+        table = base_upkeep([site], "2026-01-01")
+    assert table.zone.iloc[0] in ("caution", "blackout")
+    assert "compass unreliable" in table.caution.iloc[0]
+    assert table.declination_uncertainty_deg.iloc[0] > 1.0  # WMM error model: sqrt(0.26^2 + (5417/H)^2), H < 6000 nT
+
+
+def test_cli_base_writes_tables(tmp_path, capsys):
+    out, lines = tmp_path / "upkeep.csv", tmp_path / "lines.csv"
+    code = main(["base", "--input", str(DATA / "base_sites.csv"), "--date", "2026-12-02", "--grid", "polar",
+                 "--output", str(out), "--setting-out", str(lines)])
+    assert code == 0
+    upkeep = pd.read_csv(out)
+    assert len(upkeep) == 3 and {"variation_to_mark", "resurvey_due_date", "zone"} <= set(upkeep.columns)
+    assert len(pd.read_csv(lines)) == 3 * 12 * 2  # 3 sites, 12 lines, 2 distances
+    assert "survey on the site governs" in capsys.readouterr().out
+    # Single site from options; a future survey date fails with exit status 2 and a one-line message.
+    code = main(["base", "--lat", "60", "--lon", "10", "--surveyed-variation", "3E", "--survey-date", "2099-01-01",
+                 "--date", "2026-12-02"])
+    assert code == 2
+    err = capsys.readouterr().err.strip()
+    assert "survey date 2099-01-01 is in the future" in err and len(err.splitlines()) == 1
+    assert math.isfinite(upkeep.declination_uncertainty_deg.iloc[0])
