@@ -92,7 +92,7 @@ class Model:
             f"date {bad:.4f} is outside {self.name}'s validity {self.valid_from:g} to {self.valid_to:g}"
         )
         if not allow_extrapolation:
-            raise DateRangeError(message + "; choose a date inside it, or opt in to extrapolation")
+            raise DateRangeError(message + "; choose a date inside it, or opt in to extrapolation (allow_extrapolation=True, CLI --extrapolate)")
         warnings.warn(message + "; extrapolating the nearest interval linearly", ExtrapolationWarning, stacklevel=3)
 
     def locate(self, years: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
