@@ -191,7 +191,8 @@ def worst_tilt_heading_error_deg(
     inc = np.radians(np.asarray(inclination_deg, dtype=np.float64))
     th = np.radians(np.asarray(tilt_pitch_deg, dtype=np.float64))
     ph = np.radians(np.asarray(tilt_roll_deg, dtype=np.float64))
-    inc, th, ph = np.broadcast_arrays(inc, th, ph)
+    shape = np.broadcast_shapes(inc.shape, th.shape, ph.shape)
+    # tilt terms keep their own (often scalar) shape; only the arithmetic below broadcasts
     ct, st, cr, sr = np.cos(th), np.sin(th), np.cos(ph), np.sin(ph)
     cos_tau = ct * cr
     sin_tau = np.sqrt(np.maximum(sr**2 + (cr * st) ** 2, 0.0))
@@ -200,27 +201,26 @@ def worst_tilt_heading_error_deg(
     offset = beta + gamma
     c_inc, s_inc = np.cos(inc), np.sin(inc)
     k_c = s_inc * sin_tau  # k * cos(I), k = tan(I) sin(tau)
+    c_inc2 = c_inc * c_inc
     # quadratic in s = sin(chi), multiplied through by cos^2(I) to stay finite at I = 90
-    qa = sin_tau**2 * c_inc**2
+    qa = sin_tau**2 * c_inc2
     qb = k_c * c_inc * (2.0 * cos_tau - 1.0)
-    qc = (cos_tau - 1.0) * c_inc**2 - k_c**2
-    disc = np.maximum(qb**2 - 4.0 * qa * qc, 0.0)
+    qc = (cos_tau - 1.0) * c_inc2 - k_c * k_c
     with np.errstate(divide="ignore", invalid="ignore"):
-        root = np.sqrt(disc)
-        s1 = np.clip((-qb + root) / (2.0 * qa), -1.0, 1.0)
-        s2 = np.clip((-qb - root) / (2.0 * qa), -1.0, 1.0)
-    worst = np.zeros(inc.shape)
-    worst_chi = np.full(inc.shape, np.nan)
-    for s in (s1, s2):
-        for sign in (1.0, -1.0):
-            chi = np.arctan2(s, sign * np.sqrt(1.0 - s**2))
-            apparent = np.arctan2(c_inc * (cos_tau * np.sin(chi)) - s_inc * sin_tau, c_inc * np.cos(chi))
-            err = np.abs(_wrap180(np.degrees(apparent - chi + offset)))
-            better = np.nan_to_num(err, nan=-1.0) > worst
-            worst = np.where(better, err, worst)
-            worst_chi = np.where(better, chi, worst_chi)
+        root = np.sqrt(np.maximum(qb * qb - 4.0 * qa * qc, 0.0))
+        s_roots = np.clip(np.stack(np.broadcast_arrays((-qb + root) / (2.0 * qa), (-qb - root) / (2.0 * qa))), -1.0, 1.0)
+    s_roots = np.nan_to_num(s_roots, nan=0.0)
+    c_roots = np.sqrt(1.0 - s_roots * s_roots)
+    s_all = np.concatenate([s_roots, s_roots])  # candidates: (s, +c), (s, -c) for both roots
+    c_all = np.concatenate([c_roots, -c_roots])
+    chi = np.arctan2(s_all, c_all)
+    apparent = np.arctan2(c_inc * cos_tau * s_all - s_inc * sin_tau, c_inc * c_all)
+    err = np.abs(_wrap180(np.degrees(apparent - chi + offset)))
+    pick = np.argmax(err, axis=0)
+    worst = np.take_along_axis(err, pick[None], axis=0)[0]
+    worst_chi = np.take_along_axis(chi, pick[None], axis=0)[0]
     reversed_ = sin_tau * np.abs(s_inc) >= cos_tau * np.abs(c_inc)
-    no_tilt = sin_tau < 1e-12
+    no_tilt = np.broadcast_to(sin_tau < 1e-12, shape)
     worst = np.where(reversed_ & ~no_tilt, 180.0, np.where(no_tilt, 0.0, worst))
     if not return_heading:
         return worst
