@@ -10,13 +10,16 @@ it includes the local crustal field, which the main-field model omits. The model
   variation to mark on the base rounded to ``mark_step_deg`` (default 0.5 degree, common
   practice for a base's marking) and the value for the record, to the nearest minute (common
   practice);
-- the first date on which the predicted variation will differ from the marked value by more than
-  the tolerance (default 0.5 degree): found by stepping the model forward in 1/24-year steps from
-  the swing date, then a safeguarded Newton/bisection on the crossing using the model's analytic
-  annual rate (to better than 1e-6 year). Past the model's validity the answer is
-  'beyond model validity' unless extrapolation is opted in;
-- the resurvey due date: that date, or ``survey date + resurvey_years`` if an interval is given,
-  whichever is earlier;
+- the first date on which the model says the variation marked at the last survey (the surveyed
+  value, painted on the base) is off by more than the tolerance (default 0.5 degree), and likewise
+  for the variation to mark on the swing date if the base is re-marked from the model: found by
+  stepping the model forward in 1/24-year steps, then a safeguarded Newton/bisection on the
+  crossing using the model's analytic annual rate (to better than 1e-6 year). Past the model's
+  validity the answer is 'beyond model validity' unless extrapolation is opted in;
+- the resurvey due date: the survey's drift date, or ``survey date + resurvey_years`` if an
+  interval is given, whichever is earlier; a base due on or before the swing date is overdue;
+- survey history: several rows with one name are that base's surveys; the latest is in force and
+  the change observed since the first one is compared with the model's change;
 - the declination uncertainty (WMM error model) and the zone (normal / caution / blackout), with
   the caution that local crustal anomalies are not in the model;
 - :func:`setting_out`: for each marked magnetic heading line, its true and grid azimuth and the
@@ -37,10 +40,12 @@ Public API
 :data:`SITE_CAUTION`.
 
 >>> from headingref.compass_base import make_site, base_upkeep, setting_out
->>> site = make_site("North apron base", 69.3, 16.1, "9°00′E", "2024-06-01")
+>>> site = make_site("North apron base", 69.3, 16.1, "9°30′E", "2026-06-01")
 >>> table = base_upkeep([site], "2026-12-02")
->>> table.loc[0, "variation_to_mark"]  # 9.0 + model change since survey, to the nearest 0.5 deg
+>>> table.loc[0, "variation_to_mark"]  # 9.5 + model change since survey, to the nearest 0.5 deg
 '9°30′ E'
+>>> table.loc[0, "resurvey_due_date"][:4]  # the model moves it about 0.26 deg a year
+'2028'
 >>> lines = setting_out(table, lines_deg=[0, 90], distances_m=[50.0])
 >>> list(lines.line)
 ['000', '090']
@@ -48,6 +53,7 @@ Public API
 
 from __future__ import annotations
 
+import dataclasses
 import math
 import os
 import warnings
@@ -102,7 +108,8 @@ class Site:
     """One compass base: position, survey and upkeep parameters.
 
     ``surveyed_variation_deg`` east positive; ``survey_year`` decimal year; ``alt_km`` above the
-    WGS84 ellipsoid; ``resurvey_years`` NaN when no fixed interval; ``row`` names the source row.
+    WGS84 ellipsoid; ``resurvey_years`` NaN when no fixed interval; ``row`` names the source row;
+    ``history`` holds earlier surveys of the same base as ``(survey_year, surveyed_variation_deg)``.
     """
 
     name: str
@@ -114,6 +121,7 @@ class Site:
     resurvey_years: float = math.nan
     alt_km: float = 0.0
     row: str = ""
+    history: tuple[tuple[float, float], ...] = ()
 
 
 def _now_year() -> float:
@@ -169,8 +177,10 @@ def read_sites_csv(path: str | os.PathLike, tolerance_deg: float | None = None, 
     """Read sites from a CSV: ``name, lat, lon, surveyed_variation, survey_date`` and optional
     ``tolerance_deg, resurvey_years, alt`` (alt in km, or with a unit: ``35 m``).
 
-    Empty optional cells take ``tolerance_deg`` / ``resurvey_years`` given here. Every error names
-    the file and line.
+    Empty optional cells take ``tolerance_deg`` / ``resurvey_years`` given here. Several rows with
+    one name are that base's survey history: the latest survey is returned, with the earlier ones
+    in ``Site.history`` (the rows must give the same position, within 0.001 degree, and different
+    dates). Every error names the file and line.
     """
     from .io import read_table
 
@@ -208,7 +218,29 @@ def read_sites_csv(path: str | os.PathLike, tolerance_deg: float | None = None, 
                 **extra,
             )
         )
-    return sites
+    return _merge_history(sites)
+
+
+def _merge_history(sites: list[Site]) -> list[Site]:
+    """One Site per name: the latest survey, with the earlier ones as history."""
+    by_name: dict[str, list[Site]] = {}
+    for site in sites:
+        by_name.setdefault(site.name, []).append(site)
+    merged = []
+    for name, group in by_name.items():
+        group.sort(key=lambda s: s.survey_year)
+        latest = group[-1]
+        for earlier, later in zip(group, group[1:], strict=False):
+            if abs(earlier.lat_deg - later.lat_deg) > 1e-3 or abs(earlier.lon_deg - later.lon_deg) > 1e-3:
+                raise InputError(
+                    f"{later.row}: base {name!r} is at a different position from {earlier.row}; "
+                    "rows with one name are one base's survey history, give each base its own name"
+                )
+            if earlier.survey_year == later.survey_year:
+                raise InputError(f"{later.row}: base {name!r} has a second survey on the same date as {earlier.row}")
+        history = tuple((s.survey_year, s.surveyed_variation_deg) for s in group[:-1])
+        merged.append(dataclasses.replace(latest, history=history))
+    return merged
 
 
 def model_variation_function(model=None, allow_extrapolation: bool = False) -> VariationFunction:
@@ -277,7 +309,9 @@ def _first_departure(
 
 
 def _date_text(year: float) -> str:
-    return "" if not math.isfinite(year) else f"{timestamp_from_decimal_year(year):%Y-%m-%d}"
+    """The calendar day a decimal year falls in ('' for NaN); rounded to the second first so that
+    a date converted to a decimal year and back keeps its day."""
+    return "" if not math.isfinite(year) else f"{timestamp_from_decimal_year(year).round('s'):%Y-%m-%d}"
 
 
 def _annual_change_text(minutes_per_year: float) -> str:
@@ -285,6 +319,12 @@ def _annual_change_text(minutes_per_year: float) -> str:
         return "undefined"
     letter = "E" if minutes_per_year >= 0 else "W"
     return f"{abs(minutes_per_year):.1f}′ {letter} a year"
+
+
+def _not_found_note(allow_extrapolation: bool, end_year: float) -> str:
+    if allow_extrapolation:
+        return f"not within {EXTRAPOLATION_HORIZON_YEARS:g} years past the model's validity"
+    return f"beyond model validity (not before {_date_text(end_year)})"
 
 
 def base_upkeep(
@@ -301,7 +341,8 @@ def base_upkeep(
     Parameters
     ----------
     sites : Site or sequence of Site
-        From :func:`make_site` or :func:`read_sites_csv`.
+        From :func:`make_site` or :func:`read_sites_csv` (the latest survey of each base, with its
+        earlier surveys in ``Site.history``).
     swing_date : date-like or decimal year
         The planned swing; not before any site's survey.
     model : Model, path or None
@@ -316,14 +357,25 @@ def base_upkeep(
 
     Returns
     -------
-    pandas.DataFrame, one row per site, columns: ``name, row, lat_deg, lon_deg, alt_km,
-    survey_date, swing_date, surveyed_variation_deg, model_variation_at_survey_deg,
-    survey_minus_model_deg, model_variation_deg, annual_change_min_per_year, annual_change,
-    model_change_since_survey_deg, predicted_variation_deg, variation_to_mark_deg,
-    variation_to_mark, variation_record, tolerance_deg, marked_off_date, marked_off_note,
-    resurvey_years, resurvey_due_date, resurvey_reason, horizontal_nT,
-    declination_uncertainty_deg, zone, caution``. Dates as ``YYYY-MM-DD`` text; decimal years in
-    ``marked_off_year`` and ``resurvey_due_year``.
+    pandas.DataFrame, one row per site. Columns:
+
+    - ``name, row, lat_deg, lon_deg, alt_km, survey_date, swing_date, surveys``;
+    - ``surveyed_variation_deg, model_variation_at_survey_deg, survey_minus_model_deg`` (the site's
+      offset from the model: local anomaly plus model and survey error);
+    - ``model_variation_deg, annual_change_min_per_year`` (east positive), ``annual_change`` (text),
+      ``model_change_since_survey_deg``;
+    - ``predicted_variation_deg`` (surveyed + model change), ``variation_to_mark_deg`` and
+      ``variation_to_mark`` (rounded to ``mark_step_deg``), ``variation_record`` (nearest minute);
+    - ``tolerance_deg``; ``survey_off_year/date``: first date the variation marked at the survey
+      (the surveyed value) is off by more than the tolerance; ``mark_off_year/date``: the same for
+      the variation to mark on the swing date; ``*_note`` says why a date is missing;
+    - ``resurvey_years, resurvey_due_year, resurvey_due_date, resurvey_reason`` (the earlier of the
+      survey's drift date and survey + interval), ``overdue`` (due on or before the swing date);
+    - ``history_minus_model_deg``: change observed between the first and the latest survey minus
+      the model's change over the same time (NaN with one survey);
+    - ``horizontal_nT, declination_uncertainty_deg, zone, caution``.
+
+    Dates are ``YYYY-MM-DD`` text ('' when none), decimal years in the ``*_year`` columns.
     """
     from .field import field
     from .model import load_model
@@ -343,9 +395,10 @@ def base_upkeep(
                 f"{site.row}: swing date {_date_text(swing_year)} is before the survey of {_date_text(site.survey_year)}; "
                 "give a swing date on or after the survey"
             )
-        if site.survey_year < loaded.valid_from and not allow_extrapolation:
+        first = min([site.survey_year] + [year for year, _ in site.history])
+        if first < loaded.valid_from and not allow_extrapolation:
             raise InputError(
-                f"{site.row}: survey date {_date_text(site.survey_year)} is before {loaded.name}'s validity "
+                f"{site.row}: survey date {_date_text(first)} is before {loaded.name}'s validity "
                 f"({loaded.valid_from:g}); opt in to extrapolation or give a later survey"
             )
     variation = variation_function or model_variation_function(loaded, allow_extrapolation)
@@ -366,19 +419,20 @@ def base_upkeep(
         predicted = site.surveyed_variation_deg + change
         marked = _round_to(predicted, mark_step_deg)
         offset = site.surveyed_variation_deg - float(dec_survey[i])
-        off_year = _first_departure(variation, site, offset, marked, swing_year, end_year)
-        note = ""
-        if not math.isfinite(off_year):
-            note = (
-                f"beyond model validity (not before {_date_text(end_year)})"
-                if not allow_extrapolation
-                else f"not within {EXTRAPOLATION_HORIZON_YEARS:g} years past the model's validity"
-            )
-        elif off_year == swing_year:
-            note = "already off by more than the tolerance on the swing date (mark step too coarse for the tolerance)"
+        survey_off = _first_departure(variation, site, offset, site.surveyed_variation_deg, site.survey_year, end_year)
+        mark_off = _first_departure(variation, site, offset, marked, swing_year, end_year)
+        survey_note = "" if math.isfinite(survey_off) else _not_found_note(allow_extrapolation, end_year)
+        mark_note = "" if math.isfinite(mark_off) else _not_found_note(allow_extrapolation, end_year)
+        if math.isfinite(mark_off) and mark_off == swing_year:
+            mark_note = "already off by more than the tolerance on the swing date (mark step too coarse for the tolerance)"
         interval_year = site.survey_year + site.resurvey_years if math.isfinite(site.resurvey_years) else math.nan
-        candidates = [(y, why) for y, why in ((off_year, "variation drift"), (interval_year, "fixed interval")) if math.isfinite(y)]
+        candidates = [(y, why) for y, why in ((survey_off, "variation drift"), (interval_year, "fixed interval")) if math.isfinite(y)]
         due_year, reason = min(candidates) if candidates else (math.nan, "no due date within model validity")
+        history = math.nan
+        if site.history:
+            first_year, first_value = min(site.history)
+            first_model, _ = variation(lat[i : i + 1], lon[i : i + 1], np.array([first_year]), alt[i : i + 1])
+            history = (site.surveyed_variation_deg - first_value) - (float(dec_survey[i]) - float(np.asarray(first_model)[0]))
         uncertainty = float(here.declination_uncertainty_deg.iloc[i])
         zone = str(here.zone.iloc[i])
         caution = SITE_CAUTION
@@ -398,6 +452,7 @@ def base_upkeep(
                 "alt_km": site.alt_km,
                 "survey_date": _date_text(site.survey_year),
                 "swing_date": _date_text(swing_year),
+                "surveys": 1 + len(site.history),
                 "surveyed_variation_deg": site.surveyed_variation_deg,
                 "model_variation_at_survey_deg": float(dec_survey[i]),
                 "survey_minus_model_deg": offset,
@@ -410,13 +465,18 @@ def base_upkeep(
                 "variation_to_mark": format_variation(marked),
                 "variation_record": format_variation(predicted),
                 "tolerance_deg": site.tolerance_deg,
-                "marked_off_year": off_year,
-                "marked_off_date": _date_text(off_year),
-                "marked_off_note": note,
+                "survey_off_year": survey_off,
+                "survey_off_date": _date_text(survey_off),
+                "survey_off_note": survey_note,
+                "mark_off_year": mark_off,
+                "mark_off_date": _date_text(mark_off),
+                "mark_off_note": mark_note,
                 "resurvey_years": site.resurvey_years,
                 "resurvey_due_year": due_year,
                 "resurvey_due_date": _date_text(due_year),
                 "resurvey_reason": reason,
+                "overdue": bool(math.isfinite(due_year) and due_year <= swing_year),
+                "history_minus_model_deg": history,
                 "horizontal_nT": float(here.horizontal_nT.iloc[i]),
                 "declination_uncertainty_deg": uncertainty,
                 "zone": zone,
@@ -427,6 +487,9 @@ def base_upkeep(
     if (table.zone != "normal").any():
         names = ", ".join(table.name[table.zone != "normal"])
         warnings.warn(f"compass base(s) {names} lie in a weak-horizontal-field zone; see the caution column", DataQualityWarning, stacklevel=2)
+    if table.overdue.any():
+        names = ", ".join(table.name[table.overdue])
+        warnings.warn(f"compass base(s) {names} fall due for resurvey on or before the swing date", DataQualityWarning, stacklevel=2)
     table.attrs["caution"] = SITE_CAUTION
     return table
 

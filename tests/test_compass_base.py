@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import datetime as dt
 import math
+import warnings
 
 import numpy as np
 import pandas as pd
@@ -48,16 +49,19 @@ def as_datetime(year: float) -> dt.datetime:
 
 
 @pytest.mark.parametrize("rate", [0.1, -0.1])
-def test_resurvey_due_five_years_after_survey_at_point_one_degree_a_year(rate):
-    # Closed form: |0.1 deg/yr * t| exceeds 0.5 deg after t = 5 years; survey 2020-01-01 -> 2025-01-01.
+@pytest.mark.parametrize("swing", ["2020-01-01", "2023-03-01", "2026-12-02"])
+def test_resurvey_due_five_years_after_survey_at_point_one_degree_a_year(rate, swing):
+    # Closed form: |0.1 deg/yr * t| exceeds 0.5 deg after t = 5 years; survey 2020-01-01 -> 2025-01-01,
+    # whatever the swing date.
     site = make_site("Invented drift base", 65.0, -20.0, "10.0E", "2020-01-01")
-    table = base_upkeep([site], "2020-01-01", variation_function=constant_rate(3.0, rate, 2020.0))
-    due = pd.Timestamp(table.resurvey_due_date.iloc[0])
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", DataQualityWarning)  # overdue on the 2026 swing date
+        table = base_upkeep([site], swing, variation_function=constant_rate(3.0, rate, 2020.0))
     exact = timestamp_from_decimal_year(table.resurvey_due_year.iloc[0])
     assert abs(exact - pd.Timestamp("2025-01-01")) < pd.Timedelta(days=1)
-    assert due == pd.Timestamp("2025-01-01")
+    assert table.resurvey_due_date.iloc[0] == "2025-01-01"
     assert table.resurvey_reason.iloc[0] == "variation drift"
-    assert table.variation_to_mark_deg.iloc[0] == 10.0
+    assert table.overdue.iloc[0] == (swing > "2025-01-01")
 
 
 def test_fixed_interval_comes_first_when_earlier():
@@ -65,7 +69,7 @@ def test_fixed_interval_comes_first_when_earlier():
     table = base_upkeep([site], "2020-01-01", variation_function=constant_rate(3.0, 0.1, 2020.0))
     assert table.resurvey_due_date.iloc[0] == "2023-01-01"  # survey + 3 years
     assert table.resurvey_reason.iloc[0] == "fixed interval"
-    assert table.marked_off_date.iloc[0] == "2025-01-01"  # drift date still reported
+    assert table.survey_off_date.iloc[0] == "2025-01-01"  # drift date still reported
 
 
 def test_mark_rounding_and_change_since_survey():
@@ -80,7 +84,9 @@ def test_mark_rounding_and_change_since_survey():
     assert half.variation_record.iloc[0] == "10°02′ E"
     assert half.annual_change.iloc[0] == "15.6′ E a year"  # 0.26 deg = 15.6 minutes
     # Marked 10.0, drifting 0.26/yr: off by > 0.5 when predicted > 10.5: 2026 + 0.46/0.26 years.
-    assert half.marked_off_year.iloc[0] == pytest.approx(2026.0 + 0.46 / 0.26, abs=2e-6)
+    assert half.mark_off_year.iloc[0] == pytest.approx(2026.0 + 0.46 / 0.26, abs=2e-6)
+    # The surveyed 9.0 E itself was off by > 0.5 when the change passed 0.5: 2022 + 0.5/0.26.
+    assert half.survey_off_year.iloc[0] == pytest.approx(2022.0 + 0.5 / 0.26, abs=2e-6)
     # Survey minus model at the survey date: 9.0 - 7.0.
     assert half.survey_minus_model_deg.iloc[0] == pytest.approx(2.0, abs=1e-12)
     whole = base_upkeep([site], "2026-01-01", variation_function=variation, mark_step_deg=1.0)
@@ -91,17 +97,18 @@ def test_beyond_model_validity_unless_opted_in():
     site = make_site("Invented slow base", 65.0, -20.0, "10.0E", "2020-01-01")
     slow = constant_rate(3.0, 0.02, 2020.0)  # 0.5 deg takes 25 years: 2045, past IGRF-14 (2030)
     table = base_upkeep([site], "2020-01-01", variation_function=slow)
-    assert table.marked_off_date.iloc[0] == ""
-    assert table.marked_off_note.iloc[0].startswith("beyond model validity")
+    assert table.survey_off_date.iloc[0] == "" and table.mark_off_date.iloc[0] == ""
+    assert table.survey_off_note.iloc[0].startswith("beyond model validity")
     assert table.resurvey_due_date.iloc[0] == ""
     opted = base_upkeep([site], "2020-01-01", variation_function=slow, allow_extrapolation=True)
-    assert opted.marked_off_date.iloc[0] == "2045-01-01"  # closed form 2020 + 0.5/0.02
+    assert opted.survey_off_date.iloc[0] == "2045-01-01"  # closed form 2020 + 0.5/0.02
 
 
 def test_model_values_and_drift_date_against_ppigrf():
     # Invented base in northern Norway; IGRF-14 evaluated independently by ppigrf.
     site = make_site("Invented fjord base", 69.3, 16.1, "9.0E", "2024-06-01")
-    table = base_upkeep([site], "2026-12-02")
+    with pytest.warns(DataQualityWarning, match="fall due for resurvey"):  # 9.0 E went stale in 2026
+        table = base_upkeep([site], "2026-12-02")
     row = table.iloc[0]
     survey, swing = dt.datetime(2024, 6, 1), dt.datetime(2026, 12, 2)
     d_survey, d_swing = ppigrf_declination(69.3, 16.1, survey), ppigrf_declination(69.3, 16.1, swing)
@@ -111,18 +118,20 @@ def test_model_values_and_drift_date_against_ppigrf():
     y = decimal_year("2026-12-02")
     fd = (ppigrf_declination(69.3, 16.1, as_datetime(y + 0.1)) - ppigrf_declination(69.3, 16.1, as_datetime(y - 0.1))) / 0.2
     assert row.annual_change_min_per_year == pytest.approx(fd * 60.0, abs=0.1)
-    # Drift date: bisection on ppigrf's declination for |9.0 + D(t) - D(survey) - mark| = 0.5.
-    mark = row.variation_to_mark_deg
+    # Drift dates: bisection on ppigrf's declination for |9.0 + D(t) - D(survey) - marked| = 0.5, with
+    # marked = 9.0 (the surveyed value) from the survey date, and marked = the value to mark from the swing date.
+    for column, marked, start in (("survey_off_year", 9.0, decimal_year("2024-06-01")),
+                                  ("mark_off_year", row.variation_to_mark_deg, y)):
 
-    def excess(year):
-        return abs(9.0 + ppigrf_declination(69.3, 16.1, as_datetime(year)) - d_survey - mark) - 0.5
+        def excess(year, marked=marked):
+            return abs(9.0 + ppigrf_declination(69.3, 16.1, as_datetime(year)) - d_survey - marked) - 0.5
 
-    lo, hi = y, 2030.0
-    assert excess(lo) < 0 < excess(hi)
-    for _ in range(40):
-        mid = 0.5 * (lo + hi)
-        lo, hi = (lo, mid) if excess(mid) > 0 else (mid, hi)
-    assert abs(row.marked_off_year - hi) * 365.25 < 2.0  # within two days
+        lo, hi = start, 2030.0
+        assert excess(lo) < 0 < excess(hi)
+        for _ in range(30):
+            mid = 0.5 * (lo + hi)
+            lo, hi = (lo, mid) if excess(mid) > 0 else (mid, hi)
+        assert abs(row[column] - hi) * 365.25 < 2.0, column  # within two days
 
 
 def test_setting_out_points_against_geographiclib():
@@ -216,3 +225,32 @@ def test_cli_base_writes_tables(tmp_path, capsys):
     err = capsys.readouterr().err.strip()
     assert "survey date 2099-01-01 is in the future" in err and len(err.splitlines()) == 1
     assert math.isfinite(upkeep.declination_uncertainty_deg.iloc[0])
+
+
+def test_survey_history_rows_merge_into_the_latest_survey(tmp_path):
+    path = tmp_path / "sites.csv"
+    path.write_text(
+        "name,lat,lon,surveyed_variation,survey_date\n"
+        "Invented history base,70,20,8.9E,2019-01-01\n"
+        "Invented history base,70,20,8.0E,2016-01-01\n"
+        "Invented other base,60,10,2W,2020-01-01\n",
+        encoding="utf-8",
+    )
+    sites = read_sites_csv(path)
+    assert [s.name for s in sites] == ["Invented history base", "Invented other base"]
+    assert sites[0].surveyed_variation_deg == 8.9 and len(sites[0].history) == 1
+    # Synthetic model moving 0.25 deg/yr: 0.75 over 2016-2019 against 0.9 observed -> +0.15 (closed form).
+    table = base_upkeep(sites, "2020-06-01", variation_function=constant_rate(5.0, 0.25, 2016.0))
+    assert table.surveys.tolist() == [2, 1]
+    assert table.history_minus_model_deg.iloc[0] == pytest.approx(0.15, abs=1e-9)
+    assert math.isnan(table.history_minus_model_deg.iloc[1])
+
+
+def test_history_rows_at_different_positions_name_the_row(tmp_path):
+    path = tmp_path / "sites.csv"
+    path.write_text(
+        "name,lat,lon,surveyed_variation,survey_date\nInvented base,70,20,8.9E,2019-01-01\nInvented base,70.5,20,8.0E,2016-01-01\n",
+        encoding="utf-8",
+    )
+    with pytest.raises(InputError, match="sites.csv line 2: base 'Invented base' is at a different position from sites.csv line 3"):
+        read_sites_csv(path)

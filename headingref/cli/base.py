@@ -69,6 +69,7 @@ def _sites(args):
 
 def run(args) -> int:
     from ..compass_base import SITE_CAUTION, base_upkeep, setting_out
+    from ..headings import format_variation
     from ..io import write_csv
 
     lines = number_list(args.lines, "--lines") if args.lines else None
@@ -83,9 +84,18 @@ def run(args) -> int:
             f"change since survey of {row.survey_date}: {row.model_change_since_survey_deg:+.2f}°"
         )
         print(f"  mark {row.variation_to_mark} (record {row.variation_record}); tolerance {row.tolerance_deg:g}°")
-        off = row.marked_off_date or row.marked_off_note
-        print(f"  marked value off by more than the tolerance: {off}")
-        print(f"  resurvey due: {row.resurvey_due_date or 'not within model validity'} ({row.resurvey_reason})")
+        print(
+            f"  surveyed {format_variation(row.surveyed_variation_deg)} on {row.survey_date} off by more than "
+            f"the tolerance: {row.survey_off_date or row.survey_off_note}"
+        )
+        print(f"  re-marked value off by more than the tolerance: {row.mark_off_date or row.mark_off_note}")
+        overdue = "  OVERDUE" if row.overdue else ""
+        print(f"  resurvey due: {row.resurvey_due_date or 'not within model validity'} ({row.resurvey_reason}){overdue}")
+        if row.surveys > 1:
+            print(
+                f"  {row.surveys} surveys: change observed since the first minus the model's change "
+                f"{row.history_minus_model_deg:+.2f}°"
+            )
         print(f"  uncertainty ±{row.declination_uncertainty_deg:.2f}°, zone {row.zone}")
         if row.caution != SITE_CAUTION:
             print(f"  {row.caution.replace(SITE_CAUTION, '').strip()}")
