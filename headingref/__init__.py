@@ -24,6 +24,7 @@ from .field import declination_uncertainty_deg, field, field_arrays, field_grid
 from .model import Model, load_model
 from .notices import CAUTION
 from .routes import RouteResult, route
+from .runways import RunwayCheck, check_runways
 from .swing import DeviationCurve, analyse_swing
 from .zones import dip_poles, geomagnetic_poles, heading_error, pole_tracks, zones
 
@@ -52,5 +53,7 @@ __all__ = [
     "zones",
     "DeviationCurve",
     "analyse_swing",
+    "RunwayCheck",
+    "check_runways",
 ]
 __version__ = "0.1.0"
