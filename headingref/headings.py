@@ -44,7 +44,7 @@ Text: :func:`parse_heading`, :func:`parse_variation`, :func:`format_heading`,
 >>> g = parse_grid("polar")
 >>> round(float(g.convergence_deg(75.0, 30.0)), 6)  # 30° E on a Greenwich polar grid
 30.0
->>> float(true_to_grid(100.0, g.convergence_deg(75.0, 30.0)))
+>>> round(float(true_to_grid(100.0, g.convergence_deg(75.0, 30.0))), 6)
 70.0
 """
 
@@ -161,18 +161,15 @@ def true_to_magnetic(
     return _scalar_or_array(normalize_heading(np.asarray(true_deg, dtype=np.float64) - v), true_deg)
 
 
-def magnetic_to_true(
-    magnetic_deg: Any,
-    variation_deg: Any = None,
-    *,
-    lat: Any = None,
-    lon: Any = None,
-    date: Any = None,
-    alt_km: Any = 0.0,
-    model: Any = None,
-) -> Any:
-    """True heading = magnetic heading + variation (east positive), in ``[0, 360)``."""
-    v = _variation(variation_deg, lat, lon, date, alt_km, model)
+def magnetic_to_true(magnetic_deg: Any, variation_deg: Any = None, **place: Any) -> Any:
+    """True heading = magnetic heading + variation (east positive), in ``[0, 360)``.
+
+    ``place`` takes ``lat, lon, date, alt_km, model`` as in :func:`true_to_magnetic`.
+    """
+    unknown = set(place) - {"lat", "lon", "date", "alt_km", "model"}
+    if unknown:
+        raise TypeError(f"magnetic_to_true() got unexpected keyword(s) {', '.join(sorted(unknown))}")
+    v = _variation(variation_deg, place.get("lat"), place.get("lon"), place.get("date"), place.get("alt_km", 0.0), place.get("model"))
     return _scalar_or_array(normalize_heading(np.asarray(magnetic_deg, dtype=np.float64) + v), magnetic_deg)
 
 

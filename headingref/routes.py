@@ -363,21 +363,19 @@ def route(
     variation = np.asarray(fld["declination_deg"], dtype=np.float64)
     h_nT = np.asarray(fld["horizontal_nT"], dtype=np.float64)
     unc = np.asarray(fld["declination_uncertainty_deg"], dtype=np.float64)
-    bad = np.flatnonzero(~np.isfinite(variation))
-    if bad.size:
-        i = int(bad[0])
-        raise InputError(
-            f"variation is undefined at lat {s_lat[i]:.6f}, lon {s_lon[i]:.6f} on leg {leg_all[i] + 1} "
-            f"({wps.name.iloc[leg_all[i]]} to {wps.name.iloc[leg_all[i] + 1]}); the route passes through a dip pole"
-        )
+
+    def check_finite(values: np.ndarray, problem: str, advice: str) -> None:
+        bad = np.flatnonzero(~np.isfinite(values))
+        if bad.size:
+            i, leg = int(bad[0]), int(leg_all[bad[0]])
+            raise InputError(
+                f"{problem} at lat {s_lat[i]:.5f}, lon {s_lon[i]:.5f} on leg {leg + 1} "
+                f"({wps.name.iloc[leg]} to {wps.name.iloc[leg + 1]}); {advice}"
+            )
+
+    check_finite(variation, "variation is undefined", "the route passes through a dip pole")
     convergence = grid_obj.convergence_deg(s_lat, s_lon)
-    bad = np.flatnonzero(~np.isfinite(convergence))
-    if bad.size:
-        i = int(bad[0])
-        raise InputError(
-            f"grid {grid_obj.name} does not cover lat {s_lat[i]:.4f}, lon {s_lon[i]:.4f} on leg {leg_all[i] + 1} "
-            f"({wps.name.iloc[leg_all[i]]} to {wps.name.iloc[leg_all[i] + 1]}); choose another grid"
-        )
+    check_finite(convergence, f"grid {grid_obj.name} does not cover the route", "choose another grid")
     magnetic = normalize_heading(s_course - variation)
     grid_course = normalize_heading(s_course - convergence)
     grivation = grivation_deg(variation, convergence)

@@ -98,26 +98,18 @@ def test_grivation_is_grid_north_to_magnetic_north():
 # --------------------------------------------------------------------------- round trips (hypothesis)
 
 
+@pytest.mark.parametrize(
+    "forward,back",
+    [(true_to_magnetic, magnetic_to_true), (true_to_grid, grid_to_true), (grid_to_magnetic, magnetic_to_grid)],
+    ids=["true-magnetic-true", "true-grid-true", "grid-magnetic-grid"],
+)
 @settings(max_examples=300, deadline=None)
-@given(h=headings, v=signed)
-def test_round_trip_true_magnetic_true(h, v):
-    back = magnetic_to_true(true_to_magnetic(h, v), v)
-    assert 0.0 <= back < 360.0
-    assert angle_diff(back, h) <= 1e-9
-
-
-@settings(max_examples=300, deadline=None)
-@given(h=headings, c=signed)
-def test_round_trip_true_grid_true(h, c):
-    back = grid_to_true(true_to_grid(h, c), c)
-    assert 0.0 <= back < 360.0
-    assert angle_diff(back, h) <= 1e-9
-
-
-@settings(max_examples=300, deadline=None)
-@given(h=headings, g=signed)
-def test_round_trip_grid_magnetic_grid(h, g):
-    assert angle_diff(magnetic_to_grid(grid_to_magnetic(h, g), g), h) <= 1e-9
+@given(h=headings, angle=signed)
+def test_round_trips_exact(forward, back, h, angle):
+    # reference angle: variation, convergence or grivation, east positive
+    result = back(forward(h, angle), angle)
+    assert 0.0 <= result < 360.0
+    assert angle_diff(result, h) <= 1e-9
 
 
 class DeviationCurve:
