@@ -310,24 +310,34 @@ def test_forecast_day_is_exact_for_a_coarse_grid():
     assert fine[0][0] == coarse[0][0] == (dt.date(2028, 8, 8) - dt.date(2027, 1, 1)).days  # t* = 2028.6 -> 7 Aug 14:24
 
 
-def test_forecast_against_daily_ppigrf():
+@pytest.mark.parametrize(
+    ("lat", "lon", "start"),
+    [
+        (64.8, -147.6, dt.date(2026, 12, 2)),
+        (78.2, 15.6, dt.date(2026, 12, 2)),
+        (64.8, -147.6, dt.date(2019, 10, 1)),  # the change falls after the 2020 epoch: two linear pieces
+    ],
+)
+def test_forecast_against_daily_ppigrf(lat, lon, start):
     # A runway end set 0.3 deg short of a boundary in the direction the variation drifts; the
     # first day ppigrf's IGRF-14 gives another designator must be our change_date (+-1 day:
-    # ppigrf interpolates coefficients in days, headingref in decimal years).
+    # ppigrf interpolates coefficients linearly in days between epochs, headingref in decimal
+    # years, which differ by up to ~0.6 day within 2025-2030).
     ppigrf = pytest.importorskip("ppigrf")
-    lat, lon = 64.8, -147.6
-    e0, n0, _ = ppigrf.igrf(lon, lat, 0.0, [dt.datetime(2026, 12, 2), dt.datetime(2027, 12, 2)])
+    first_year = dt.datetime(start.year, start.month, start.day)
+    e0, n0, _ = ppigrf.igrf(lon, lat, 0.0, [first_year, first_year + dt.timedelta(days=365)])
     d = np.degrees(np.arctan2(e0.ravel(), n0.ravel()))
     drift = -(d[1] - d[0])  # magnetic azimuth change per year
     magnetic0 = 124.7 if drift > 0 else 125.3
     ends = pd.DataFrame({"airport": ["XAC"], "runway": ["12"], "lat": [lat], "lon": [lon], "true_bearing_deg": [magnetic0 + d[0]]})
-    result = _quiet_check(ends, DATE, horizon_years=3)
+    result = _quiet_check(ends, start.isoformat(), horizon_years=3)
     row = result.table.iloc[0]
     assert row.change_date, "a change within the horizon was expected"
     change = dt.date.fromisoformat(row.change_date)
     days = [change + dt.timedelta(days=k) for k in range(-3, 4)]
     east, north, _ = ppigrf.igrf(lon, lat, 0.0, [dt.datetime(x.year, x.month, x.day) for x in days])
     numbers = designator_from_magnetic(ends.true_bearing_deg[0] - np.degrees(np.arctan2(east.ravel(), north.ravel())))
+    assert numbers[0] == int(row.designator_implied)
     first = days[int(np.argmax(numbers != int(row.designator_implied)))]
     assert abs((first - change).days) <= 1
     assert row.next_designator == format_designator(int(numbers[-1]))
