@@ -181,11 +181,15 @@ def _prepare(lat, lon, years, alt_km, model, allow_extrapolation):
 
 
 def _synthesise(model: Model, lat, lon, alt, years) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    k, dt = model.locate(years)
     k1, k2, diag = _constants(model.nmax)
     xyz = np.empty((6, lat.size))
-    synthesis.scattered(lat, lon, alt, k, dt, model.g, model.h, model.g_rate, model.h_rate, k1, k2, diag,
-                        model.reference_radius_km, xyz)
+    if lat.size > 1 and years.min() == years.max():
+        g, h, g_rate, h_rate = model.coefficients(float(years[0]))
+        synthesis.scattered_uniform(lat, lon, alt, g, h, g_rate, h_rate, k1, k2, diag, model.reference_radius_km, xyz)
+    else:
+        k, dt = model.locate(years)
+        synthesis.scattered(lat, lon, alt, k, dt, model.g, model.h, model.g_rate, model.h_rate, k1, k2, diag,
+                            model.reference_radius_km, xyz)
     out = np.empty((len(ELEMENTS), lat.size))
     zone = np.empty(lat.size, dtype=np.int8)
     _derive(xyz, out, zone)

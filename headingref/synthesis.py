@@ -285,3 +285,102 @@ def derive(xyz, h_undefined_nT, unc_const_deg, unc_scale_nT, blackout_nT, cautio
             zone[i] = 1
         else:
             zone[i] = 0
+
+
+_BLOCK = 64
+
+
+@nb.njit(parallel=True, cache=True, fastmath=True)
+def scattered_uniform(lat_deg, lon_deg, alt_km, g, h, g_rate, h_rate, k1, k2, diag, a_ref, out):
+    """As :func:`scattered`, for points that share one date (coefficients ``g``.. at that date,
+    shape (nmax+1, nmax+1)).
+
+    Points are processed in blocks of 64 with the block as the innermost loop, so the recursion
+    for each (n, m) runs over contiguous arrays that the compiler turns into SIMD instructions.
+    """
+    nmax = g.shape[0] - 1
+    npts = lat_deg.shape[0]
+    nblocks = (npts + _BLOCK - 1) // _BLOCK
+    for blk in nb.prange(nblocks):
+        start = blk * _BLOCK
+        w = min(_BLOCK, npts - start)
+        st, ct, sin_psi, cos_psi = np.empty(w), np.empty(w), np.empty(w), np.empty(w)
+        ratio, cl, sl, cm, sm = np.empty(w), np.empty(w), np.empty(w), np.empty(w), np.empty(w)
+        pmm, dpmm, rm, rn = np.empty(w), np.empty(w), np.empty(w), np.empty(w)
+        p1, dp1, p2, dp2 = np.empty(w), np.empty(w), np.empty(w), np.empty(w)
+        xs, ys, zs, dxs, dys, dzs = np.empty(w), np.empty(w), np.empty(w), np.empty(w), np.empty(w), np.empty(w)
+        for b in range(w):
+            r, st[b], ct[b], sin_psi[b], cos_psi[b] = _geocentric(lat_deg[start + b], alt_km[start + b])
+            ratio[b] = a_ref / r
+            lam = math.radians(lon_deg[start + b])
+            cl[b] = math.cos(lam)
+            sl[b] = math.sin(lam)
+            cm[b] = 1.0
+            sm[b] = 0.0
+            pmm[b] = 1.0
+            dpmm[b] = 0.0
+            rm[b] = ratio[b] * ratio[b]
+            xs[b] = ys[b] = zs[b] = dxs[b] = dys[b] = dzs[b] = 0.0
+        for m in range(nmax + 1):
+            if m == 1:
+                for b in range(w):
+                    pmm[b] = st[b]
+                    dpmm[b] = ct[b]
+            elif m >= 2:
+                dm = diag[m]
+                for b in range(w):
+                    pnew = dm * st[b] * pmm[b]
+                    dpmm[b] = dm * (ct[b] * pmm[b] + st[b] * dpmm[b])
+                    pmm[b] = pnew
+            if m >= 1:
+                for b in range(w):
+                    cnew = cm[b] * cl[b] - sm[b] * sl[b]
+                    sm[b] = sm[b] * cl[b] + cm[b] * sl[b]
+                    cm[b] = cnew
+                    rm[b] *= ratio[b]
+            for b in range(w):
+                p1[b] = pmm[b]
+                dp1[b] = dpmm[b]
+                p2[b] = 0.0
+                dp2[b] = 0.0
+                rn[b] = rm[b]
+            # order 0 starts at degree 1 (there is no degree 0): its first step advances from P_0^0
+            for n in range(max(m, 1), nmax + 1):
+                gv = g[n, m]
+                hv = h[n, m]
+                gr = g_rate[n, m]
+                hr = h_rate[n, m]
+                a1 = k1[n, m]
+                a2 = k2[n, m]
+                fm = float(m)
+                fn1 = float(n + 1)
+                step = n > m
+                for b in range(w):
+                    if step:
+                        pn = a1 * ct[b] * p1[b] - a2 * p2[b]
+                        dpn = a1 * (ct[b] * dp1[b] - st[b] * p1[b]) - a2 * dp2[b]
+                        p2[b] = p1[b]
+                        dp2[b] = dp1[b]
+                        p1[b] = pn
+                        dp1[b] = dpn
+                        rn[b] *= ratio[b]
+                    rp = rn[b] * p1[b]
+                    rdp = rn[b] * dp1[b]
+                    cos_part = gv * cm[b] + hv * sm[b]
+                    cos_rate = gr * cm[b] + hr * sm[b]
+                    sin_part = gv * sm[b] - hv * cm[b]
+                    sin_rate = gr * sm[b] - hr * cm[b]
+                    xs[b] += cos_part * rdp
+                    dxs[b] += cos_rate * rdp
+                    ys[b] += fm * sin_part * rp
+                    dys[b] += fm * sin_rate * rp
+                    zs[b] -= fn1 * cos_part * rp
+                    dzs[b] -= fn1 * cos_rate * rp
+        for b in range(w):
+            i = start + b
+            out[0, i] = xs[b] * cos_psi[b] - zs[b] * sin_psi[b]
+            out[1, i] = ys[b] / st[b]
+            out[2, i] = xs[b] * sin_psi[b] + zs[b] * cos_psi[b]
+            out[3, i] = dxs[b] * cos_psi[b] - dzs[b] * sin_psi[b]
+            out[4, i] = dys[b] / st[b]
+            out[5, i] = dxs[b] * sin_psi[b] + dzs[b] * cos_psi[b]

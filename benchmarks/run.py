@@ -1,0 +1,151 @@
+"""headingref speed against reference libraries, measured in one run on this machine.
+
+Usage: ``python benchmarks/run.py [--quick]``
+
+Prints, for each case, headingref's time, the reference's time where there is one, the ratio, and
+the target from the issues. Times are the best of several repeats after a warm-up call (numba
+compilation and caches excluded, as the targets state "after warm-up").
+"""
+
+from __future__ import annotations
+
+import argparse
+import datetime as dt
+import time
+import warnings
+from collections.abc import Callable
+from pathlib import Path
+
+import numpy as np
+
+warnings.simplefilter("ignore")
+
+
+def best_time(fn: Callable[[], object], repeats: int = 5, warmup: bool = True) -> float:
+    if warmup:
+        fn()
+    times = []
+    for _ in range(repeats):
+        start = time.perf_counter()
+        fn()
+        times.append(time.perf_counter() - start)
+    return min(times)
+
+
+ROWS: list[tuple[str, str, str, str, str]] = []
+
+
+def row(case: str, ours_s: float, ref_name: str = "", ref_s: float | None = None, target: str = "", verdict: bool | None = None):
+    ratio = f"{ref_s / ours_s:8.1f}x" if ref_s else ""
+    ok = "" if verdict is None else ("met" if verdict else "MISSED")
+    ROWS.append((case, f"{ours_s * 1e3:10.3f} ms", f"{ref_name} {ref_s * 1e3:.1f} ms" if ref_s else "", ratio, f"{target} {ok}"))
+
+
+def bench_field(quick: bool) -> None:
+    import chaosmagpy
+    import ppigrf
+    from chaosmagpy.coordinate_utils import gg_to_geo
+    from chaosmagpy.model_utils import synth_values
+
+    import headingref
+    from headingref.field import field_arrays
+    from headingref.model import load_model
+
+    model = load_model()
+    rng = np.random.default_rng(0)
+    n = 20_000 if quick else 100_000
+    lat, lon, alt = rng.uniform(-90, 90, n), rng.uniform(-180, 180, n), rng.uniform(0, 12, n)
+    when = dt.datetime(2026, 12, 2)
+    year = headingref.units.decimal_year(when)
+
+    ours = best_time(lambda: headingref.field(lat, lon, year, alt_km=alt))
+    ours_arrays = best_time(lambda: field_arrays(lat, lon, year, alt))
+    ppigrf_s = best_time(lambda: ppigrf.igrf(lon, lat, alt, when), repeats=1)
+    g, h, _, _ = model.coefficients(year)
+    coeffs = []
+    for deg in range(1, 14):
+        coeffs.append(g[deg, 0])
+        for m in range(1, deg + 1):
+            coeffs += [g[deg, m], h[deg, m]]
+    coeffs = np.array(coeffs)
+
+    def chaos_scattered():
+        radius, theta = gg_to_geo(alt, 90.0 - lat)
+        return synth_values(coeffs, radius, theta, lon)
+
+    chaos_s = best_time(chaos_scattered, repeats=3)
+    row(f"scattered {n:,} pts, field() DataFrame", ours, "ppigrf", ppigrf_s, ">=100x ppigrf", ppigrf_s / ours >= 100)
+    row(f"scattered {n:,} pts, field() DataFrame", ours, "chaosmagpy", chaos_s, "several x chaosmagpy", chaos_s / ours >= 3)
+    row(f"scattered {n:,} pts, field_arrays()", ours_arrays, "chaosmagpy", chaos_s, "", None)
+
+    lats = np.linspace(-90, 90, 721)
+    lons = np.linspace(-180, 179.75, 1440)
+    grid_s = best_time(lambda: headingref.field_grid(lats, lons, year), repeats=3)
+    chaos_grid = best_time(lambda: synth_values(coeffs, 6371.2, 90.0 - lats, lons, grid=True), repeats=3)
+    row("global 0.25 deg grid (1.04 M pts, all elements + rates)", grid_s, "chaosmagpy", chaos_grid,
+        "< 1/3 chaosmagpy", grid_s < chaos_grid / 3)
+
+    single = best_time(lambda: headingref.field(61.2, -149.9, "2026-12-02"), repeats=200)
+    single_arr = best_time(lambda: field_arrays(61.2, -149.9, year), repeats=200)
+    ppigrf_single = best_time(lambda: ppigrf.igrf(-149.9, 61.2, 0.0, when), repeats=5)
+    row("single place, field() DataFrame", single, "ppigrf", ppigrf_single, "< 0.2 ms", single < 2e-4)
+    row("single place, field_arrays()", single_arr, "ppigrf", ppigrf_single, "< 0.2 ms", single_arr < 2e-4)
+    del chaosmagpy
+
+
+def bench_jobs(quick: bool) -> None:
+    """The job-level targets: route, polar zone map with error budget, runway forecast."""
+    rng = np.random.default_rng(1)
+    try:
+        from headingref import routes
+
+        # 20 legs, about 5,000 NM, sampled every 1 NM
+        lats = np.concatenate([np.linspace(64, 84, 11), np.linspace(84, 66, 10)])
+        lons = np.linspace(-150, 30, 21)
+        waypoints = [{"name": f"W{i:02d}", "lat": a, "lon": o} for i, (a, o) in enumerate(zip(lats, lons, strict=True))]
+        route_s = best_time(lambda: routes.route(waypoints, "2026-12-02", spacing_nm=1.0), repeats=3)
+        row("route: 20 legs densified every 1 NM", route_s, target="< 300 ms", verdict=route_s < 0.3)
+    except (ImportError, AttributeError) as exc:
+        row(f"route: not available ({exc})", float("nan"))
+    try:
+        from headingref import detector
+
+        budget = getattr(detector, "error_budget_map", None)
+        if budget is not None:
+            cap_s = best_time(lambda: budget("north", "2026-12-02", resolution_deg=0.1), repeats=3)
+            row("polar cap 0.1 deg map with full error budget", cap_s, target="< 1000 ms", verdict=cap_s < 1.0)
+    except ImportError as exc:
+        row(f"error budget map: not available ({exc})", float("nan"))
+    try:
+        import pandas as pd
+
+        from headingref import runways
+
+        n = 2_000 if quick else 10_000
+        lat = rng.uniform(55, 75, n)
+        lon = rng.uniform(-180, 180, n)
+        bearing = rng.uniform(0, 360, n)
+        designator = np.round(bearing / 10).astype(int) % 36
+        designator[designator == 0] = 36
+        table = pd.DataFrame({"airport": [f"X{i:05d}" for i in range(n)], "runway": [f"{d:02d}" for d in designator],
+                              "lat": lat, "lon": lon, "true_bearing_deg": bearing})
+        rw_s = best_time(lambda: runways.check_runways(table, "2026-12-02", horizon_years=30, allow_extrapolation=True), repeats=2)
+        row(f"runways: {n:,} ends, 30-year forecast", rw_s, target="< 2000 ms", verdict=rw_s < 2.0)
+    except (ImportError, AttributeError) as exc:
+        row(f"runways: not available ({exc})", float("nan"))
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__, formatter_class=argparse.RawDescriptionHelpFormatter)
+    parser.add_argument("--quick", action="store_true", help="smaller inputs (a smoke run)")
+    args = parser.parse_args()
+    print(f"headingref benchmarks ({Path(__file__).name}), best of repeats after warm-up")
+    bench_field(args.quick)
+    bench_jobs(args.quick)
+    widths = [max(len(r[i]) for r in ROWS) for i in range(5)]
+    for r in ROWS:
+        print("  ".join(cell.ljust(w) for cell, w in zip(r, widths, strict=True)))
+
+
+if __name__ == "__main__":
+    main()
