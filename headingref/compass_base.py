@@ -261,51 +261,68 @@ def _round_to(value: float, step: float) -> float:
     return math.floor(value / step + 0.5) * step
 
 
-def _first_departure(
+def _first_departures(
     variation: VariationFunction,
-    site: Site,
-    offset_deg: float,
-    marked_deg: float,
-    start_year: float,
+    sites: Sequence[Site],
+    offset_deg: np.ndarray,
+    marked_deg: np.ndarray,
+    start_year: np.ndarray,
     end_year: float,
-) -> float:
-    """First decimal year in (start, end] where |offset + D(t) - marked| > tolerance, else NaN.
+) -> np.ndarray:
+    """For each site, the first decimal year in [start, end] where
+    ``|offset + D(t) - marked| > tolerance`` (NaN if none), all sites at once.
 
-    ``offset = surveyed - D(survey)``. Stepping, then safeguarded Newton with the analytic rate.
+    ``offset = surveyed - D(survey)``. The model is stepped every :data:`STEP_YEARS` in one call;
+    the first bracketing step is then refined by a safeguarded Newton iteration using the analytic
+    rate (bisection whenever Newton would leave the bracket), to 1e-8 year.
     """
-    if end_year <= start_year:
-        return math.nan
-    steps = max(2, int(math.ceil((end_year - start_year) / STEP_YEARS)) + 1)
-    years = np.linspace(start_year, end_year, steps)
-    n = len(years)
-    dec, _ = variation(np.full(n, site.lat_deg), np.full(n, site.lon_deg), years, np.full(n, site.alt_km))
-    excess = np.abs(offset_deg + np.asarray(dec) - marked_deg) - site.tolerance_deg
-    above = np.flatnonzero(excess > 0)
-    if len(above) == 0:
-        return math.nan
-    k = int(above[0])
-    if k == 0:
-        return start_year
-    lo, hi = float(years[k - 1]), float(years[k])
-    one = np.ones(1)
-
-    def g(t: float) -> tuple[float, float]:
-        d, rate = variation(one * site.lat_deg, one * site.lon_deg, one * t, one * site.alt_km)
-        diff = offset_deg + float(d[0]) - marked_deg
-        return abs(diff) - site.tolerance_deg, math.copysign(1.0, diff) * float(rate[0])
-
+    n = len(sites)
+    lat = np.array([s.lat_deg for s in sites])
+    lon = np.array([s.lon_deg for s in sites])
+    alt = np.array([s.alt_km for s in sites])
+    tol = np.array([s.tolerance_deg for s in sites])
+    start_year = np.asarray(start_year, dtype=np.float64)
+    result = np.full(n, np.nan)
+    span = max(0.0, float(np.max(end_year - start_year)))
+    steps = int(math.ceil(span / STEP_YEARS)) + 1
+    years = np.minimum(start_year[:, None] + STEP_YEARS * np.arange(steps)[None, :], end_year)
+    dec, _ = variation(
+        np.repeat(lat, steps), np.repeat(lon, steps), years.ravel(), np.repeat(alt, steps)
+    )
+    excess = np.abs(offset_deg[:, None] + np.asarray(dec).reshape(n, steps) - marked_deg[:, None]) - tol[:, None]
+    excess[start_year > end_year] = -np.inf
+    found = (excess > 0).any(axis=1)
+    k = np.argmax(excess > 0, axis=1)
+    already = found & (k == 0)
+    result[already] = start_year[already]
+    todo = np.flatnonzero(found & (k > 0))
+    if len(todo) == 0:
+        return result
+    lo = years[todo, k[todo] - 1].copy()
+    hi = years[todo, k[todo]].copy()
     t = 0.5 * (lo + hi)
+    active = np.ones(len(todo), dtype=bool)
     for _ in range(100):
-        value, slope = g(t)
-        if value > 0:
-            hi = t
-        else:
-            lo = t
-        if hi - lo < 1e-7:
+        idx = todo[active]
+        d, rate = variation(lat[idx], lon[idx], t[active], alt[idx])
+        diff = offset_deg[idx] + np.asarray(d) - marked_deg[idx]
+        value = np.abs(diff) - tol[idx]
+        slope = np.sign(diff) * np.asarray(rate)
+        ta, la, ha = t[active], lo[active], hi[active]
+        ha = np.where(value > 0, ta, ha)
+        la = np.where(value > 0, la, ta)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            newton = ta - value / slope
+        inside = np.isfinite(newton) & (newton > la) & (newton < ha)
+        done = (inside & (np.abs(newton - ta) < 1e-8)) | (ha - la < 1e-8)
+        nxt = np.where(inside, newton, 0.5 * (la + ha))
+        t[active], lo[active], hi[active] = nxt, la, ha
+        finished = np.flatnonzero(active)[done]
+        result[todo[finished]] = np.where(inside[done], newton[done], ha[done])
+        active[finished] = False
+        if not active.any():
             break
-        newton = t - value / slope if slope != 0 else math.nan
-        t = newton if lo < newton < hi else 0.5 * (lo + hi)
-    return hi
+    return result
 
 
 def _date_text(year: float) -> str:
@@ -413,14 +430,18 @@ def base_upkeep(
         if not (math.isfinite(dec_now[i]) and math.isfinite(dec_survey[i])):
             raise InputError(f"{site.row}: the variation is undefined at lat {site.lat_deg:g}, lon {site.lon_deg:g} (pole)")
     end_year = loaded.valid_to + (EXTRAPOLATION_HORIZON_YEARS if allow_extrapolation else 0.0)
+    surveyed = np.array([s.surveyed_variation_deg for s in sites])
+    offsets = surveyed - dec_survey
+    marks = np.array([_round_to(v, mark_step_deg) for v in surveyed + dec_now - dec_survey])
+    survey_offs = _first_departures(variation, sites, offsets, surveyed, np.array([s.survey_year for s in sites]), end_year)
+    mark_offs = _first_departures(variation, sites, offsets, marks, np.full(len(sites), swing_year), end_year)
     rows = []
     for i, site in enumerate(sites):
         change = float(dec_now[i] - dec_survey[i])
         predicted = site.surveyed_variation_deg + change
-        marked = _round_to(predicted, mark_step_deg)
-        offset = site.surveyed_variation_deg - float(dec_survey[i])
-        survey_off = _first_departure(variation, site, offset, site.surveyed_variation_deg, site.survey_year, end_year)
-        mark_off = _first_departure(variation, site, offset, marked, swing_year, end_year)
+        marked = float(marks[i])
+        offset = float(offsets[i])
+        survey_off, mark_off = float(survey_offs[i]), float(mark_offs[i])
         survey_note = "" if math.isfinite(survey_off) else _not_found_note(allow_extrapolation, end_year)
         mark_note = "" if math.isfinite(mark_off) else _not_found_note(allow_extrapolation, end_year)
         if math.isfinite(mark_off) and mark_off == swing_year:
