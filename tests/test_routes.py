@@ -305,6 +305,22 @@ def test_bad_altitude_names_row():
         route([("A", 70.0, 10.0, 0), ("B", 71.0, 12.0, "35000 yards")], DATE)
 
 
+# --------------------------------------------------------------------------- plots
+
+
+def test_map_choice_suits_the_route():
+    # common practice: polar stereographic charts for high-latitude work, a regional conformal map elsewhere
+    from headingref.plots.route import choose_map
+
+    kind, edge, _ = choose_map([69.0, 78.2, 85.5, 64.7], [18.5, 15.5, -100.0, 177.7])
+    assert kind == "north" and edge == 60.0
+    kind, edge, _ = choose_map([-70.0, -89.0], [0.0, 120.0])
+    assert kind == "south" and edge == 65.0
+    kind, extent, _ = choose_map([35.0, 50.0], [170.0, -150.0])
+    assert kind == "region"
+    assert extent[2] == pytest.approx(167.0) and extent[3] == pytest.approx(-147.0)  # across 180: lon_max < lon_min
+
+
 # --------------------------------------------------------------------------- command line
 
 

@@ -170,6 +170,7 @@ def plot_route_map(result: Any, ax=None, model: Any = None, mesh: int = 140, iso
         f"Route {names[0]} to {names[-1]}: {len(legs)} legs, {total:,.0f} NM (first course {first_course})\n"
         f"variation and weak-field zones, decimal year {year:.2f}",
         fontsize=10,
+        pad=16,
     )
     return ax.figure
 
