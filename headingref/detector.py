@@ -69,12 +69,14 @@ True
 
 from __future__ import annotations
 
+import functools
+import warnings
 from typing import Any
 
 import numpy as np
 import pandas as pd
 
-from .errors import InputError
+from .errors import InputError, UndefinedDeclinationWarning
 
 STANDARD_GRAVITY_MPS2 = 9.80665  # standard acceleration of gravity (3rd CGPM, 1901)
 GIMBAL_LIMIT_DEG = 25.0  # common practice: the detector's joint swings about 25 deg in pitch and roll
@@ -414,39 +416,127 @@ def heading_error_grid(
     limit_deg: float = DEFAULT_LIMIT_DEG,
     model=None,
 ):
-    """The error budget on a map grid (one date), as an xarray Dataset.
+    """The error budget as a map (one date), an xarray Dataset.
 
-    ``area`` is ``'north'``/``'south'`` (polar cap) or ``(lat_min, lat_max, lon_min, lon_max)`` as
-    for :func:`headingref.zones.zones`. Variables: the field grid's plus the budget terms of
-    :func:`heading_error`. ``attrs['area_exceeding_limit_km2']`` is the area where the
-    root-sum-square budget exceeds ``limit_deg``, from the limit contour's polygons
-    (geodesic area on WGS84, :meth:`pyproj.Geod.polygon_area_perimeter`).
+    ``area`` is ``'north'``/``'south'`` or ``(lat_min, lat_max, lon_min, lon_max)`` as for
+    :func:`headingref.zones.zones`.
+
+    - A polar cap is computed on a square polar stereographic grid (WGS84,
+      ``+proj=stere +lat_0=+-90 +lon_0=0``, the projection of :mod:`headingref.plots.basemap`)
+      with dims ``(y, x)`` in metres, spacing ``resolution_deg`` degrees of latitude
+      (111.32 km per degree), out to the cap's edge (:data:`CAP_EDGE_LAT_DEG`: 60 N, 50 S);
+      points beyond the edge are NaN. 2-D ``lat``/``lon`` coordinates. The area beyond the limit is the sum of the cells'
+      ground areas (cell area divided by the projection's areal scale factor from
+      :meth:`pyproj.Proj.get_factors`).
+    - A region is computed on its latitude-longitude grid (dims ``(lat, lon)``); the area is that
+      of the limit contour's polygons (geodesic on WGS84,
+      :meth:`pyproj.Geod.polygon_area_perimeter`).
+
+    Variables: ``horizontal_nT``, ``inclination_deg``, ``declination_uncertainty_deg`` and the
+    budget terms of :func:`heading_error`. ``attrs['area_exceeding_limit_km2']`` is the area
+    where the root-sum-square budget exceeds ``limit_deg``.
     """
-    from .zones import area_grid, polygons_area_km2, threshold_polygons
+    import xarray as xr
 
-    ds = area_grid(area, date, resolution_deg=resolution_deg, alt_km=alt_km, model=model)
-    if "time" in ds.dims:
+    from .zones import area_grid, parse_area, polygons_area_km2, threshold_polygons
+
+    options = {
+        "residual_field_nT": residual_field_nT, "bank_deg": bank_deg, "accel_mps2": accel_mps2,
+        "pitch_deg": pitch_deg, "heading_deg": heading_deg, "turn_duration_min": turn_duration_min,
+        "slaving_rate_deg_per_min": slaving_rate_deg_per_min, "gimbal_limit_deg": gimbal_limit_deg,
+        "limit_deg": limit_deg,
+    }
+    if np.ndim(date) != 0 and not isinstance(date, str):
         raise InputError("heading_error_grid takes one date; call it once per date")
-    terms = _budget(
-        ds["horizontal_nT"].values,
-        ds["inclination_deg"].values,
-        ds["declination_uncertainty_deg"].values,
-        residual_field_nT=residual_field_nT,
-        bank_deg=bank_deg,
-        accel_mps2=accel_mps2,
-        pitch_deg=pitch_deg,
-        heading_deg=heading_deg,
-        turn_duration_min=turn_duration_min,
-        slaving_rate_deg_per_min=slaving_rate_deg_per_min,
-        gimbal_limit_deg=gimbal_limit_deg,
-        limit_deg=limit_deg,
-    )
-    for name, value in terms.items():
-        ds[name] = (("lat", "lon"), np.array(value))
-    polygons = threshold_polygons(ds, "budget_rss_deg", limit_deg, np.inf)
+    kind, _ = parse_area(area)
+    if kind == "region":
+        ds = area_grid(area, date, resolution_deg=resolution_deg, alt_km=alt_km, model=model)
+        terms = _budget(ds["horizontal_nT"].values, ds["inclination_deg"].values,
+                        ds["declination_uncertainty_deg"].values, **options)
+        for name, value in terms.items():
+            ds[name] = (("lat", "lon"), np.array(value))
+        area_km2 = polygons_area_km2(threshold_polygons(ds, "budget_rss_deg", limit_deg, np.inf))
+    else:
+        from .field import field_arrays
+        from .units import decimal_year
+
+        x, y, lat, lon, inside, _, lat_in, lon_in, cell_in_km2 = _stereo_cap(kind, resolution_deg)
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", UndefinedDeclinationWarning)  # D at the pole point is not used
+            f = field_arrays(lat_in, lon_in, decimal_year(date), alt_km=alt_km, model=model)
+        terms = _budget(f["horizontal_nT"], f["inclination_deg"], f["declination_uncertainty_deg"], **options)
+        variables = {}
+        for name, values in [*((n, f[n]) for n in ("horizontal_nT", "inclination_deg", "declination_uncertainty_deg")),
+                             *terms.items()]:
+            full = np.full(lat.shape, False if values.dtype == bool else np.nan, dtype=values.dtype)
+            full[inside] = values
+            variables[name] = (("y", "x"), full)
+        ds = xr.Dataset(variables, coords={
+            "x": ("x", x, {"units": "m"}), "y": ("y", y, {"units": "m"}),
+            "lat": (("y", "x"), lat, {"units": "degrees_north"}), "lon": (("y", "x"), lon, {"units": "degrees_east"}),
+        }, attrs={"crs": _cap_proj(kind), "alt_km": float(alt_km), "decimal_year": float(f["decimal_year"][0])})
+        area_km2 = float(np.sum(cell_in_km2, where=terms["exceeds_limit"]))
     ds.attrs.update(
+        area_kind=kind,
         limit_deg=float(limit_deg),
-        area_exceeding_limit_km2=polygons_area_km2(polygons),
+        area_exceeding_limit_km2=area_km2,
         combination="budget_rss_deg = sqrt(residual^2 + model_uncertainty^2 + slaving_drift^2)",
     )
     return ds
+
+
+error_budget_map = heading_error_grid
+"""Alias of :func:`heading_error_grid`."""
+
+CAP_EDGE_LAT_DEG = {"north": 60.0, "south": 50.0}
+"""Edge of the cap maps: the weak-field zones reach about 70 N round the north dip pole (near the
+geographic pole) but about 56 S round the south dip pole (near 64 S), so the south cap is wider."""
+_METRES_PER_DEG = 111_320.0
+
+
+def _cap_proj(kind: str) -> str:
+    lat0 = 90 if kind == "north" else -90
+    return f"+proj=stere +lat_0={lat0} +lat_ts={lat0} +lon_0=0 +x_0=0 +y_0=0 +datum=WGS84 +units=m +no_defs"
+
+
+def _stereo_cap(kind: str, resolution_deg: float):
+    """Square polar stereographic grid over a cap: x, y (m), lat, lon, inside mask, cell km^2.
+
+    Cached by (cap, resolution): the geometry does not change between calls (read-only arrays).
+    """
+    try:
+        step_deg = float(resolution_deg)
+    except (TypeError, ValueError):
+        raise InputError(f"resolution {resolution_deg!r} is not a number; give degrees, 0.01 to 10") from None
+    if not (np.isfinite(step_deg) and 0.01 <= step_deg <= 10.0):
+        raise InputError(f"resolution {resolution_deg!r} is outside 0.01 to 10 degrees")
+    return _stereo_cap_cached(kind, step_deg)
+
+
+@functools.lru_cache(maxsize=4)
+def _stereo_cap_cached(kind: str, step_deg: float):
+    from pyproj import Proj
+
+    proj = Proj(_cap_proj(kind))
+    sign = 1.0 if kind == "north" else -1.0
+    edge = CAP_EDGE_LAT_DEG[kind]
+    edge_x, edge_y = proj(0.0, sign * edge)
+    radius = float(np.hypot(edge_x, edge_y))
+    step = step_deg * _METRES_PER_DEG
+    half = int(np.ceil(radius / step))
+    if (2 * half + 1) ** 2 > 20_000_000:
+        raise InputError(f"resolution {step_deg!r} is too fine for a polar cap map; use 0.05 degrees or more")
+    axis = step * np.arange(-half, half + 1)
+    xx, yy = np.meshgrid(axis, axis)
+    inside = np.hypot(xx, yy) <= radius
+    lon, lat = proj(xx, yy, inverse=True)
+    # areal scale depends on latitude only: take it on a fine profile and interpolate
+    profile_lat = sign * np.linspace(edge - 1.0, 90.0, 2000)
+    factors = proj.get_factors(np.zeros_like(profile_lat), profile_lat)
+    order = np.argsort(profile_lat)
+    areal = np.interp(lat, profile_lat[order], np.asarray(factors.areal_scale)[order])
+    cell_km2 = step * step / areal / 1e6
+    grid = (axis, axis.copy(), lat, lon, inside, cell_km2, lat[inside], lon[inside], cell_km2[inside])
+    for array in grid:
+        array.setflags(write=False)
+    return grid

@@ -189,14 +189,28 @@ def test_heading_error_budget_at_route_samples():
 
 def test_error_map_and_area_beyond_limit():
     ds = heading_error_grid("north", "2026-12-02", resolution_deg=1.0, bank_deg=0.0, limit_deg=2.0)
-    assert set(ds.budget_rss_deg.dims) == {"lat", "lon"}
-    # with no manoeuvre the budget is residual + model terms; WMM model alone exceeds 2 deg where
-    # 5417/H > 1.98 i.e. H < ~2740 nT, so the area exceeds the blackout zone's
+    assert set(ds.budget_rss_deg.dims) == {"y", "x"}
+    # with no manoeuvre the budget is residual + model terms; the WMM model term alone exceeds
+    # 2 deg where 5417/H > 1.98 i.e. H < ~2740 nT, so the area exceeds the blackout zone's
     blackout = headingref.zones("north", "2026-12-02", resolution_deg=1.0)
     from headingref.zones import zone_areas
 
     blackout_km2 = float(zone_areas(blackout).set_index("zone").loc["blackout", "area_km2"])
     assert ds.attrs["area_exceeding_limit_km2"] > blackout_km2 > 0
+    # region map, same date: the same physics on a lat/lon grid gives a similar area (5 %)
+    region = heading_error_grid((70.0, 90.0, -180.0, 180.0), "2026-12-02", resolution_deg=0.5, limit_deg=2.0)
+    assert region.attrs["area_exceeding_limit_km2"] == pytest.approx(ds.attrs["area_exceeding_limit_km2"], rel=0.05)
+
+
+def test_cap_map_cell_areas_sum_to_the_geodesic_cap_area():
+    from pyproj import Geod
+
+    # limit 0: every cell exceeds, so the area is the whole cap north of 60 N; pyproj.Geod
+    # (Karney's geodesic polygon area) of the 60 N parallel gives the reference
+    ds = heading_error_grid("north", "2026-12-02", resolution_deg=0.5, limit_deg=0.0)
+    lons = np.arange(-180.0, 180.0, 0.05)
+    cap_m2, _ = Geod(ellps="WGS84").polygon_area_perimeter(lons, np.full(lons.size, 60.0))
+    assert ds.attrs["area_exceeding_limit_km2"] == pytest.approx(abs(cap_m2) / 1e6, rel=0.005)
 
 
 def test_bad_inputs():
