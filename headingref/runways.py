@@ -78,6 +78,7 @@ import re
 import warnings
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
+from numbers import Real
 from typing import Any
 
 import numpy as np
@@ -319,24 +320,25 @@ def _as_cells(table: pd.DataFrame | str | os.PathLike) -> tuple[pd.DataFrame, li
     """The input as a DataFrame with lower-case column names, plus a row label per row."""
     if isinstance(table, pd.DataFrame):
         frame = table.rename(columns=lambda c: str(c).strip().lower())
+        source = frame.attrs.get("source")
         missing = [c for c in _REQUIRED if c not in frame.columns]
         if missing:
             raise InputError(
-                f"runway table: missing column(s) {', '.join(missing)}; expected {', '.join(_REQUIRED)} and either "
-                "end_lat, end_lon or true_bearing_deg (optional elevation)"
+                f"runway table: missing column(s) {', '.join(missing)}; found {', '.join(map(str, frame.columns)) or 'none'}; "
+                f"expected {', '.join(_REQUIRED)} and either end_lat, end_lon or true_bearing_deg [, elevation]"
             )
         if frame.empty:
             raise InputError("runway table has no rows")
-        source = frame.attrs.get("source")
         labels = [f"{source} line {i}" if source else f"row {i}" for i in frame.index]
-        return frame.reset_index(drop=True), labels
-    frame = read_table(table, required=_REQUIRED, optional=_OPTIONAL, what="runway table")
+    else:
+        frame = read_table(table, required=_REQUIRED, optional=_OPTIONAL, what="runway table")
+        source = frame.attrs["source"]
+        labels = [f"{source} line {i}" for i in frame.index]
     if not ({"end_lat", "end_lon"} <= set(frame.columns) or "true_bearing_deg" in frame.columns):
         raise InputError(
-            f"runway table {frame.attrs['source']}: give columns end_lat and end_lon (the opposite threshold) "
+            f"runway table{' ' + source if source else ''}: give columns end_lat and end_lon (the opposite threshold) "
             "or true_bearing_deg"
         )
-    labels = [f"{frame.attrs['source']} line {i}" for i in frame.index]
     return frame.reset_index(drop=True), labels
 
 
@@ -397,9 +399,10 @@ def _elevations_km(frame: pd.DataFrame, problems: _Problems) -> np.ndarray:
             out[i] = parse_height_km(series.iloc[i], default_unit="m")
         except InputError as exc:
             problems.error(i, f"elevation: {exc}")
-    out[plain & ((out < -1.0) | (out > 10.0))] = 0.0
-    for i in np.flatnonzero(plain & ((numeric * 1e-3 < -1.0) | (numeric * 1e-3 > 10.0))):
-        problems.error(i, f"elevation {series.iloc[i]!r} m is outside -1000 to 10000 m (give a unit: '1200 ft')")
+    unlikely = ~blank & ((out < -1.0) | (out > 10.0))
+    for i in np.flatnonzero(unlikely):
+        problems.error(i, f"elevation {series.iloc[i]!r} is outside -1000 to 10000 m (plain numbers are metres; '1200 ft')")
+    out[unlikely] = 0.0
     return out
 
 
@@ -620,10 +623,10 @@ def check_runways(
     """
     from .field import field_arrays
 
-    if not (isinstance(tolerance_deg, (int, float)) and 0.0 <= tolerance_deg < 5.0):
-        raise InputError(f"tolerance {tolerance_deg!r} deg is outside 0 to 5 degrees")
-    if not (isinstance(horizon_years, (int, float)) and 0.0 <= horizon_years <= 200.0):
-        raise InputError(f"horizon {horizon_years!r} years is outside 0 to 200 years")
+    if isinstance(tolerance_deg, bool) or not (isinstance(tolerance_deg, Real) and 0.0 <= tolerance_deg < 5.0):
+        raise InputError(f"tolerance {tolerance_deg!r} deg is not a number from 0 up to 5 degrees")
+    if isinstance(horizon_years, bool) or not (isinstance(horizon_years, Real) and 0.0 <= horizon_years <= 200.0):
+        raise InputError(f"horizon {horizon_years!r} years is not a number from 0 to 200 years")
     the_model = load_model(model)
     start_year = float(decimal_year(date))
     start = timestamp_from_decimal_year(start_year).round("s")
@@ -758,6 +761,7 @@ def check_runways(
     status = np.where(errors, "error", np.where([bool(w) for w in problems.warnings], "warning", "ok"))
     reason = np.array(["; ".join(e + w) for e, w in zip(problems.errors, problems.warnings, strict=True)], dtype=object)
     suffix_kept = np.where(designator_ok, suffixes, "")
+    verdict[errors] = ""
     changing = change_day >= 0
     change_dates = np.full(count, "", dtype=object)
     if changing.any():
@@ -793,7 +797,7 @@ def check_runways(
         },
         columns=list(OUTPUT_COLUMNS),
     )
-    changes = out[changing].sort_values(["change_date", "airport", "runway"], kind="stable")
+    changes = out[changing & ~errors].sort_values(["change_date", "airport", "runway"], kind="stable")
     summary = {
         "date": str(start.date()) if start == start.floor("D") else str(start),
         "model": the_model.name,
@@ -807,7 +811,7 @@ def check_runways(
         "match": int((verdict == "match").sum()),
         "mismatch": int((verdict == "mismatch").sum()),
         "on_boundary": int((verdict == "on boundary").sum()),
-        "changes_within_horizon": int(changing.sum()),
+        "changes_within_horizon": int((changing & ~errors).sum()),
     }
     _warn_summary(out, labels)
     return RunwayCheck(out, summary, changes, notes, the_model, allow_extrapolation)

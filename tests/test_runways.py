@@ -415,6 +415,27 @@ def test_whole_table_faults_are_one_line_errors(tmp_path):
         check_runways(DATA / "runways_demo.csv", DATE, horizon_years=-1)
 
 
+def test_dataframe_input_with_numbers_and_bad_cells():
+    # Numeric columns as a program would pass them; the reciprocal of 9 is 27 (Annex 14 rule).
+    lat2, lon2 = 61.0, 10.04
+    frame = pd.DataFrame(
+        {"airport": ["XAD", "XAD", "XAE", "XAF"], "runway": [9, 27, 14, "09"], "lat": [61.0, lat2, 61.2, 61.3],
+         "lon": [10.0, lon2, 10.0, 10.0], "end_lat": [lat2, 61.0, np.nan, np.nan], "end_lon": [lon2, 10.0, np.nan, np.nan],
+         "true_bearing_deg": [np.nan, np.nan, 140.0, 95.0], "elevation": ["", "", "40000", "300 ft"]}
+    )
+    result = _quiet_check(frame, DATE, horizon_years=1)
+    t = result.table
+    assert t.status.tolist() == ["ok", "ok", "error", "ok"]
+    assert t.pair_runway.tolist()[:2] == ["27", "9"] and t.pair_check.tolist()[:2] == ["ok", "ok"]
+    assert "elevation" in t.reason[2] and t.input_row[2] == "row 2"
+    assert t.verdict[2] == ""  # an error row gets no verdict
+    azimuth = Geodesic.WGS84.Inverse(61.0, 10.0, lat2, lon2)["azi1"]  # geographiclib
+    assert t.true_bearing_deg[0] == pytest.approx(azimuth, abs=1e-9)
+    assert t.alt_km[3] == pytest.approx(300 * 0.3048e-3)  # international foot (1959)
+    with pytest.raises(InputError, match="end_lat and end_lon"):
+        check_runways(frame[["airport", "runway", "lat", "lon"]], DATE)
+
+
 # ----------------------------------------------------------------------------- CLI and figure
 
 
