@@ -232,17 +232,21 @@ def test_reading_far_from_heading_names_row():
         analyse_swing(magnetic, compass, rows=rows)
 
 
-def test_csv_errors_name_the_line(tmp_path):
+def test_csv_errors_name_the_line(tmp_path, capsys):
     path = tmp_path / "readings.csv"
     path.write_text("magnetic_heading_deg,compass_reading_deg\n0,1\n45,4x\n", encoding="utf-8")
-    assert main(["swing", "--input", str(path)]) == 2
+    assert main(["swing", "--input", str(path), "--output", str(tmp_path / "c.csv")]) == 2
+    err = capsys.readouterr().err.strip()
+    assert "readings.csv line 3: compass_reading_deg '4x' is not a number" in err and len(err.splitlines()) == 1
+    assert not (tmp_path / "c.csv").exists()  # nothing half-written
 
 
 def test_cli_writes_coefficients_card_and_residuals(tmp_path, capsys):
     # Pub. 226 art. 501 deviations put on magnetic headings 000..315 (compass = magnetic - deviation).
-    out, card, res, plot = (tmp_path / n for n in ("c.csv", "card.csv", "r.csv", "dev.png"))
+    out, card, res, plot, card_plot = (tmp_path / n for n in ("c.csv", "card.csv", "r.csv", "dev.png", "card.pdf"))
     code = main(["swing", "--input", str(DATA / "swing_handbook_501.csv"), "--limit", "5",
-                 "--output", str(out), "--card", str(card), "--residuals", str(res), "--plot", str(plot)])
+                 "--output", str(out), "--card", str(card), "--residuals", str(res), "--plot", str(plot),
+                 "--card-plot", str(card_plot)])
     assert code == 0
     import pandas as pd
 
@@ -256,5 +260,5 @@ def test_cli_writes_coefficients_card_and_residuals(tmp_path, capsys):
     assert row.max_residual_deg == pytest.approx(-8.0 + (b + c) * np.sqrt(0.5), abs=1e-9)
     assert row.verdict == "fail"  # 6.07 deg > the 5 deg limit given
     assert len(pd.read_csv(card)) == 12 and len(pd.read_csv(res)) == 8
-    assert plot.stat().st_size > 10_000
+    assert plot.stat().st_size > 10_000 and card_plot.read_bytes()[:4] == b"%PDF"
     assert "FAIL" in capsys.readouterr().out
