@@ -83,7 +83,8 @@ def read_table(
             line_numbers.append(reader.line_num)
     except csv.Error as exc:
         raise InputError(f"{label} line {reader.line_num}: {exc}") from None
-    assert header is not None
+    if header is None:
+        raise InputError(f"{label}: no header row; it needs columns {', '.join(required)}")
     dupes = sorted({name for name in header if header.count(name) > 1 and name})
     if dupes:
         raise InputError(f"{label}: column(s) {', '.join(dupes)} appear more than once in the header")

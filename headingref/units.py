@@ -151,6 +151,13 @@ _COORD_RE = re.compile(
 )
 
 
+def _plain_number(text: str) -> float | None:
+    try:
+        return float(text.strip().replace("−", "-"))
+    except ValueError:
+        return None
+
+
 def parse_coordinate(text: Any, kind: str) -> float:
     """Parse a latitude (``kind='lat'``) or longitude (``kind='lon'``) in decimal degrees.
 
@@ -178,6 +185,9 @@ def parse_coordinate(text: Any, kind: str) -> float:
     else:
         raw = str(text)
         match = _COORD_RE.match(raw)
+        plain = _plain_number(raw)
+        if plain is not None:
+            return parse_coordinate(plain, kind)
         if not match or (match["pre"] and match["post"]):
             raise InputError(f"{name} {raw!r} is not understood; give {accepted}")
         hemi = (match["pre"] or match["post"] or "").upper()

@@ -1,0 +1,164 @@
+"""Parsers and formatters at the edge: coordinates, dates, heights, CSV reading, atomic writes."""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pandas as pd
+import pytest
+from hypothesis import given
+from hypothesis import strategies as st
+
+from headingref import io
+from headingref.errors import InputError
+from headingref.units import (
+    FOOT_M,
+    decimal_year,
+    format_dm,
+    parse_coordinate,
+    parse_height_km,
+    timestamp_from_decimal_year,
+)
+
+
+def test_foot_and_flight_level_definitions():
+    # Source: international yard and pound agreement (1959): 1 ft = 0.3048 m exactly.
+    assert FOOT_M == 0.3048
+    assert parse_height_km("35000 ft") == pytest.approx(10.668, abs=1e-12)
+    # A flight level is hundreds of feet of pressure altitude (ICAO Annex 2 definitions, from memory);
+    # FL350 -> 35,000 ft taken as height.
+    assert parse_height_km("FL350") == pytest.approx(35000 * 0.3048 / 1000, abs=1e-12)
+    assert parse_height_km("450 m") == pytest.approx(0.45)
+    assert parse_height_km(3.2) == 3.2
+    assert parse_height_km("1000", default_unit="ft") == pytest.approx(0.3048)
+
+
+@pytest.mark.parametrize("text", ["FL", "12 parsecs", "-2 km", "1001 km", "nan", ""])
+def test_bad_heights(text):
+    with pytest.raises(InputError, match="height"):
+        parse_height_km(text)
+
+
+def test_decimal_year_convention():
+    # Calendar-year fraction with leap years (the convention of the NOAA WMM software, from memory).
+    assert decimal_year("2024-07-02") == pytest.approx(2024 + 183 / 366, abs=1e-12)
+    assert decimal_year("2023-07-02") == pytest.approx(2023 + 182 / 365, abs=1e-12)
+    assert decimal_year("2024-02-29") == pytest.approx(2024 + 59 / 366, abs=1e-12)
+    assert decimal_year("2026-12-02T12:00:00+02:00") == pytest.approx(2026 + (335 + 10 / 24) / 365, abs=1e-12)
+    assert decimal_year(2026.5) == 2026.5
+    np.testing.assert_allclose(decimal_year(["2020-01-01", 2021.25]), [2020.0, 2021.25])
+
+
+@given(st.datetimes(min_value=pd.Timestamp("1900-01-01").to_pydatetime(), max_value=pd.Timestamp("2099-12-31").to_pydatetime()))
+def test_decimal_year_round_trip(when):
+    back = timestamp_from_decimal_year(decimal_year(when))
+    assert abs((back - pd.Timestamp(when)).total_seconds()) < 1e-3
+
+
+@pytest.mark.parametrize("text", ["2025-02-30", "02/03/2025", "soon", "99999", True])
+def test_bad_dates(text):
+    with pytest.raises(InputError, match="date"):
+        decimal_year(text)
+
+
+@pytest.mark.parametrize(
+    "text, kind, expected",
+    [
+        ("N61°10.5′", "lat", 61.175),
+        ("61 10 30 N", "lat", 61 + 10 / 60 + 30 / 3600),
+        ("S33 52", "lat", -(33 + 52 / 60)),
+        ("149 54 30 W", "lon", -(149 + 54 / 60 + 30 / 3600)),
+        ("E015°38'", "lon", 15 + 38 / 60),
+        ("-149.9", "lon", -149.9),
+        ("61:10:30N", "lat", 61 + 10 / 60 + 30 / 3600),
+        ("12°30'15\" S", "lat", -(12 + 30 / 60 + 15 / 3600)),
+    ],
+)
+def test_coordinate_forms(text, kind, expected):
+    # Degrees-minutes-seconds arithmetic (common practice).
+    assert parse_coordinate(text, kind) == pytest.approx(expected, abs=1e-12)
+
+
+@pytest.mark.parametrize(
+    "text, kind, message",
+    [("N61 70", "lat", "60 or more"), ("E61", "lat", "hemisphere letter"), ("-N61", "lat", "not understood"),
+     ("91N", "lat", "outside"), ("181 W", "lon", "outside"), ("abc", "lon", "not understood"), ("", "lat", "not understood")],
+)
+def test_bad_coordinates(text, kind, message):
+    with pytest.raises(InputError, match=message):
+        parse_coordinate(text, kind)
+
+
+@given(st.floats(min_value=-90, max_value=90, allow_nan=False))
+def test_format_dm_parses_back_within_half_a_tenth_of_a_minute(value):
+    text = format_dm(value, "N", "S", decimals=1).replace(" ", "")
+    back = parse_coordinate(text, "lat")
+    assert abs(back - value) <= 0.05 / 60 + 1e-12
+
+
+@given(st.floats(min_value=-180, max_value=180, allow_nan=False), st.sampled_from(["dms", "dm", "dec"]))
+def test_longitude_text_round_trip(value, form):
+    sign = "E" if value >= 0 else "W"
+    a = abs(value)
+    deg = math.floor(a)
+    minutes = (a - deg) * 60
+    if form == "dec":
+        text = repr(value)
+    elif form == "dm":
+        text = f"{deg} {minutes:.6f} {sign}"
+    else:
+        m = math.floor(minutes)
+        text = f"{sign}{deg}°{m}′{(minutes - m) * 60:.4f}″"
+    assert parse_coordinate(text, "lon") == pytest.approx(value, abs=1e-6)
+
+
+def test_format_dm_carries_and_letters():
+    assert format_dm(12.9999) == "13°00′ E"
+    assert format_dm(-0.25) == "0°15′ W"
+    assert format_dm(float("nan")) == "undefined"
+
+
+def test_read_table_forms(tmp_path):
+    path = tmp_path / "t.csv"
+    path.write_bytes("\ufeffName;LAT;lon\nA;61,5;10\n\nB;62;11\n".encode())
+    with pytest.raises(InputError, match="line 2: lat '61,5' is not a number"):
+        io.float_column(io.read_table(path, ["name", "lat", "lon"]), "lat")
+    path.write_text("name,lat\nA,61\n")
+    with pytest.raises(InputError, match="missing column"):
+        io.read_table(path, ["name", "lat", "lon"])
+    path.write_bytes(b"\xff\xfe\x00n")
+    with pytest.raises(InputError, match="binary|UTF-8"):
+        io.read_table(path, ["lat"])
+    path.write_text("")
+    with pytest.raises(InputError, match="empty"):
+        io.read_table(path, ["lat"])
+    path.write_text("lat,lon\n1,2,3\n")
+    with pytest.raises(InputError, match="3 fields"):
+        io.read_table(path, ["lat", "lon"])
+    path.write_text("lat,lon\n1e999,2\n")
+    with pytest.raises(InputError, match="finite"):
+        io.float_column(io.read_table(path, ["lat", "lon"]), "lat")
+
+
+@given(st.binary(max_size=300))
+def test_read_table_never_crashes_on_random_bytes(tmp_path_factory, data):
+    path = tmp_path_factory.mktemp("fuzz") / "f.csv"
+    path.write_bytes(data)
+    try:
+        table = io.read_table(path, ["lat", "lon"])
+        io.coordinate_column(table, "lat", "lat")
+    except InputError:
+        pass
+
+
+def test_atomic_write_leaves_nothing_on_failure(tmp_path):
+    target = tmp_path / "out.csv"
+    target.write_text("old")
+    with pytest.raises(RuntimeError), io.atomic_path(target) as tmp:
+        tmp.write_text("half")
+        raise RuntimeError("boom")
+    assert target.read_text() == "old"
+    assert [p.name for p in tmp_path.iterdir()] == ["out.csv"]
+    with pytest.raises(InputError, match="does not exist"):
+        io.write_text(tmp_path / "no" / "x.txt", "x")
