@@ -1,0 +1,188 @@
+"""Weak-field zones: thresholds, uncertainty, GeoJSON validity (RFC 7946), areas, two dates."""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pytest
+from matplotlib.path import Path as MplPath
+from pyproj import Geod
+
+import headingref
+from headingref.errors import InputError
+from headingref.field import BLACKOUT_NT, CAUTION_NT
+from headingref.zones import (
+    DEFAULT_LABELS,
+    DEFAULT_THRESHOLDS_NT,
+    zone_areas,
+    zone_change,
+    zone_geojson,
+)
+
+DATE = "2025-06-01"
+
+
+@pytest.fixture(scope="module")
+def north():
+    return headingref.zones("north", DATE, resolution_deg=0.5)
+
+
+@pytest.fixture(scope="module")
+def south():
+    return headingref.zones("south", DATE, resolution_deg=0.5)
+
+
+def test_default_thresholds_are_the_wmm_zones():
+    # WMM2020 and WMM2025 technical reports: Blackout Zone H < 2000 nT, Caution Zone 2000-6000 nT
+    assert DEFAULT_THRESHOLDS_NT == (2000.0, 6000.0) == (BLACKOUT_NT, CAUTION_NT)
+    assert DEFAULT_LABELS == ("blackout", "caution")
+
+
+def test_zone_codes_and_uncertainty_on_the_grid(north):
+    h = north.horizontal_nT.values
+    code = north.zone_code.values
+    assert np.array_equal(code == 2, h < 2000.0) and np.array_equal(code == 1, (h >= 2000.0) & (h < 6000.0))
+    assert np.array_equal(code, north.zone.values)  # same as the field engine's WMM zones
+    # WMM2025 technical report error model: declination uncertainty sqrt(0.26^2 + (5417/H)^2) deg
+    assert np.allclose(north.declination_uncertainty_deg.values, np.sqrt(0.26**2 + (5417.0 / h) ** 2), rtol=1e-12)
+    assert {"horizontal_nT", "inclination_deg", "declination_uncertainty_deg"} <= set(north.data_vars)
+
+
+def _rings(collection):
+    for feature in collection["features"]:
+        for polygon in feature["geometry"]["coordinates"]:
+            for k, ring in enumerate(polygon):
+                yield feature, k, np.asarray(ring, dtype=np.float64)
+
+
+def _signed_area(ring):
+    return 0.5 * np.sum(ring[:-1, 0] * ring[1:, 1] - ring[1:, 0] * ring[:-1, 1])
+
+
+def assert_valid_geojson(collection, labels=DEFAULT_LABELS):
+    """RFC 7946: closed linear rings of >= 4 positions, exterior counter-clockwise and holes
+    clockwise (section 3.1.6), longitudes within -180..180 with no edge crossing the antimeridian
+    (section 3.1.9); every feature carries a zone label."""
+    json.loads(json.dumps(collection))
+    assert collection["type"] == "FeatureCollection" and collection["features"]
+    for feature in collection["features"]:
+        assert feature["type"] == "Feature" and feature["geometry"]["type"] == "MultiPolygon"
+        assert feature["properties"]["zone"] in labels
+    for _, k, ring in _rings(collection):
+        assert len(ring) >= 4 and np.array_equal(ring[0], ring[-1])
+        assert np.all(np.abs(ring[:, 0]) <= 180.0) and np.all(np.abs(ring[:, 1]) <= 90.0)
+        jumps = np.abs(np.diff(ring[:, 0])) > 180.0
+        on_pole = (np.abs(ring[:-1, 1]) == 90.0) & (np.abs(ring[1:, 1]) == 90.0)
+        assert not np.any(jumps & ~on_pole), "an edge crosses the antimeridian"
+        assert (_signed_area(ring) > 0) == (k == 0), "right-hand rule violated"
+
+
+def _inside(collection, zone, lon, lat):
+    """Point-in-polygon in the lon/lat plane (the plane GeoJSON edges are straight in)."""
+    result = np.zeros(np.shape(lon), dtype=bool)
+    points = np.column_stack([lon, lat])
+    for feature in collection["features"]:
+        if feature["properties"]["zone"] != zone:
+            continue
+        for polygon in feature["geometry"]["coordinates"]:
+            inside = MplPath(polygon[0]).contains_points(points)
+            for hole in polygon[1:]:
+                inside &= ~MplPath(hole).contains_points(points)
+            result |= inside
+    return result
+
+
+@pytest.mark.parametrize("cap", ["north", "south"])
+def test_cap_geojson_is_valid_and_matches_the_field(cap, north, south):
+    ds = north if cap == "north" else south
+    collection = zone_geojson(ds)
+    assert_valid_geojson(collection)
+    # membership of random points agrees with the field engine's own H at those points, away
+    # from the boundary (|H - threshold| > 150 nT); this exercises the antimeridian cut and the
+    # closure along the pole row
+    rng = np.random.default_rng(4)
+    n = 3000
+    sign = 1.0 if cap == "north" else -1.0
+    lat = sign * rng.uniform(52.0, 89.99, n)
+    lon = rng.uniform(-180.0, 180.0, n)
+    h = headingref.field(lat, lon, DATE).horizontal_nT.to_numpy()
+    clear = (np.abs(h - 2000.0) > 150.0) & (np.abs(h - 6000.0) > 150.0)
+    assert np.array_equal(_inside(collection, "blackout", lon, lat)[clear], (h < 2000.0)[clear])
+    assert np.array_equal(_inside(collection, "caution", lon, lat)[clear], ((h >= 2000.0) & (h < 6000.0))[clear])
+    # the dip pole (H = 0) lies inside the blackout zone
+    pole = headingref.dip_poles(DATE).set_index("pole").loc[cap]
+    assert _inside(collection, "blackout", [pole.lon], [pole.lat])[0]
+
+
+def test_polygon_area_matches_cell_count(north):
+    # independent estimate: sum of the geodesic areas (pyproj.Geod) of grid cells whose centre
+    # value falls in the zone; discretisation error at 0.5 deg is well under 3 %
+    geod = Geod(ellps="WGS84")
+    lat_edges = np.arange(50.0, 90.01, 0.5)
+    centres = lat_edges[:-1] + 0.25
+    row_km2 = np.array([
+        abs(geod.polygon_area_perimeter([0.0, 0.5, 0.5, 0.0], [a, a, a + 0.5, a + 0.5])[0]) / 1e6 for a in lat_edges[:-1]
+    ])
+    lon_centres = np.arange(-179.75, 180.0, 0.5)
+    h = headingref.field_grid(centres, lon_centres, DATE).horizontal_nT.values
+    cells = {"blackout": h < 2000.0, "caution": (h >= 2000.0) & (h < 6000.0)}
+    areas = zone_areas(north).set_index("zone").area_km2
+    for zone, mask in cells.items():
+        expected = float(np.sum(mask * row_km2[:, None]))
+        assert areas[zone] == pytest.approx(expected, rel=0.03)
+
+
+def test_region_across_the_antimeridian():
+    whole = headingref.zones((55.0, 80.0, 150.0, -120.0), DATE, resolution_deg=0.5)
+    assert whole.lon.values[0] == 150.0 and whole.lon.values[-1] == 240.0  # unwrapped coordinate
+    collection = zone_geojson(whole)
+    assert_valid_geojson(collection)
+    lons = np.concatenate([np.asarray(r)[:, 0] for _, _, r in _rings(collection)])
+    assert lons.min() < -170.0 and lons.max() > 170.0  # pieces on both sides of the antimeridian
+    west = zone_areas(headingref.zones((55.0, 80.0, 150.0, 180.0), DATE, resolution_deg=0.5)).set_index("zone")
+    east = zone_areas(headingref.zones((55.0, 80.0, -180.0, -120.0), DATE, resolution_deg=0.5)).set_index("zone")
+    both = zone_areas(whole).set_index("zone")
+    for zone in ("caution",):
+        assert both.area_km2[zone] == pytest.approx(west.area_km2[zone] + east.area_km2[zone], rel=1e-6)
+
+
+def test_user_thresholds_and_labels():
+    ds = headingref.zones("north", DATE, resolution_deg=1.0, thresholds=[3000, 8000, 10000])
+    assert ds.attrs["zone_labels"] == ["H<3000nT", "3000<=H<8000nT", "8000<=H<10000nT"]
+    h, code = ds.horizontal_nT.values, ds.zone_code.values
+    assert np.array_equal(code == 3, h < 3000) and np.array_equal(code == 0, h >= 10000)
+    collection = zone_geojson(ds)
+    assert_valid_geojson(collection, labels=ds.attrs["zone_labels"])
+    areas = zone_areas(ds).set_index("zone").area_km2
+    assert areas["H<3000nT"] > 0 and areas["8000<=H<10000nT"] > 0
+
+
+def test_boundary_moves_between_two_dates():
+    ds, table, collection = zone_change("north", "2000-01-01", "2025-01-01", resolution_deg=0.5)
+    assert ds.sizes["time"] == 2
+    assert list(table.columns) == ["zone", "area_km2_2000-01-01", "area_km2_2025-01-01", "change_km2", "change_percent"]
+    assert_valid_geojson(collection)
+    assert {f["properties"]["date"] for f in collection["features"]} == {"2000-01-01", "2025-01-01"}
+    # the north dip pole moved from about 81 N 110 W (2000) to about 86 N 139 E (2025)
+    # (from memory: IGRF-13 paper's pole table and NOAA NCEI's WMM2025 pole position): the
+    # blackout zone follows it
+    for date, (lat, lon) in {"2000-01-01": (80.97, -109.64), "2025-01-01": (85.76, 139.3)}.items():
+        one = {"type": "FeatureCollection", "features": [f for f in collection["features"] if f["properties"]["date"] == date]}
+        assert _inside(one, "blackout", [lon], [lat])[0]
+    assert np.all(np.isfinite(table.change_km2))
+
+
+def test_bad_inputs():
+    with pytest.raises(InputError, match="east"):
+        headingref.zones("east", DATE)
+    with pytest.raises(InputError, match="LAT_MIN < LAT_MAX"):
+        headingref.zones((80, 60, 0, 10), DATE)
+    with pytest.raises(InputError, match="increase"):
+        headingref.zones("north", DATE, thresholds=[6000, 2000])
+    with pytest.raises(InputError, match="resolution"):
+        headingref.zones("north", DATE, resolution_deg=0)
+    with pytest.raises(InputError, match="same"):
+        zone_change("north", DATE, DATE)
+    with pytest.raises(InputError, match="not a number"):
+        headingref.zones("60,70,abc,10", DATE)
