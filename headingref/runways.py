@@ -823,7 +823,7 @@ def _warn_summary(out: pd.DataFrame, labels: list[str]) -> None:
         if rows.size:
             first = "; ".join(f"{labels[i]}: {out['reason'].iat[i]}" for i in rows[:3])
             more = f" (and {rows.size - 3} more)" if rows.size > 3 else ""
-            what = "could not be checked" if kind == "error" else "look suspect"
+            what = "could not be checked" if kind == "error" else "carry warnings"
             warnings.warn(f"{rows.size} runway row(s) {what}: {first}{more}", DataQualityWarning, stacklevel=3)
 
 
