@@ -64,7 +64,7 @@ import numpy as np
 import pandas as pd
 import pyproj
 
-from .errors import DataQualityWarning, InputError
+from .errors import DataQualityWarning, ExtrapolationWarning, InputError
 from .headings import format_heading, format_variation, normalize_heading, parse_grid, parse_variation
 from .units import decimal_year, parse_coordinate, parse_height_km, timestamp_from_decimal_year
 
@@ -444,6 +444,10 @@ def base_upkeep(
         survey_off, mark_off = float(survey_offs[i]), float(mark_offs[i])
         survey_note = "" if math.isfinite(survey_off) else _not_found_note(allow_extrapolation, end_year)
         mark_note = "" if math.isfinite(mark_off) else _not_found_note(allow_extrapolation, end_year)
+        if survey_off > loaded.valid_to:
+            survey_note = f"extrapolated past {loaded.name}'s validity ({loaded.valid_to:g})"
+        if mark_off > loaded.valid_to:
+            mark_note = f"extrapolated past {loaded.name}'s validity ({loaded.valid_to:g})"
         if math.isfinite(mark_off) and mark_off == swing_year:
             mark_note = "already off by more than the tolerance on the swing date (mark step too coarse for the tolerance)"
         interval_year = site.survey_year + site.resurvey_years if math.isfinite(site.resurvey_years) else math.nan
@@ -508,6 +512,14 @@ def base_upkeep(
     if (table.zone != "normal").any():
         names = ", ".join(table.name[table.zone != "normal"])
         warnings.warn(f"compass base(s) {names} lie in a weak-horizontal-field zone; see the caution column", DataQualityWarning, stacklevel=2)
+    late = (table.survey_off_year > loaded.valid_to) | (table.mark_off_year > loaded.valid_to)
+    if late.any():
+        warnings.warn(
+            f"drift dates for {', '.join(table.name[late])} lie past {loaded.name}'s validity ({loaded.valid_to:g}) "
+            "and were extrapolated; treat them as rough",
+            ExtrapolationWarning,
+            stacklevel=2,
+        )
     if table.overdue.any():
         names = ", ".join(table.name[table.overdue])
         warnings.warn(f"compass base(s) {names} fall due for resurvey on or before the swing date", DataQualityWarning, stacklevel=2)

@@ -22,7 +22,7 @@ from hypothesis import strategies as st
 
 from headingref.cli import main
 from headingref.compass_base import base_upkeep, make_site, read_sites_csv, setting_out
-from headingref.errors import DataQualityWarning, InputError
+from headingref.errors import DataQualityWarning, ExtrapolationWarning, InputError
 from headingref.units import decimal_year, timestamp_from_decimal_year
 
 DATA = __import__("pathlib").Path(__file__).parent / "data"
@@ -100,8 +100,10 @@ def test_beyond_model_validity_unless_opted_in():
     assert table.survey_off_date.iloc[0] == "" and table.mark_off_date.iloc[0] == ""
     assert table.survey_off_note.iloc[0].startswith("beyond model validity")
     assert table.resurvey_due_date.iloc[0] == ""
-    opted = base_upkeep([site], "2020-01-01", variation_function=slow, allow_extrapolation=True)
+    with pytest.warns(ExtrapolationWarning, match="extrapolated"):
+        opted = base_upkeep([site], "2020-01-01", variation_function=slow, allow_extrapolation=True)
     assert opted.survey_off_date.iloc[0] == "2045-01-01"  # closed form 2020 + 0.5/0.02
+    assert opted.survey_off_note.iloc[0].startswith("extrapolated past IGRF")
 
 
 def test_model_values_and_drift_date_against_ppigrf():

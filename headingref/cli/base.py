@@ -67,6 +67,10 @@ def _sites(args):
     ]
 
 
+def _when(date: str, note: str) -> str:
+    return f"{date} ({note})" if date and note else (date or note)
+
+
 def run(args) -> int:
     from ..compass_base import SITE_CAUTION, base_upkeep, setting_out
     from ..headings import format_variation
@@ -86,9 +90,9 @@ def run(args) -> int:
         print(f"  mark {row.variation_to_mark} (record {row.variation_record}); tolerance {row.tolerance_deg:g}°")
         print(
             f"  surveyed {format_variation(row.surveyed_variation_deg)} on {row.survey_date} off by more than "
-            f"the tolerance: {row.survey_off_date or row.survey_off_note}"
+            f"the tolerance: {_when(row.survey_off_date, row.survey_off_note)}"
         )
-        print(f"  re-marked value off by more than the tolerance: {row.mark_off_date or row.mark_off_note}")
+        print(f"  re-marked value off by more than the tolerance: {_when(row.mark_off_date, row.mark_off_note)}")
         overdue = "  OVERDUE" if row.overdue else ""
         print(f"  resurvey due: {row.resurvey_due_date or 'not within model validity'} ({row.resurvey_reason}){overdue}")
         if row.surveys > 1:
