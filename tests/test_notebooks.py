@@ -1,0 +1,21 @@
+"""Every notebook runs top to bottom on the demo data (nbclient, a fresh kernel each)."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import nbformat
+import pytest
+from nbclient import NotebookClient
+
+NOTEBOOKS = sorted((Path(__file__).parent.parent / "notebooks").glob("*.ipynb"))
+
+
+@pytest.mark.parametrize("path", NOTEBOOKS, ids=[p.name for p in NOTEBOOKS])
+def test_notebook_runs(path, tmp_path, monkeypatch):
+    monkeypatch.setenv("MPLBACKEND", "Agg")
+    notebook = nbformat.read(path, as_version=4)
+    assert not any(cell.get("outputs") for cell in notebook.cells if cell.cell_type == "code"), "store notebooks clean"
+    NotebookClient(notebook, timeout=600, kernel_name="python3", resources={"metadata": {"path": str(tmp_path)}}).execute()
+    errors = [o for c in notebook.cells if c.cell_type == "code" for o in c.outputs if o.output_type == "error"]
+    assert not errors
