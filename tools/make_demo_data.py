@@ -55,10 +55,10 @@ ROUTES = {
 RUNWAYS = [
     ("JXKV", "19", "01", 186.0, 2450, 0, "well inside its designator"),
     ("JXKV", "11", "29", 108.0, 1600, 900, "well inside its designator"),
-    ("JXSF", "28", "10", 277.3, 2480, 0, "2.3 deg from 275: becomes 27 within the horizon"),
+    ("JXSF", "28", "10", 276.0, 2480, 0, "1.0 deg from 275: becomes 27 in about two years"),
     ("JXRH", "25", "07", 245.3, 3050, 0, "0.3 deg from 245: becomes 24 within months"),
     ("JXTB", "13", "31", 136.0, 1550, 0, "out of date: magnetic 136 is runway 14"),
-    ("JXSB", "07", "25", 73.0, 2130, 0, "2 deg from 075: becomes 08 within the horizon"),
+    ("JXSB", "07", "25", 74.0, 2130, 0, "1.0 deg from 075: becomes 08 in about two years"),
     ("JXLS", "01", "19", 14.6, 2500, 0, "0.4 deg from 015: becomes 02 soon"),
     ("JXLS", "36", "18", 4.0, 1300, 1200, "across 355-005: 004 is runway 36"),
     ("JXBK", "02L", "20R", 20.0, 3200, 0, "parallel pair, well inside"),
@@ -70,7 +70,7 @@ RUNWAYS = [
 
 # Compass bases: (name, lat, lon, invented local offset deg, survey dates, tolerance, resurvey years)
 BASES = [
-    ("Svalbrekka compass base", 78.2431, 15.4905, 0.15, ["2016-06-14", "2019-06-20", "2022-07-05"], 0.5, 5),
+    ("Svalbrekka compass base", 78.2431, 15.4905, 0.15, ["2015-06-16", "2018-06-20", "2021-06-22"], 0.5, 5),
     ("Birchkettle compass base", 64.8112, -147.8712, -0.10, ["2018-05-09", "2021-05-10", "2024-05-14"], 1.0, 5),
 ]
 
