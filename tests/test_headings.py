@@ -161,6 +161,18 @@ def test_plain_callable_deviation_and_arrays():
     assert m[1] == pytest.approx(92.0, abs=0.01)
 
 
+def test_swing_module_curve_is_accepted():
+    # the swing analysis' fitted curve (five-coefficient formula, NGA Pub. 226) plugs straight in
+    from headingref.swing import DeviationCurve as SwingCurve
+
+    curve = SwingCurve(A_deg=0.5, B_deg=3.0, C_deg=-2.0, D_deg=0.8, E_deg=-0.4)
+    compass = np.linspace(0.0, 359.9, 361)
+    true = compass_to_true(compass, curve, -14.0)
+    assert np.max(angle_diff(true_to_compass(true, -14.0, curve), compass)) <= 1e-9
+    magnetic = true_to_magnetic(true, -14.0)
+    assert np.max(angle_diff(magnetic - curve.deviation_deg(magnetic), compass)) <= 1e-9
+
+
 def test_steep_deviation_curve_rejected():
     with pytest.raises(InputError, match="deviation curve"):
         compass_to_magnetic(10.0, lambda m: 200.0 * np.sin(np.radians(3 * m)))
