@@ -1,0 +1,182 @@
+"""Zone, pole and error-budget maps (polar stereographic caps or a regional map, with coastlines).
+
+- :func:`plot_zone_map`: the zones of a :func:`headingref.zones` Dataset shaded (first date),
+  the boundaries of a second date outlined (dashed), optional dip and geomagnetic pole tracks.
+- :func:`plot_pole_tracks`: dip and geomagnetic pole tracks of :func:`headingref.pole_tracks` on
+  the caps, first and last years labelled.
+- :func:`plot_error_map`: the combined heading-reference error budget of
+  :func:`headingref.detector.heading_error_grid` with the limit contour and the area beyond it.
+
+Maps use :mod:`headingref.plots.basemap` (shipped Natural Earth coastline, graticule; no
+cartopy). Each function returns the matplotlib Figure; write it with :func:`save_figure`.
+
+>>> import matplotlib
+>>> matplotlib.use("Agg")
+>>> import headingref
+>>> from headingref.plots.zones import plot_zone_map
+>>> fig = plot_zone_map(headingref.zones("north", "2026-12-02", resolution_deg=1.0))
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+import numpy as np
+
+from .route import save_figure
+
+__all__ = ["plot_zone_map", "plot_pole_tracks", "plot_error_map", "save_figure"]
+
+_SEVERITY_COLOURS = ("#8c1c13", "#e4572e", "#f3a712", "#a8c686", "#669bbc")  # most severe first
+_TRACK_STYLE = {"dip": {"color": "#3a0ca3", "marker": "o"}, "geomagnetic": {"color": "#2a9d8f", "marker": "s"}}
+
+
+def _map_for(ds) -> tuple[str, Any]:
+    kind = ds.attrs.get("area_kind", "north")
+    lat_min, lat_max, lon_min, lon_max = ds.attrs.get("area_bounds", [50.0, 90.0, -180.0, 180.0])
+    if kind == "north":
+        return kind, lat_min
+    if kind == "south":
+        return kind, lat_max
+    lon_max = lon_max - 360.0 if lon_max > 180.0 else lon_max
+    return "region", (lat_min, lat_max, lon_min, lon_max)
+
+
+def _band_colours(labels: list[str]) -> dict[str, str]:
+    return {label: _SEVERITY_COLOURS[min(i, len(_SEVERITY_COLOURS) - 1)] for i, label in enumerate(labels)}
+
+
+def _draw_tracks(ax, to_map, tracks, hemisphere: str | None) -> None:
+    from .basemap import plot_lonlat, scatter_lonlat
+
+    for (kind, pole), group in tracks.groupby(["kind", "pole"], sort=True):
+        if hemisphere not in (None, "region") and pole != hemisphere:
+            continue
+        group = group.sort_values("decimal_year")
+        style = _TRACK_STYLE.get(kind, {"color": "k", "marker": "x"})
+        plot_lonlat(ax, to_map, group.lon, group.lat, color=style["color"], linewidth=1.2, zorder=4,
+                    label=f"{kind} pole {group.date.iloc[0][:4]}–{group.date.iloc[-1][:4]}")
+        scatter_lonlat(ax, to_map, group.lon.iloc[[-1]], group.lat.iloc[[-1]], color=style["color"],
+                       marker=style["marker"], s=28, zorder=5)
+        for idx in {0, len(group) - 1}:
+            x, y = to_map.transform(group.lon.iloc[idx], group.lat.iloc[idx])
+            if np.isfinite(x):
+                ax.annotate(group.date.iloc[idx][:4], (x, y), xytext=(4, 4), textcoords="offset points",
+                            fontsize=7, color=style["color"], zorder=6)
+
+
+def _on_cut(a: np.ndarray, b: np.ndarray, bounds: list[float]) -> np.ndarray:
+    """Edges lying along the antimeridian, a pole row or the grid's edge (not zone boundaries)."""
+    lat_min, lat_max, lon_min, lon_max = bounds
+    cut = (np.abs(a[:, 0]) == 180.0) & (np.abs(b[:, 0]) == 180.0)
+    cut |= (np.abs(a[:, 1]) == 90.0) & (np.abs(b[:, 1]) == 90.0)
+    for value in (lat_min, lat_max):
+        cut |= np.isclose(a[:, 1], value) & np.isclose(b[:, 1], value)
+    for value in (lon_min, (lon_max + 180.0) % 360.0 - 180.0):
+        cut |= np.isclose(a[:, 0], value) & np.isclose(b[:, 0], value)
+    return cut
+
+
+def _draw_boundaries(ax, to_map, collection: dict, bounds: list[float], colours: dict[str, str], **style) -> None:
+    """Outline the zones, leaving out the edges where polygons were cut (antimeridian, pole, grid)."""
+    from .basemap import plot_lonlat
+
+    for feature in collection["features"]:
+        colour = colours[feature["properties"]["zone"]]
+        for polygon in feature["geometry"]["coordinates"]:
+            for ring in polygon:
+                ring = np.asarray(ring, dtype=np.float64)
+                cut = _on_cut(ring[:-1], ring[1:], bounds)
+                start = 0
+                for i in [*np.flatnonzero(cut), len(ring) - 1]:
+                    if i > start:
+                        plot_lonlat(ax, to_map, ring[start:i + 1, 0], ring[start:i + 1, 1], color=colour, **style)
+                    start = i + 1
+
+
+def plot_zone_map(ds, *, tracks=None, title: str | None = None, figsize: tuple[float, float] = (7.5, 7.5)):
+    """Map of the weak-field zones of a :func:`headingref.zones` Dataset.
+
+    The first date's zones are shaded; with a second date (a two-step ``time`` dimension, as
+    from :func:`headingref.zones.zone_change`) its boundaries are drawn dashed on top. ``tracks``
+    (a :func:`headingref.pole_tracks` table) adds the pole tracks of the map's hemisphere.
+    """
+    from matplotlib.patches import Patch
+
+    from ..zones import zone_geojson
+    from .basemap import draw_geojson, map_axes
+
+    kind, extent = _map_for(ds)
+    bounds = list(ds.attrs.get("area_bounds", [50.0, 90.0, -180.0, 180.0]))
+    ax, to_map = map_axes(kind, extent, figsize=figsize)
+    collection = zone_geojson(ds)
+    dates = sorted({f["properties"]["date"] for f in collection["features"]})
+    labels = list(ds.attrs.get("zone_labels", ["blackout", "caution"]))
+    colours = _band_colours(labels)
+    handles = []
+    if dates:
+        first = {"type": "FeatureCollection", "features": [f for f in collection["features"] if f["properties"]["date"] == dates[0]]}
+        draw_geojson(ax, to_map, first, lambda p: {"facecolor": colours[p["zone"]], "edgecolor": "none", "alpha": 0.55})
+        _draw_boundaries(ax, to_map, first, bounds, colours, linewidth=0.8, zorder=3)
+        handles = [Patch(facecolor=colours[name], alpha=0.55, label=f"{name} ({dates[0]})") for name in labels]
+    for date in dates[1:]:
+        later = {"type": "FeatureCollection", "features": [f for f in collection["features"] if f["properties"]["date"] == date]}
+        _draw_boundaries(ax, to_map, later, bounds, colours, linestyle="--", linewidth=1.4, zorder=3)
+        handles.append(Patch(facecolor="none", edgecolor="0.2", linestyle="--", label=f"boundaries {date}"))
+    if tracks is not None and len(tracks):
+        _draw_tracks(ax, to_map, tracks, kind)
+        line_handles, _ = ax.get_legend_handles_labels()
+        handles.extend(line_handles)
+    if handles:
+        ax.legend(handles=handles, loc="lower left", fontsize=7, framealpha=0.85)
+    thresholds = ds.attrs.get("thresholds_nT", [2000.0, 6000.0])
+    ax.set_title(title or f"Weak horizontal field, H thresholds {', '.join(f'{t:g}' for t in thresholds)} nT "
+                 f"({ds.attrs.get('model', 'IGRF')}, {ds.attrs.get('alt_km', 0):g} km)", fontsize=9)
+    return ax.figure
+
+
+def plot_pole_tracks(tracks, *, title: str | None = None, figsize: tuple[float, float] = (11.0, 5.8)):
+    """North and south caps side by side with the dip and geomagnetic pole tracks."""
+    import matplotlib.pyplot as plt
+
+    from .basemap import map_axes
+
+    fig, axes = plt.subplots(1, 2, figsize=figsize)
+    for ax, hemisphere in zip(axes, ("north", "south"), strict=True):
+        part = tracks[tracks.pole == hemisphere]
+        edge = float(np.floor(min(np.abs(part.lat).min() - 5.0, 60.0) / 5.0) * 5.0) if len(part) else 60.0
+        ax, to_map = map_axes(hemisphere, edge, ax=ax)
+        _draw_tracks(ax, to_map, part, hemisphere)
+        ax.legend(loc="lower left", fontsize=7, framealpha=0.85)
+        ax.set_title(f"{hemisphere.capitalize()} poles", fontsize=9)
+    fig.suptitle(title or "Dip poles (H = 0) and geomagnetic (centred-dipole) poles", fontsize=10)
+    return fig
+
+
+def plot_error_map(ds, *, title: str | None = None, vmax_deg: float = 10.0, figsize: tuple[float, float] = (7.5, 7.5)):
+    """The combined error budget (root-sum-square, degrees) with the limit contour."""
+    from .basemap import draw_coastlines, map_axes
+
+    kind = ds.attrs.get("area_kind", "north")
+    limit = float(ds.attrs.get("limit_deg", 2.0))
+    values = np.asarray(ds["budget_rss_deg"].values, dtype=np.float64)
+    if "x" in ds.dims:  # polar stereographic grid, same projection as the cap basemap
+        edge = float(np.min(np.abs(ds["lat"].values[np.isfinite(values)])))
+        ax, to_map = map_axes(kind, edge, figsize=figsize, coastlines=False)
+        x, y = ds["x"].values, ds["y"].values
+    else:
+        bounds = ds.attrs["area_bounds"]
+        lon_max = bounds[3] - 360.0 if bounds[3] > 180.0 else bounds[3]
+        ax, to_map = map_axes("region", (bounds[0], bounds[1], bounds[2], lon_max), figsize=figsize, coastlines=False)
+        lon2, lat2 = np.meshgrid(ds["lon"].values, ds["lat"].values)
+        x, y = to_map.transform(lon2, lat2)
+    mesh = ax.pcolormesh(x, y, np.ma.masked_invalid(values), cmap="magma_r", vmin=0.0, vmax=vmax_deg,
+                         shading="nearest", zorder=0.5)
+    if np.nanmax(values) > limit > np.nanmin(values):
+        ax.contour(x, y, values, levels=[limit], colors="#0b3954", linewidths=1.4, zorder=3)
+    draw_coastlines(ax, to_map)
+    bar = ax.figure.colorbar(mesh, ax=ax, shrink=0.75, extend="max")
+    bar.set_label("heading error budget, root-sum-square (deg)")
+    area = ds.attrs.get("area_exceeding_limit_km2", float("nan"))
+    ax.set_title(title or f"Heading-reference error budget; contour {limit:g}°, beyond it {area:,.0f} km²", fontsize=9)
+    return ax.figure
