@@ -48,6 +48,13 @@ def as_datetime(year: float) -> dt.datetime:
     return timestamp_from_decimal_year(year).to_pydatetime()
 
 
+def sites_file(tmp_path, *rows: str):
+    """Write an invented sites CSV with the standard header and the given rows."""
+    path = tmp_path / "sites.csv"
+    path.write_text("name,lat,lon,surveyed_variation,survey_date\n" + "".join(r + "\n" for r in rows), encoding="utf-8")
+    return path
+
+
 @pytest.mark.parametrize("rate", [0.1, -0.1])
 @pytest.mark.parametrize("swing", ["2020-01-01", "2023-03-01", "2026-12-02"])
 def test_resurvey_due_five_years_after_survey_at_point_one_degree_a_year(rate, swing):
@@ -175,18 +182,13 @@ def test_degree_minute_variation():
 
 
 def test_future_survey_date_names_the_row(tmp_path):
-    path = tmp_path / "sites.csv"
-    path.write_text(
-        "name,lat,lon,surveyed_variation,survey_date\nInvented A,60,10,3E,2020-01-01\nInvented B,61,11,3E,2031-05-01\n",
-        encoding="utf-8",
-    )
+    path = sites_file(tmp_path, "Invented A,60,10,3E,2020-01-01", "Invented B,61,11,3E,2031-05-01")
     with pytest.raises(InputError, match="sites.csv line 3: survey date 2031-05-01 is in the future"):
         read_sites_csv(path, today="2026-12-02")
 
 
 def test_unparseable_variation_names_the_row(tmp_path):
-    path = tmp_path / "sites.csv"
-    path.write_text("name,lat,lon,surveyed_variation,survey_date\nInvented A,60,10,3 east-ish,2020-01-01\n", encoding="utf-8")
+    path = sites_file(tmp_path, "Invented A,60,10,3 east-ish,2020-01-01")
     with pytest.raises(InputError, match="sites.csv line 2: variation '3 east-ish' is not understood"):
         read_sites_csv(path)
 
@@ -232,13 +234,11 @@ def test_cli_base_writes_tables(tmp_path, capsys):
 
 
 def test_survey_history_rows_merge_into_the_latest_survey(tmp_path):
-    path = tmp_path / "sites.csv"
-    path.write_text(
-        "name,lat,lon,surveyed_variation,survey_date\n"
-        "Invented history base,70,20,8.9E,2019-01-01\n"
-        "Invented history base,70,20,8.0E,2016-01-01\n"
-        "Invented other base,60,10,2W,2020-01-01\n",
-        encoding="utf-8",
+    path = sites_file(
+        tmp_path,
+        "Invented history base,70,20,8.9E,2019-01-01",
+        "Invented history base,70,20,8.0E,2016-01-01",
+        "Invented other base,60,10,2W,2020-01-01",
     )
     sites = read_sites_csv(path)
     assert [s.name for s in sites] == ["Invented history base", "Invented other base"]
@@ -251,10 +251,6 @@ def test_survey_history_rows_merge_into_the_latest_survey(tmp_path):
 
 
 def test_history_rows_at_different_positions_name_the_row(tmp_path):
-    path = tmp_path / "sites.csv"
-    path.write_text(
-        "name,lat,lon,surveyed_variation,survey_date\nInvented base,70,20,8.9E,2019-01-01\nInvented base,70.5,20,8.0E,2016-01-01\n",
-        encoding="utf-8",
-    )
+    path = sites_file(tmp_path, "Invented base,70,20,8.9E,2019-01-01", "Invented base,70.5,20,8.0E,2016-01-01")
     with pytest.raises(InputError, match="sites.csv line 2: base 'Invented base' is at a different position from sites.csv line 3"):
         read_sites_csv(path)
