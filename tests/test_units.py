@@ -100,16 +100,16 @@ def test_format_dm_parses_back_within_half_a_tenth_of_a_minute(value):
 @given(st.floats(min_value=-180, max_value=180, allow_nan=False), st.sampled_from(["dms", "dm", "dec"]))
 def test_longitude_text_round_trip(value, form):
     sign = "E" if value >= 0 else "W"
-    a = abs(value)
-    deg = math.floor(a)
-    minutes = (a - deg) * 60
+    total_seconds = round(abs(value) * 3600, 4)  # round first so that no field prints as 60
+    deg = int(total_seconds // 3600)
+    minutes = (total_seconds - 3600 * deg) / 60
     if form == "dec":
         text = repr(value)
     elif form == "dm":
-        text = f"{deg} {minutes:.6f} {sign}"
+        text = f"{deg} {minutes:.7f} {sign}"
     else:
         m = math.floor(minutes)
-        text = f"{sign}{deg}°{m}′{(minutes - m) * 60:.4f}″"
+        text = f"{sign}{deg}°{m}′{total_seconds - 3600 * deg - 60 * m:.4f}″"
     assert parse_coordinate(text, "lon") == pytest.approx(value, abs=1e-6)
 
 
