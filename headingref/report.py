@@ -492,6 +492,27 @@ def _job_zones(run: _Run, sec: Section) -> None:
     sec.blocks.append(run.files_html(names))
 
 
+def _boundary_pieces(geometry: dict) -> list[tuple[np.ndarray, np.ndarray]]:
+    """The real boundary lines of a zone (Multi)Polygon: rings without the edges along the
+    antimeridian cut and the pole row, which close the lon/lat polygons but are no boundary."""
+    polygons = geometry["coordinates"] if geometry["type"] == "MultiPolygon" else [geometry["coordinates"]]
+    pieces = []
+    for rings in polygons:
+        for ring in rings:
+            xy = np.asarray(ring, dtype=float)
+            lon, lat = xy[:, 0], xy[:, 1]
+            seam = (np.abs(lon) >= 180.0 - 1e-9) | (np.abs(lat) >= 90.0 - 1e-9)
+            artificial = seam[:-1] & seam[1:]  # an edge with both ends on the cut or the pole row
+            start = 0
+            for i in np.flatnonzero(artificial):
+                if i + 1 - start >= 2:
+                    pieces.append((lon[start:i + 1], lat[start:i + 1]))
+                start = i + 1
+            if len(lon) - start >= 2:
+                pieces.append((lon[start:], lat[start:]))
+    return pieces
+
+
 def _zone_figure(run: _Run, collection: dict, tracks: pd.DataFrame):
     from .plots import basemap
 
@@ -505,7 +526,8 @@ def _zone_figure(run: _Run, collection: dict, tracks: pd.DataFrame):
         if props.get("date") == dates[-1]:
             basemap.draw_geojson(ax, to_map, feature, style={"facecolor": colour, "edgecolor": "none", "alpha": 0.45})
         else:
-            basemap.draw_geojson(ax, to_map, feature, style={"facecolor": "none", "edgecolor": colour, "linestyle": "--", "linewidth": 1.0})
+            for lon, lat in _boundary_pieces(feature["geometry"]):
+                basemap.plot_lonlat(ax, to_map, lon, lat, color=colour, linestyle="--", linewidth=1.0)
     hemi = "north" if z["cap"] == "north" else "south"
     dip = tracks[(tracks["pole"] == hemi) & (tracks["kind"] == "dip")]
     basemap.plot_lonlat(ax, to_map, dip["lon"], dip["lat"], color="k", linewidth=1.2)
@@ -579,49 +601,67 @@ def _budget_map_figure(run: _Run, grids: dict, b: dict, z: dict):
     return fig
 
 
+def _survey_history(run: _Run, sites: list) -> pd.DataFrame:
+    """Every survey of every base beside the model's variation on the survey date."""
+    from .field import field_arrays
+    from .units import timestamp_from_decimal_year
+
+    rows = []
+    for site in sites:
+        for year, value in sorted([*getattr(site, "history", ()), (site.survey_year, site.surveyed_variation_deg)]):
+            rows.append({"name": site.name, "lat_deg": site.lat_deg, "lon_deg": site.lon_deg, "alt_km": site.alt_km,
+                         "survey_year": year, "surveyed_variation_deg": value})
+    table = pd.DataFrame(rows)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # base_upkeep has already warned about the same dates
+        model_deg = field_arrays(table["lat_deg"].to_numpy(), table["lon_deg"].to_numpy(), table["survey_year"].to_numpy(),
+                                 table["alt_km"].to_numpy(), model=run.model, allow_extrapolation=True)["declination_deg"]
+    table.insert(4, "survey_date", [f"{timestamp_from_decimal_year(y).round('D'):%Y-%m-%d}" for y in table["survey_year"]])
+    table["model_variation_at_survey_deg"] = model_deg
+    table["survey_minus_model_deg"] = table["surveyed_variation_deg"] - model_deg
+    return table
+
+
 def _job_bases(run: _Run, sec: Section) -> None:
     c = run.sc.compass_bases
     read_sites_csv, base_upkeep, setting_out = _need("compass_base", "read_sites_csv", "base_upkeep", "setting_out")
     sites = read_sites_csv(c["file"], tolerance_deg=c["tolerance_deg"], resurvey_years=c["resurvey_years"])
-    history = base_upkeep(sites, c["swing_date"], model=run.model, allow_extrapolation=run.sc.allow_extrapolation)
-    history["survey_year"] = [s.survey_year for s in sites]
-    latest_index = history.groupby("name", sort=False)["survey_year"].idxmax()
-    upkeep = history.loc[latest_index].reset_index(drop=True)
+    upkeep = base_upkeep(sites, c["swing_date"], model=run.model, allow_extrapolation=run.sc.allow_extrapolation)
+    history = _survey_history(run, sites)
     grid = run.sc.routes["grid"] if run.sc.routes else "polar"
     lines = setting_out(upkeep, lines_deg=c["setting_out_lines_deg"], distances_m=c["setting_out_distances_m"], grid=grid)
     run.tables.update({"base_upkeep": upkeep, "base_history": history, "setting_out": lines})
     names = [run.write_csv("compass_bases.csv", upkeep), run.write_csv("compass_base_history.csv", history),
              run.write_csv("setting_out.csv", lines)]
-    swing_year = float(decimal_year(c["swing_date"]))
     for _, r in upkeep.iterrows():
         due, reason = r.get("resurvey_due_date", ""), r.get("resurvey_reason", "")
-        due_year = r.get("resurvey_due_year", float("nan"))
-        state = "overdue since" if (isinstance(due_year, float) and due_year <= swing_year) else "due"
-        due_text = f"resurvey {state} <b>{_esc(due)}</b> ({_esc(reason)})" if due else f"no resurvey date within the model ({_esc(r.get('marked_off_note', ''))})"
+        due = "" if not isinstance(due, str) else due
+        state = "<b>overdue</b> since" if bool(r.get("overdue", False)) else "due"
+        due_text = f"resurvey {state} <b>{_esc(due)}</b> ({_esc(reason)})" if due else "no resurvey date within the model's validity"
         run.summary["bases"].append(
-            f"{_esc(r['name'])}: mark {_esc(r['variation_to_mark'])} for the swing on {_esc(c['swing_date'])} "
-            f"(changing {_esc(r['annual_change'])}); {due_text}."
+            f"{_esc(r['name'])}: {due_text}; mark {_esc(r['variation_to_mark'])} for the swing on {_esc(c['swing_date'])} "
+            f"(variation changing {_esc(r['annual_change'])})."
         )
     sec.blocks.append(
         f"<p>For the swing planned on {_esc(c['swing_date'])}: the latest survey of each base carried forward with the model's "
-        "change since that survey, the value to mark, when the mark drifts out of tolerance and when the base is due for "
-        "resurvey. The survey on the site governs: the model omits local crustal anomalies.</p>"
+        "change since that survey, the value to mark, the first date the surveyed value is off by more than the tolerance, "
+        "and the resurvey due date (that date or the fixed interval, whichever comes first). The survey on the site "
+        "governs: the model omits local crustal anomalies.</p>"
     )
     sec.blocks.append(_table_html(upkeep, {
         "name": "base", "survey_date": "last survey", "surveyed_variation_deg": "surveyed °", "model_change_since_survey_deg": "model change since °",
         "predicted_variation_deg": "predicted °", "variation_to_mark": "mark", "annual_change": "annual change",
-        "tolerance_deg": "tolerance °", "marked_off_date": "mark off tolerance", "resurvey_due_date": "resurvey due",
-        "resurvey_reason": "because", "horizontal_nT": "H nT", "declination_uncertainty_deg": "D uncertainty °", "zone": "zone",
-    }))
+        "tolerance_deg": "tolerance °", "resurvey_due_date": "resurvey due", "resurvey_reason": "because",
+        "mark_off_date": "new mark off tolerance", "horizontal_nT": "H nT", "declination_uncertainty_deg": "D uncertainty °", "zone": "zone",
+    }, highlight=lambda r: "bad" if bool(r.get("overdue", False)) else ""))
     sec.blocks.append("<h3>Survey history against the model</h3>" + _table_html(history, {
         "name": "base", "survey_date": "survey", "surveyed_variation_deg": "surveyed °", "model_variation_at_survey_deg": "model °",
         "survey_minus_model_deg": "survey − model °"}))
     sec.blocks.append('<div class="figs">' + _figure_html(_base_history_figure(run, upkeep, history), "survey history",
-                      "Surveyed variation, the model carried from the latest survey, and the tolerance band.") + "</div>")
-    first = lines.groupby("name", sort=False).head(len(c["setting_out_lines_deg"]) * len(c["setting_out_distances_m"]))
+                      "Surveys, the model carried from the latest survey, and the band the new mark stays valid in.") + "</div>")
     sec.blocks.append(
         "<details><summary>Setting-out table for the survey party</summary>"
-        + _table_html(first, {"name": "base", "line": "magnetic line", "true_azimuth_deg": "true azimuth °",
+        + _table_html(lines, {"name": "base", "line": "magnetic line", "true_azimuth_deg": "true azimuth °",
                               "grid_azimuth_deg": "grid azimuth °", "distance_m": "distance m", "lat_deg": "lat °", "lon_deg": "lon °"})
         + "</details>"
     )
@@ -635,17 +675,16 @@ def _base_history_figure(run: _Run, upkeep: pd.DataFrame, history: pd.DataFrame)
 
     fig, axes = plt.subplots(1, len(upkeep), figsize=(5.5 * len(upkeep), 3.6), squeeze=False)
     swing_year = float(decimal_year(run.sc.compass_bases["swing_date"]))
+    valid_to = run.model.valid_to if run.model is not None else 2030.0
     for ax, (_, base) in zip(axes[0], upkeep.iterrows(), strict=True):
         rows = history[history["name"] == base["name"]]
-        valid_to = run.model.valid_to if run.model is not None else 2030.0
         years = np.linspace(rows["survey_year"].min() - 1.0, min(swing_year + 5.0, valid_to), 120)
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
             d = field_arrays(np.full_like(years, base["lat_deg"]), np.full_like(years, base["lon_deg"]), years, base["alt_km"],
                              model=run.model, allow_extrapolation=run.sc.allow_extrapolation)["declination_deg"]
-        offset = base["survey_minus_model_deg"]
         ax.plot(years, d, color="0.5", linewidth=1, label="model (main field)")
-        ax.plot(years, d + offset, color="C0", label="carried from latest survey")
+        ax.plot(years, d + base["survey_minus_model_deg"], color="C0", label="carried from latest survey")
         mark, tol = base["variation_to_mark_deg"], base["tolerance_deg"]
         ax.axhspan(mark - tol, mark + tol, color="C2", alpha=0.15, label=f"mark {mark:g}° ± {tol:g}°")
         ax.scatter(rows["survey_year"], rows["surveyed_variation_deg"], color="k", zorder=3, label="surveys")
