@@ -55,7 +55,7 @@ import numpy as np
 import pandas as pd
 
 from .detector import heading_error  # noqa: F401  (re-exported by the package)
-from .errors import InputError, UndefinedDeclinationWarning
+from .errors import ExtrapolationWarning, InputError, UndefinedDeclinationWarning
 from .units import decimal_year, timestamp_from_decimal_year
 
 DEFAULT_THRESHOLDS_NT = (2000.0, 6000.0)  # WMM2020/WMM2025 technical reports: blackout, caution
@@ -108,7 +108,9 @@ def _nodes(start: float, stop: float, step: float, extra: Sequence[float] = ()) 
     return np.unique(np.round(values, 9))
 
 
-def area_grid(area: Any, date: Any, *, resolution_deg: float = 0.5, alt_km: float = 0.0, model=None):
+def area_grid(
+    area: Any, date: Any, *, resolution_deg: float = 0.5, alt_km: float = 0.0, model=None, allow_extrapolation: bool = False
+):
     """The field grid (:func:`headingref.field.field_grid`) over a cap or region.
 
     Longitudes are unwrapped (a region across the antimeridian runs past 180), always include
@@ -133,7 +135,7 @@ def area_grid(area: Any, date: Any, *, resolution_deg: float = 0.5, alt_km: floa
     wrapped[(lons == 180.0)] = 180.0
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", UndefinedDeclinationWarning)  # pole row: D undefined, H and I fine
-        ds = field_grid(lats, wrapped, date, alt_km=alt_km, model=model)
+        ds = field_grid(lats, wrapped, date, alt_km=alt_km, model=model, allow_extrapolation=allow_extrapolation)
     ds = ds.assign_coords(lon=("lon", lons, {"units": "degrees_east", "long_name": "longitude (unwrapped)"}))
     ds.attrs.update(area_kind=kind, area_bounds=[lat_min, lat_max, lon_min, lon_max], resolution_deg=step)
     return ds
@@ -171,6 +173,7 @@ def zones(
     labels: Sequence[str] | None = None,
     alt_km: float = 0.0,
     model=None,
+    allow_extrapolation: bool = False,
 ):
     """Horizontal intensity, declination uncertainty, inclination and threshold zones on a grid.
 
@@ -192,7 +195,8 @@ def zones(
         lowest). ``attrs``: ``thresholds_nT``, ``zone_labels``, area description.
     """
     values, names = _check_thresholds(thresholds, labels)
-    ds = area_grid(area, date, resolution_deg=resolution_deg, alt_km=alt_km, model=model)
+    ds = area_grid(area, date, resolution_deg=resolution_deg, alt_km=alt_km, model=model,
+                   allow_extrapolation=allow_extrapolation)
     h = ds["horizontal_nT"].values
     code = (len(values) - np.searchsorted(np.asarray(values), h, side="right")).astype(np.int8)
     ds["zone_code"] = (ds["horizontal_nT"].dims, code, {
@@ -434,13 +438,14 @@ def _map_horizontal(hemisphere: str, lon_deg: np.ndarray, north: np.ndarray, eas
     return np.stack([north * s + east * c, north * c - east * s])  # x = rho sin(lon), y = rho cos(lon)
 
 
-def _dip_pole(year: float, hemisphere: str, model, alt_km: float, tol_nT: float = 1e-3) -> tuple[float, float, float]:
+def _dip_pole(year: float, hemisphere: str, model, alt_km: float, tol_nT: float = 1e-3,
+              extrapolate: bool = False) -> tuple[float, float, float]:
     from .field import field_arrays, field_grid
 
     sign = 1.0 if hemisphere == "north" else -1.0
     lats = sign * np.arange(45.0, 90.0, 1.0)
     lons = np.arange(-180.0, 180.0, 1.0)
-    grid = field_grid(lats, lons, year, alt_km=alt_km, model=model)["horizontal_nT"].values
+    grid = field_grid(lats, lons, year, alt_km=alt_km, model=model, allow_extrapolation=extrapolate)["horizontal_nT"].values
     i, j = np.unravel_index(np.argmin(grid), grid.shape)
     to_map = _stereo(hemisphere)
     x, y = to_map.transform(lons[j], lats[i])
@@ -448,7 +453,7 @@ def _dip_pole(year: float, hemisphere: str, model, alt_km: float, tol_nT: float 
 
     def residual(px: np.ndarray, py: np.ndarray) -> np.ndarray:
         lon, lat = to_map.transform(px, py, direction="INVERSE")
-        f = field_arrays(lat, lon, np.full(np.shape(px), year), alt_km=alt_km, model=model)
+        f = field_arrays(lat, lon, np.full(np.shape(px), year), alt_km=alt_km, model=model, allow_extrapolation=extrapolate)
         return _map_horizontal(hemisphere, np.asarray(lon), f["north_nT"], f["east_nT"])
 
     for _ in range(60):
@@ -468,7 +473,7 @@ def _dip_pole(year: float, hemisphere: str, model, alt_km: float, tol_nT: float 
         if length < 1e-4:
             break
     lon, lat = to_map.transform(x, y, direction="INVERSE")
-    f = field_arrays(lat, lon, year, alt_km=alt_km, model=model)
+    f = field_arrays(lat, lon, year, alt_km=alt_km, model=model, allow_extrapolation=extrapolate)
     return float(lat), float((lon + 180.0) % 360.0 - 180.0), float(f["horizontal_nT"][0])
 
 
@@ -481,19 +486,20 @@ def dip_poles(date: Any, model=None, alt_km: float = 0.0, allow_extrapolation: b
     """
     m = _model(model)
     years = _years(date)
-    m.check_dates(years, allow_extrapolation)
+    m.check_dates(years, allow_extrapolation)  # warns once if extrapolating
     rows = []
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", UndefinedDeclinationWarning)  # D is undefined at the pole found
+        warnings.simplefilter("ignore", ExtrapolationWarning)  # already warned above
         for year in years:
             for pole in _CAPS:
-                lat, lon, h = _dip_pole(float(year), pole, m, alt_km)
+                lat, lon, h = _dip_pole(float(year), pole, m, alt_km, extrapolate=allow_extrapolation)
                 rows.append({"date": _date_label(year), "pole": pole, "kind": "dip", "lat": lat, "lon": lon,
                              "decimal_year": float(year), "horizontal_nT": h})
     return pd.DataFrame(rows)
 
 
-def pole_tracks(start: Any, end: Any, step_years: float = 1.0, model=None) -> pd.DataFrame:
+def pole_tracks(start: Any, end: Any, step_years: float = 1.0, model=None, allow_extrapolation: bool = False) -> pd.DataFrame:
     """Dip and geomagnetic poles from ``start`` to ``end`` (inclusive) every ``step_years``.
 
     Columns ``date, pole, kind, lat, lon, decimal_year`` (plus ``horizontal_nT`` for dip poles).
@@ -511,7 +517,7 @@ def pole_tracks(start: Any, end: Any, step_years: float = 1.0, model=None) -> pd
     if count > 2000:
         raise InputError(f"{count} dates from {start!r} to {end!r}; use a larger step (at most 2000 dates)")
     years = y0 + step * np.arange(count)
-    dip = dip_poles(years, model=model)
-    geo = geomagnetic_poles(years, model=model)[["date", "pole", "kind", "lat", "lon", "decimal_year"]]
+    dip = dip_poles(years, model=model, allow_extrapolation=allow_extrapolation)
+    geo = geomagnetic_poles(years, model=model, allow_extrapolation=allow_extrapolation)[["date", "pole", "kind", "lat", "lon", "decimal_year"]]
     table = pd.concat([dip, geo], ignore_index=True)
     return table.sort_values(["kind", "pole", "decimal_year"], kind="stable").reset_index(drop=True)
