@@ -46,7 +46,7 @@ Public API
 ----------
 :func:`deviation_from_readings`, :func:`fit_deviation`, :func:`eight_point_coefficients`,
 :func:`analyse_swing`, :func:`read_swing_csv`, :func:`correction_card`,
-:class:`DeviationCurve`, :class:`SwingAnalysis`, :data:`DEFAULT_LIMIT_DEG`,
+:class:`DeviationCurve`, :class:`DeviationFit`, :class:`SwingAnalysis`, :data:`DEFAULT_LIMIT_DEG`,
 :data:`COEFFICIENT_MEANINGS`.
 
 >>> import numpy as np
@@ -80,6 +80,7 @@ __all__ = [
     "COEFFICIENT_MEANINGS",
     "DEFAULT_LIMIT_DEG",
     "DeviationCurve",
+    "DeviationFit",
     "SwingAnalysis",
     "analyse_swing",
     "correction_card",
@@ -253,7 +254,9 @@ def eight_point_coefficients(deviations_deg: Sequence[float]) -> dict[str, float
 
 
 @dataclass
-class _Fit:
+class DeviationFit:
+    """Result of :func:`fit_deviation`."""
+
     curve: DeviationCurve
     table: pd.DataFrame  # coefficient, value_deg, standard_error_deg, inflation, determined, meaning
     condition_number: float
@@ -273,8 +276,7 @@ def fit_deviation(
     magnetic_heading_deg,
     deviation_deg,
     coefficients: str = "ABCDE",
-    rows: Sequence[str] | None = None,
-) -> _Fit:
+) -> DeviationFit:
     """Least-squares fit of the deviation curve to deviations observed on magnetic headings.
 
     Parameters
@@ -284,12 +286,9 @@ def fit_deviation(
     coefficients : str
         Which coefficients to fit (subset of 'ABCDE', 'A' always recommended); the others are 0.
         A four-point swing on the cardinal headings determines 'ABCE' only.
-    rows : sequence of str, optional
-        Labels naming each reading in messages (e.g. ``'readings.csv line 4'``).
-
     Returns
     -------
-    An object with ``curve`` (:class:`DeviationCurve`), ``table`` (one row per coefficient:
+    DeviationFit with ``curve`` (:class:`DeviationCurve`), ``table`` (one row per coefficient:
     ``coefficient, value_deg, standard_error_deg, inflation, determined, meaning``),
     ``condition_number`` (2-norm condition number of the design matrix; sqrt(2) for an evenly
     spread swing of 5 or more headings), ``rms_residual_deg`` and ``dof``.
@@ -302,7 +301,8 @@ def fit_deviation(
         raise InputError(f"coefficients {coefficients!r}: give letters from ABCDE, e.g. 'ABCDE' or 'ABCE'")
     h = np.asarray(magnetic_heading_deg, dtype=np.float64).ravel()
     d = np.asarray(deviation_deg, dtype=np.float64).ravel()
-    labels = _labels(len(h), rows)
+    if h.shape != d.shape or not (np.all(np.isfinite(h)) and np.all(np.isfinite(d))):
+        raise InputError("fit needs one finite magnetic heading per finite deviation, in degrees")
     p = len(names)
     distinct = np.unique(np.round(_wrap360(h), 6))
     if len(h) < p or len(distinct) < p:
@@ -341,10 +341,12 @@ def fit_deviation(
     if inflation.max() > INFLATION_WARN:
         gaps = np.diff(np.concatenate([distinct, [distinct[0] + 360.0]]))
         worst = names[int(np.argmax(inflation))]
+        after = distinct[(int(np.argmax(gaps)) + 1) % len(distinct)]
         warnings.warn(
-            f"headings bunched on one side of the circle (largest gap {gaps.max():.0f} deg between readings): "
-            f"coefficients ill-determined, condition number {condition:.1f}, standard error of {worst} "
-            f"{inflation.max():.1f} times that of an evenly spread swing (labels {labels[0]}..{labels[-1]})",
+            f"headings bunched on one side of the circle ({len(distinct)} headings from {_three_digits(after)} "
+            f"clockwise over {360.0 - gaps.max():.0f} deg, largest gap {gaps.max():.0f} deg): coefficients "
+            f"ill-determined, condition number {condition:.1f}, standard error of {worst} "
+            f"{inflation.max():.1f} times that of an evenly spread swing; swing on headings all round the circle",
             DataQualityWarning,
             stacklevel=2,
         )
@@ -362,7 +364,7 @@ def fit_deviation(
     )
     curve = DeviationCurve(*(values[n] for n in COEFFICIENT_NAMES))
     rms = float(np.sqrt(np.mean(residual**2)))
-    return _Fit(curve=curve, table=table, condition_number=condition, rms_residual_deg=rms, dof=dof)
+    return DeviationFit(curve=curve, table=table, condition_number=condition, rms_residual_deg=rms, dof=dof)
 
 
 def correction_card(curve: DeviationCurve, magnetic_headings_deg: Sequence[float] | None = None) -> pd.DataFrame:
@@ -500,7 +502,7 @@ def analyse_swing(
             )
             notes.append(message)
             warnings.warn(message, DataQualityWarning, stacklevel=2)
-    fit = fit_deviation(h, dev, coefficients=coefficients, rows=labels)
+    fit = fit_deviation(h, dev, coefficients=coefficients)
     curve = fit.curve
     fitted = np.asarray(curve.deviation_deg(h))
     bc = curve.B_deg * np.sin(np.radians(h)) + curve.C_deg * np.cos(np.radians(h))
