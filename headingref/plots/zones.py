@@ -58,11 +58,11 @@ def _draw_tracks(ax, to_map, tracks, hemisphere: str | None) -> None:
                     label=f"{kind} pole {group.date.iloc[0][:4]}–{group.date.iloc[-1][:4]}")
         scatter_lonlat(ax, to_map, group.lon.iloc[[-1]], group.lat.iloc[[-1]], color=style["color"],
                        marker=style["marker"], s=28, zorder=5)
-        for idx in {0, len(group) - 1}:
+        for idx, offset, align in ((0, (-4, -10), "right"), (len(group) - 1, (4, 4), "left")):
             x, y = to_map.transform(group.lon.iloc[idx], group.lat.iloc[idx])
-            if np.isfinite(x):
-                ax.annotate(group.date.iloc[idx][:4], (x, y), xytext=(4, 4), textcoords="offset points",
-                            fontsize=7, color=style["color"], zorder=6)
+            if np.isfinite(x) and not (idx == 0 and len(group) == 1):
+                ax.annotate(group.date.iloc[idx][:4], (x, y), xytext=offset, textcoords="offset points",
+                            ha=align, fontsize=7, color=style["color"], zorder=6)
 
 
 def _on_cut(a: np.ndarray, b: np.ndarray, bounds: list[float]) -> np.ndarray:
