@@ -166,11 +166,9 @@ class DeviationCurve:
 
     def deviation_deg(self, magnetic_heading_deg):
         """Deviation (degrees, east positive) on the given magnetic heading(s)."""
-        scalar = np.ndim(magnetic_heading_deg) == 0
-        values = _basis(np.atleast_1d(magnetic_heading_deg), COEFFICIENT_NAMES) @ np.array(
-            list(self.coefficients().values())
-        )
-        return float(values[0]) if scalar else values
+        h = np.asarray(magnetic_heading_deg, dtype=np.float64)
+        values = _basis(h.ravel(), COEFFICIENT_NAMES) @ np.array(list(self.coefficients().values()))
+        return float(values[0]) if h.ndim == 0 else values.reshape(h.shape)
 
     def slope_per_deg(self, magnetic_heading_deg):
         """d(dev)/dh, degrees of deviation per degree of heading."""
@@ -407,6 +405,7 @@ class SwingAnalysis:
     max_residual_row: str
     limit_deg: float
     verdict: str
+    max_curve_residual_deg: float = math.nan
     notes: list[str] = field(default_factory=list)
 
     def summary_row(self) -> pd.DataFrame:
@@ -418,6 +417,7 @@ class SwingAnalysis:
         row.update(
             {
                 "max_residual_heading_deg": self.max_residual_heading_deg,
+                "max_curve_residual_deg": self.max_curve_residual_deg,
                 "rms_fit_residual_deg": self.rms_fit_residual_deg,
                 "condition_number": self.condition_number,
                 "n_readings": len(self.readings),
@@ -467,7 +467,9 @@ def analyse_swing(
         deviation_deg, fitted_deg, fit_residual_deg, residual_after_bc_deg`` where the last is the
         observed deviation minus the fitted B and C terms (what remains once the compensator has
         removed them). ``max_residual_deg`` is its largest absolute value and ``verdict`` is
-        ``'pass'`` when that is within ``limit_deg``, else ``'fail'``.
+        ``'pass'`` when that is within ``limit_deg``, else ``'fail'``. ``max_curve_residual_deg`` is
+        the largest |A + D sin 2h + E cos 2h| of the fitted curve over the whole circle (between the
+        swung headings), for information.
     """
     h = np.asarray(magnetic_heading_deg, dtype=np.float64).ravel()
     c = np.asarray(compass_reading_deg, dtype=np.float64).ravel()
@@ -535,6 +537,7 @@ def analyse_swing(
         max_residual_row=labels[i_max],
         limit_deg=float(limit_deg),
         verdict=verdict,
+        max_curve_residual_deg=curve.without_semicircular().max_abs_deg()[0],
         notes=notes,
     )
 

@@ -154,6 +154,8 @@ def test_residuals_after_b_and_c_and_verdict():
     left = _curve(a, 0, 0, d, e, magnetic)
     np.testing.assert_allclose(result.readings.residual_after_bc_deg, left, atol=1e-9)
     assert result.max_residual_deg == pytest.approx(np.max(np.abs(left)), abs=1e-9)
+    # Over the whole circle |A + D sin 2h + E cos 2h| peaks at |A| + sqrt(D^2 + E^2) (amplitude-phase form).
+    assert result.max_curve_residual_deg == pytest.approx(abs(a) + np.hypot(d, e), abs=1e-4)
     # 14 CFR 25.1327(b): 10 deg default limit.
     assert DEFAULT_LIMIT_DEG == 10.0
     assert result.verdict == "pass"
