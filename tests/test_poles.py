@@ -128,3 +128,25 @@ def test_bad_inputs():
         pole_tracks(2010, 2000)
     with pytest.raises(InputError):
         headingref.dip_poles("yesterday")
+
+
+def test_cli_poles_years_to_csv(tmp_path, capsys):
+    from headingref.cli import main
+
+    out, png = tmp_path / "poles.csv", tmp_path / "poles.png"
+    assert main(["poles", "--years", "1985:1990", "--step", "5", "--output", str(out), "--plot", str(png)]) == 0
+    table = pd.read_csv(out)
+    assert list(table.columns[:5]) == ["date", "pole", "kind", "lat", "lon"]
+    assert set(table.kind) == {"dip", "geomagnetic"} and set(table.pole) == {"north", "south"}
+    row = table[(table.kind == "dip") & (table.pole == "north") & (table.date == "1985-01-01")].iloc[0]
+    assert row.lat == pytest.approx(77.40, abs=0.012) and row.lon == pytest.approx(-102.61, abs=0.012)  # Alken 2021 Table 4
+    assert png.stat().st_size > 0
+    assert "77°" in capsys.readouterr().out
+
+
+def test_cli_poles_bad_years(capsys):
+    from headingref.cli import main
+
+    assert main(["poles", "--years", "1990-2000"]) == 2
+    err = capsys.readouterr().err
+    assert "--years" in err and len(err.strip().splitlines()) == 1

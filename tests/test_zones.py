@@ -186,3 +186,56 @@ def test_bad_inputs():
         zone_change("north", DATE, DATE)
     with pytest.raises(InputError, match="not a number"):
         headingref.zones("60,70,abc,10", DATE)
+
+
+def test_cli_zones_writes_geojson_png_netcdf(tmp_path, capsys):
+    import xarray as xr
+
+    from headingref.cli import main
+
+    geojson, png, nc = tmp_path / "z.geojson", tmp_path / "z.png", tmp_path / "z.nc"
+    code = main(["zones", "--cap", "south", "--date", DATE, "--resolution", "1", "--geojson", str(geojson),
+                 "--png", str(png), "--netcdf", str(nc)])
+    assert code == 0
+    out = capsys.readouterr().out
+    assert "blackout" in out and "caution" in out
+    collection = json.loads(geojson.read_text())
+    assert_valid_geojson(collection)
+    assert png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"  # PNG signature (PNG specification, section 5.2)
+    with xr.open_dataset(nc, engine="h5netcdf") as back:
+        assert back.zone_code.max() == 2 and float(back.horizontal_nT.min()) < 2000.0
+
+
+def test_cli_zones_two_dates_and_bad_input(tmp_path, capsys):
+    from headingref.cli import main
+
+    code = main(["zones", "--region=-75,-55,100,170", "--date", "2015-01-01", "--date2", DATE, "--resolution", "1",
+                 "--thresholds", "3000,8000"])
+    assert code == 0
+    assert "change_percent" in capsys.readouterr().out
+    target = tmp_path / "never.geojson"
+    assert main(["zones", "--cap", "north", "--date", DATE, "--thresholds", "2000,abc", "--geojson", str(target)]) == 2
+    err = capsys.readouterr().err
+    assert "--thresholds" in err and "abc" in err and len(err.strip().splitlines()) == 1
+    assert not target.exists()
+    assert main(["zones", "--cap", "north", "--date", "1850-01-01"]) == 2
+    assert "outside" in capsys.readouterr().err
+
+
+def test_plot_zone_map_shades_and_outlines():
+    import matplotlib
+
+    matplotlib.use("Agg")
+    from headingref.plots.zones import plot_error_map, plot_zone_map
+
+    ds, _, _ = zone_change("north", "2010-01-01", DATE, resolution_deg=1.0)
+    fig = plot_zone_map(ds, tracks=headingref.pole_tracks(2010, 2025, 5))
+    ax = fig.axes[0]
+    assert len(ax.patches) >= 2  # blackout and caution of the first date
+    labels = [t.get_text() for t in ax.get_legend().get_texts()]
+    assert any("boundaries" in t for t in labels) and any("dip pole" in t for t in labels)
+    from headingref.detector import heading_error_grid
+
+    grid = heading_error_grid("north", DATE, resolution_deg=1.0, limit_deg=2.0)
+    fig = plot_error_map(grid)
+    assert f"{grid.attrs['area_exceeding_limit_km2']:,.0f}" in fig.axes[0].get_title()
