@@ -504,13 +504,9 @@ def _stereo_cap(kind: str, resolution_deg: float):
 
     Cached by (cap, resolution): the geometry does not change between calls (read-only arrays).
     """
-    try:
-        step_deg = float(resolution_deg)
-    except (TypeError, ValueError):
-        raise InputError(f"resolution {resolution_deg!r} is not a number; give degrees, 0.01 to 10") from None
-    if not (np.isfinite(step_deg) and 0.01 <= step_deg <= 10.0):
-        raise InputError(f"resolution {resolution_deg!r} is outside 0.01 to 10 degrees")
-    return _stereo_cap_cached(kind, step_deg)
+    from .zones import check_resolution_deg
+
+    return _stereo_cap_cached(kind, check_resolution_deg(resolution_deg))
 
 
 @functools.lru_cache(maxsize=4)

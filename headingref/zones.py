@@ -108,6 +108,17 @@ def _nodes(start: float, stop: float, step: float, extra: Sequence[float] = ()) 
     return np.unique(np.round(values, 9))
 
 
+def check_resolution_deg(resolution_deg: Any) -> float:
+    """Grid spacing in degrees as a float, 0.01 to 10, or :class:`InputError`."""
+    try:
+        step = float(resolution_deg)
+    except (TypeError, ValueError):
+        raise InputError(f"resolution {resolution_deg!r} is not a number; give degrees, 0.01 to 10") from None
+    if not (math.isfinite(step) and 0.01 <= step <= 10.0):
+        raise InputError(f"resolution {resolution_deg!r} is outside 0.01 to 10 degrees")
+    return step
+
+
 def area_grid(
     area: Any, date: Any, *, resolution_deg: float = 0.5, alt_km: float = 0.0, model=None, allow_extrapolation: bool = False
 ):
@@ -119,12 +130,7 @@ def area_grid(
     """
     from .field import field_grid
 
-    try:
-        step = float(resolution_deg)
-    except (TypeError, ValueError):
-        raise InputError(f"resolution {resolution_deg!r} is not a number; give degrees, 0.01 to 10") from None
-    if not (math.isfinite(step) and 0.01 <= step <= 10.0):
-        raise InputError(f"resolution {resolution_deg!r} is outside 0.01 to 10 degrees")
+    step = check_resolution_deg(resolution_deg)
     kind, (lat_min, lat_max, lon_min, lon_max) = parse_area(area)
     lats = _nodes(lat_min, lat_max, step)
     crossing = [180.0] if lon_min < 180.0 < lon_max else []

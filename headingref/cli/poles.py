@@ -77,12 +77,8 @@ def run(args) -> int:
     if args.output:
         print(f"wrote {args.output} ({len(table)} rows)")
     if args.plot:
-        import matplotlib
+        from .zones import save_plot
 
-        matplotlib.use("Agg")
-        from ..plots.zones import plot_pole_tracks, save_figure
-
-        save_figure(plot_pole_tracks(table), args.plot)
-        print(f"wrote {args.plot}")
+        save_plot("plot_pole_tracks", table, args.plot)
     print("\n" + CAUTION, file=sys.stderr)
     return 0

@@ -59,6 +59,17 @@ def parse_thresholds(text: str) -> list[float]:
     return values
 
 
+def save_plot(function_name: str, data, target: str) -> None:
+    """Draw with ``headingref.plots.zones.<function_name>(data)`` (Agg backend) and save atomically."""
+    import matplotlib
+
+    matplotlib.use("Agg")
+    from ..plots import zones as plots
+
+    plots.save_figure(getattr(plots, function_name)(data), target)
+    print(f"wrote {target}")
+
+
 def _netcdf_ready(ds):
     """Attributes netCDF can store: lists of strings become one space-separated string."""
     out = ds.copy()
@@ -107,12 +118,6 @@ def run(args) -> int:
             _netcdf_ready(ds).to_netcdf(tmp, engine="h5netcdf")
         print(f"wrote {args.netcdf}")
     if args.png:
-        import matplotlib
-
-        matplotlib.use("Agg")
-        from ..plots.zones import plot_zone_map, save_figure
-
-        save_figure(plot_zone_map(ds), args.png)
-        print(f"wrote {args.png}")
+        save_plot("plot_zone_map", ds, args.png)
     print("\n" + CAUTION, file=sys.stderr)
     return 0
