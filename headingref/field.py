@@ -200,22 +200,30 @@ def _derive(xyz: np.ndarray, out: np.ndarray, zone: np.ndarray) -> None:
     synthesis.derive(xyz, H_UNDEFINED_NT, UNCERTAINTY_CONST_DEG, UNCERTAINTY_SCALE_NT, BLACKOUT_NT, CAUTION_NT, out, zone)
 
 
-def _undefined_reasons(lat: np.ndarray, horizontal: np.ndarray, declination: np.ndarray) -> np.ndarray:
+FLAG_REASONS = (
+    "",
+    "geographic pole: declination undefined",
+    f"horizontal field below {H_UNDEFINED_NT:g} nT: declination undefined",
+)
+FLAG_DTYPE = pd.CategoricalDtype(list(FLAG_REASONS))
+
+
+def _undefined_reasons(lat: np.ndarray, horizontal: np.ndarray, declination: np.ndarray) -> pd.Categorical:
     """Empty string where D is defined, else why it is not; also blanks D at geographic poles."""
-    reasons = np.full(lat.shape, "", dtype=object)
+    codes = np.zeros(lat.shape, dtype=np.int8)
     pole = np.abs(lat) == 90.0
     weak = ~pole & ~(horizontal >= H_UNDEFINED_NT)
     if pole.any() or weak.any():
         declination[pole] = np.nan
-        reasons[pole] = "geographic pole: declination undefined"
-        reasons[weak] = f"horizontal field below {H_UNDEFINED_NT:g} nT: declination undefined"
+        codes[pole] = 1
+        codes[weak] = 2
         warnings.warn(
             f"declination is undefined at {int(pole.sum())} geographic-pole point(s) and {int(weak.sum())} point(s) "
             "with no horizontal field; NaN there (see declination_flag)",
             UndefinedDeclinationWarning,
             stacklevel=3,
         )
-    return reasons
+    return pd.Categorical.from_codes(codes, dtype=FLAG_DTYPE)
 
 
 def field_arrays(
@@ -242,7 +250,8 @@ def field_arrays(
     -------
     dict
         Keys of :data:`COLUMNS` except ``zone``/``declination_flag``, plus ``zone_code`` (int8:
-        0 normal, 1 caution, 2 blackout) and ``declination_flag`` (object array of reasons).
+        0 normal, 1 caution, 2 blackout) and ``declination_flag`` (a pandas Categorical of reasons, ''
+        where the declination is defined).
     """
     years = decimal_year(year) if not isinstance(year, np.ndarray) or year.dtype.kind not in "fi" else year
     model, (lat_f, lon_f, alt_f, years_f) = _prepare(lat, lon, years, alt_km, model, allow_extrapolation)
