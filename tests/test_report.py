@@ -1,0 +1,217 @@
+"""The one-command report on the demo scenario (headingref.report, headingref report / demo)."""
+
+from __future__ import annotations
+
+import base64
+import json
+import re
+import shutil
+import sys
+import warnings
+
+import numpy as np
+import pandas as pd
+import pytest
+from geographiclib.geodesic import Geodesic
+
+import headingref
+from headingref.cli import main
+from headingref.errors import InputError
+from headingref.notices import CAUTION
+from headingref.report import REPORT_FILE, build_report
+from headingref.scenario import DEMO_SCENARIO, load_scenario
+
+DEMO = DEMO_SCENARIO.parent
+SECTIONS = ("summary", "caution", "routes", "zones", "error-budget", "compass-bases", "swing", "runways")
+
+
+@pytest.fixture(scope="module")
+def demo(tmp_path_factory):
+    out = tmp_path_factory.mktemp("report") / "demo"
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        result = build_report(DEMO_SCENARIO, out, progress=False)
+    return result, result.html.read_text(encoding="utf-8")
+
+
+def _designator(magnetic_deg: float) -> str:
+    # ICAO Annex 14 Vol I, runway designation marking (from memory): nearest whole number to a
+    # tenth of the magnetic azimuth, 36 for 0, two digits.
+    number = int(np.floor(magnetic_deg / 10.0 + 0.5)) % 36
+    return f"{number or 36:02d}"
+
+
+def test_html_has_every_section_and_embedded_images(demo):
+    result, page = demo
+    for section in SECTIONS:
+        assert f'id="{section}"' in page, section
+    assert not result.skipped
+    images = re.findall(r'src="data:image/png;base64,([^"]+)"', page)
+    assert len(images) >= 8
+    for data in images:
+        assert base64.b64decode(data)[:8] == b"\x89PNG\r\n\x1a\n"  # PNG signature (PNG spec, section 5.2)
+    # self-contained: no external resource of any kind
+    assert not re.search(r'(src|href)="(https?:)?//', page)
+    assert "<link" not in page and "<script" not in page
+    # the caution appears, and before the first section
+    assert page.index("CAUTION: headingref is a planning") < page.index('id="routes"')
+    assert CAUTION.split(".")[0] in page
+    assert page.index('id="summary"') < page.index('id="routes"')
+
+
+def test_every_listed_file_exists_and_no_staging_left(demo):
+    result, page = demo
+    for path in result.files:
+        assert path.is_file() and path.stat().st_size > 0
+        assert f'href="{path.name}"' in page or path.name == REPORT_FILE
+    leftovers = [p for p in result.out_dir.parent.iterdir() if p.name.startswith(".headingref-report-")]
+    assert leftovers == []
+
+
+def test_leg_courses_equal_independent_recomputation(demo):
+    result, _ = demo
+    legs = pd.read_csv(result.out_dir / "route_legs.csv")
+    sc = load_scenario(DEMO_SCENARIO)
+    geod = Geodesic.WGS84
+    checked = 0
+    for plan in sc.routes["plan"]:
+        waypoints = pd.read_csv(plan["file"])
+        rows = legs[legs["route"] == plan["name"]].reset_index(drop=True)
+        assert len(rows) == len(waypoints) - 1
+        for i, row in rows.iterrows():
+            a, b = waypoints.iloc[i], waypoints.iloc[i + 1]
+            # true course and distance: geographiclib (Karney 2013), independent of pyproj
+            line = geod.Inverse(a.lat, a.lon, b.lat, b.lon)
+            assert row.true_course_deg == pytest.approx(line["azi1"] % 360.0, abs=1e-6)
+            assert row.distance_nm == pytest.approx(line["s12"] / 1852.0, rel=1e-9)
+            # magnetic = true - variation (east positive), variation from the field at the start
+            # waypoint's altitude (the file's "0 ft" or the scenario's FL350 = 10.668 km)
+            alt_km = 0.0 if a.alt == "0 ft" else 35000 * 0.3048 / 1000.0
+            variation = float(headingref.field(a.lat, a.lon, sc.analysis_date, alt_km=alt_km).declination_deg.iloc[0])
+            assert row.variation_deg == pytest.approx(variation, abs=1e-9)
+            expected = (line["azi1"] - variation) % 360.0
+            assert abs((row.magnetic_course_deg - expected + 180.0) % 360.0 - 180.0) < 1e-6
+            checked += 1
+    assert checked >= 10
+
+
+def test_runway_table_and_summary_equal_independent_recomputation(demo):
+    result, page = demo
+    table = pd.read_csv(result.out_dir / "runways.csv", dtype={"runway": str, "designator_implied": str})
+    inputs = pd.read_csv(DEMO / "runways.csv", dtype={"runway": str})
+    geod = Geodesic.WGS84
+    out_of_date = set()
+    for (_, row), (_, given) in zip(table.iterrows(), inputs.iterrows(), strict=True):
+        line = geod.Inverse(given.lat, given.lon, given.end_lat, given.end_lon)
+        assert row.true_bearing_deg == pytest.approx(line["azi1"] % 360.0, abs=1e-6)  # geographiclib
+        mid = geod.Direct(given.lat, given.lon, line["azi1"], line["s12"] / 2.0)
+        variation = float(headingref.field(mid["lat2"], mid["lon2"], "2026-12-02").declination_deg.iloc[0])
+        magnetic = (line["azi1"] - variation) % 360.0
+        assert row.magnetic_bearing_deg == pytest.approx(magnetic, abs=1e-3)
+        implied = _designator(magnetic)
+        assert row.designator_implied.rstrip("LCR") == implied
+        margin = abs((magnetic % 10.0) - 5.0)
+        if implied != given.runway.rstrip("LCR") and margin > 0.3:
+            out_of_date.add(f"{given.airport} {given.runway}")
+    # the demo's deliberately stale designators, found independently, are the ones the summary names
+    assert out_of_date == {"JXTB 13", "JXTB 31", "JXQR 34", "JXQR 16"}
+    listed = {re.sub("<[^>]+>", "", s).split(":")[0] for s in result.summary["runways"] if "out of date" in s}
+    assert listed == out_of_date
+
+
+def test_swing_coefficients_equal_least_squares_and_invented_curve(demo):
+    result, _ = demo
+    readings = pd.read_csv(DEMO / "swing_readings.csv")
+    h = np.radians(readings.magnetic_heading_deg.to_numpy())
+    deviation = (readings.magnetic_heading_deg - readings.compass_reading_deg + 180.0) % 360.0 - 180.0
+    # dev(h) = A + B sin h + C cos h + D sin 2h + E cos 2h (Handbook of Magnetic Compass
+    # Adjustment, NGA 2004, ch. V), solved here with numpy's least squares
+    basis = np.column_stack([np.ones_like(h), np.sin(h), np.cos(h), np.sin(2 * h), np.cos(2 * h)])
+    solution = np.linalg.lstsq(basis, deviation.to_numpy(), rcond=None)[0]
+    row = pd.read_csv(result.out_dir / "swing_coefficients.csv").iloc[0]
+    got = [row[f"{name}_deg"] for name in "ABCDE"]
+    np.testing.assert_allclose(got, solution, atol=1e-9)
+    # and near the invented curve the readings were made from (noise 0.2 deg on 12 readings)
+    np.testing.assert_allclose(got, [0.5, 6.5, -5.0, 0.8, -0.4], atol=0.25)
+
+
+def test_compass_base_prediction_equals_field_recomputation(demo):
+    result, _ = demo
+    bases = pd.read_csv(result.out_dir / "compass_bases.csv")
+    history = pd.read_csv(DEMO / "compass_bases.csv")
+    for _, base in bases.iterrows():
+        latest = history[history.name == base["name"]].iloc[-1]
+        surveyed = float(latest.surveyed_variation.rstrip("EW")) * (1 if latest.surveyed_variation.endswith("E") else -1)
+        at_survey, at_swing = headingref.field(latest.lat, latest.lon, [latest.survey_date], alt_km=0.0).declination_deg.iloc[0], \
+            headingref.field(latest.lat, latest.lon, "2027-03-15").declination_deg.iloc[0]
+        # the survey governs; the model supplies only the change since (common practice)
+        assert base.predicted_variation_deg == pytest.approx(surveyed + at_swing - at_survey, abs=1e-9)
+
+
+def test_geojson_outputs_follow_rfc7946(demo):
+    result, _ = demo
+    routes = json.loads((result.out_dir / "routes.geojson").read_text())
+    assert routes["type"] == "FeatureCollection"
+    crossing = []
+    for feature in routes["features"]:
+        geometry = feature["geometry"]
+        lines = [geometry["coordinates"]] if geometry["type"] == "LineString" else geometry["coordinates"]
+        for line in lines:
+            lon = np.array([p[0] for p in line])
+            assert np.all(np.abs(lon) <= 180.0)
+            # RFC 7946 section 3.1.9: lines are cut at the antimeridian, no 360-degree jumps
+            assert np.all(np.abs(np.diff(lon)) < 180.0)
+        if geometry["type"] == "MultiLineString":
+            crossing.append(feature["properties"]["route"])
+    assert any(name.startswith("TM205") for name in crossing)  # the antimeridian route
+    kinds = {f["properties"]["kind"] for f in routes["features"]}
+    assert kinds == {"leg", "no usable magnetic reference"}
+    zones = json.loads((result.out_dir / "zones.geojson").read_text())
+    assert {f["properties"]["zone"] for f in zones["features"]} == {"blackout", "caution"}
+
+
+def test_summary_names_the_blackout_leg(demo):
+    result, _ = demo
+    legs = pd.read_csv(result.out_dir / "route_samples.csv")
+    # H < 2000 nT (WMM2025 technical report, blackout zone) somewhere on each leg the summary names
+    lost = legs[legs.horizontal_nT < 2000.0].groupby(["route", "from", "to"]).size().index
+    texts = [re.sub("<[^>]+>", "", s) for s in result.summary["routes"] if "no usable" in s]
+    assert len(texts) == len(lost) >= 1
+    for route, a, b in lost:
+        assert any(t.startswith(f"{route}, leg {a}–{b}") for t in texts)
+
+
+def _small_scenario(tmp_path, extra=""):
+    shutil.copy(DEMO / "runways.csv", tmp_path / "rw.csv")
+    path = tmp_path / "small.toml"
+    path.write_text(f'analysis_date = "2026-12-02"\n[runways]\nfile = "rw.csv"\nhorizon_years = 2\n{extra}', encoding="utf-8")
+    return path
+
+
+def test_missing_library_part_is_skipped_with_a_note(tmp_path, monkeypatch):
+    monkeypatch.setitem(sys.modules, "headingref.runways", None)  # as if not installed
+    result = build_report(_small_scenario(tmp_path), tmp_path / "out", progress=False)
+    assert "runways" in result.skipped
+    page = result.html.read_text(encoding="utf-8")
+    assert "Skipped: headingref.runways is not available" in page
+
+
+def test_failed_run_writes_nothing(tmp_path):
+    (tmp_path / "rw.csv").write_text("airport,runway\nJXAA,09\n", encoding="utf-8")
+    path = tmp_path / "bad.toml"
+    path.write_text('analysis_date = "2026-12-02"\n[runways]\nfile = "rw.csv"\n', encoding="utf-8")
+    with pytest.raises(InputError, match="Runway designators.*lat"):
+        build_report(path, tmp_path / "out", progress=False)
+    assert not (tmp_path / "out").exists()
+    assert [p.name for p in tmp_path.iterdir() if p.name.startswith(".headingref")] == []
+
+
+def test_cli_report_and_errors(tmp_path, capsys):
+    assert main(["report", str(_small_scenario(tmp_path)), "--out", str(tmp_path / "cli"), "--no-progress"]) == 0
+    out = capsys.readouterr().out
+    assert "report:" in out and (tmp_path / "cli" / REPORT_FILE).is_file()
+    bad = tmp_path / "typo.toml"
+    bad.write_text('analysis_date = "2026-12-02"\n[runway]\n', encoding="utf-8")
+    assert main(["report", str(bad), "--out", str(tmp_path / "x"), "--no-progress"]) == 2
+    err = capsys.readouterr().err.strip()
+    assert err.count("\n") == 0 and "did you mean 'runways'" in err
