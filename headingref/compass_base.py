@@ -36,7 +36,7 @@ declination_deg_per_year)`` on numpy arrays.
 Public API
 ----------
 :class:`Site`, :func:`make_site`, :func:`read_sites_csv`, :func:`base_upkeep`, :func:`setting_out`,
-:func:`model_variation_function`, :data:`DEFAULT_TOLERANCE_DEG`, :data:`DEFAULT_MARK_STEP_DEG`,
+:func:`setting_out_parameters`, :func:`model_variation_function`, :data:`DEFAULT_TOLERANCE_DEG`, :data:`DEFAULT_MARK_STEP_DEG`,
 :data:`SITE_CAUTION`.
 
 >>> from headingref.compass_base import make_site, base_upkeep, setting_out
@@ -78,6 +78,7 @@ __all__ = [
     "model_variation_function",
     "read_sites_csv",
     "setting_out",
+    "setting_out_parameters",
 ]
 
 DEFAULT_TOLERANCE_DEG = 0.5
@@ -528,10 +529,25 @@ def base_upkeep(
 
 
 def _number_list(values, what: str, low: float, high: float, unit: str) -> np.ndarray:
-    arr = np.asarray(values, dtype=np.float64).ravel()
+    try:
+        arr = np.asarray(values, dtype=np.float64).ravel()
+    except (TypeError, ValueError):
+        arr = np.array([np.nan])
     if arr.size == 0 or not np.all(np.isfinite(arr)) or np.any(arr < low) or np.any(arr > high):
-        raise InputError(f"{what} {list(np.asarray(values).ravel())!r}: give numbers from {low:g} to {high:g} {unit}")
+        shown = ", ".join(str(v) for v in np.atleast_1d(np.asarray(values, dtype=object)).ravel())
+        raise InputError(f"{what} [{shown}]: give numbers from {low:g} to {high:g} {unit}")
     return arr
+
+
+def setting_out_parameters(lines_deg=None, distances_m=None, grid=None):
+    """Check setting-out options: ``(lines_deg array, distances_m array, Grid or None)``.
+
+    Lines are magnetic headings 0-360 (default every 30 degrees), distances 0-100 km in metres
+    (default 50 and 100), grid as :func:`headingref.headings.parse_grid`. Raises InputError.
+    """
+    lines = normalize_heading(_number_list(DEFAULT_LINES_DEG if lines_deg is None else lines_deg, "lines", 0.0, 360.0, "degrees"))
+    distances = _number_list(DEFAULT_DISTANCES_M if distances_m is None else distances_m, "distances", 0.0, 100_000.0, "metres")
+    return np.atleast_1d(lines), distances, (parse_grid(grid) if grid is not None else None)
 
 
 def setting_out(
@@ -562,9 +578,7 @@ def setting_out(
     [convergence_deg, grid_azimuth_deg,] distance_m, lat_deg, lon_deg`` (point coordinates,
     WGS84, from :meth:`pyproj.Geod.fwd`).
     """
-    lines = normalize_heading(_number_list(DEFAULT_LINES_DEG if lines_deg is None else lines_deg, "lines", 0.0, 360.0, "degrees"))
-    distances = _number_list(DEFAULT_DISTANCES_M if distances_m is None else distances_m, "distances", 0.0, 100_000.0, "metres")
-    grid_obj = parse_grid(grid) if grid is not None else None
+    lines, distances, grid_obj = setting_out_parameters(lines_deg, distances_m, grid)
     geod = pyproj.Geod(ellps="WGS84")
     frames = []
     for _, site in upkeep.iterrows():

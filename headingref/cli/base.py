@@ -72,15 +72,16 @@ def _when(date: str, note: str) -> str:
 
 
 def run(args) -> int:
-    from ..compass_base import SITE_CAUTION, base_upkeep, setting_out
+    from ..compass_base import SITE_CAUTION, base_upkeep, setting_out, setting_out_parameters
     from ..headings import format_variation
     from ..io import write_csv
 
     lines = number_list(args.lines, "--lines") if args.lines else None
     distances = number_list(args.distances, "--distances")
+    lines, distances, grid = setting_out_parameters(lines, distances, args.grid)  # check before the work
     sites = _sites(args)
     table = base_upkeep(sites, args.date, model=args.model, allow_extrapolation=args.extrapolate, mark_step_deg=args.mark_step)
-    points = setting_out(table, lines_deg=lines, distances_m=distances, grid=args.grid)
+    points = setting_out(table, lines_deg=lines, distances_m=distances, grid=grid)
     for _, row in table.iterrows():
         print(f"{row['name']} ({row.lat_deg:.4f}, {row.lon_deg:.4f}), swing {row.swing_date}")
         print(
