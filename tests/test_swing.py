@@ -14,6 +14,7 @@ Sources named beside each check:
 
 from __future__ import annotations
 
+import math
 import warnings
 
 import numpy as np
@@ -56,6 +57,15 @@ def test_sign_convention_east_deviation_means_compass_reads_low():
     # Normalised to (-180, 180]: exactly opposite gives +180, never -180.
     assert deviation_from_readings(180.0, 0.0) == pytest.approx(180.0)
     assert deviation_from_readings(0.0, 180.0) == pytest.approx(180.0)
+
+
+@settings(max_examples=200, deadline=None)
+@given(magnetic=st.floats(min_value=0.0, max_value=359.999), compass=st.floats(min_value=0.0, max_value=359.999))
+def test_deviation_normalisation_property(magnetic, compass):
+    # magnetic = compass + deviation (AC 43-17), deviation reduced to (-180, 180].
+    dev = float(deviation_from_readings(magnetic, compass))
+    assert -180.0 < dev <= 180.0
+    assert math.remainder(compass + dev - magnetic, 360.0) == pytest.approx(0.0, abs=1e-9)
 
 
 def test_eight_point_formulas_on_handbook_example():
