@@ -20,7 +20,9 @@ from headingref.zones import geodetic_from_geocentric_lat, pole_tracks
 # epoch: (north dip lat, lon, south dip lat, lon, north geomagnetic lat, lon)
 ALKEN_2021_TABLE4 = {
     1900.0: (70.46, -96.19, -71.72, 148.32, 78.68, -68.79),
+    1930.0: (72.27, -98.68, -69.52, 146.79, 78.60, -68.26),
     1950.0: (74.64, -100.86, -67.89, 143.55, 78.55, -68.85),
+    1965.0: (75.63, -101.34, -66.33, 139.53, 78.60, -69.85),
     1985.0: (77.40, -102.61, -65.13, 139.18, 79.04, -70.90),
 }
 # WHOI "centered dipole" table (deeptow.whoi.edu/cdpole.html), geocentric latitudes from DGRF.
