@@ -255,7 +255,8 @@ def field_arrays(
     """
     years = decimal_year(year) if not isinstance(year, np.ndarray) or year.dtype.kind not in "fi" else year
     model, (lat_f, lon_f, alt_f, years_f) = _prepare(lat, lon, years, alt_km, model, allow_extrapolation)
-    xyz, out, zone = _synthesise(model, lat_f, lon_f, alt_f, years_f)
+    with synthesis.threads_for(lat_f.size):
+        xyz, out, zone = _synthesise(model, lat_f, lon_f, alt_f, years_f)
     result = {"lat_deg": lat_f, "lon_deg": lon_f, "alt_km": alt_f, "decimal_year": years_f}
     for i, name in enumerate(ELEMENTS):
         result[name] = out[i]
@@ -354,11 +355,12 @@ def field_grid(
     vector = np.empty((len(years), 6, npts))
     zone = np.empty((len(years), npts), dtype=np.int8)
     terms = np.empty((6, lat_a.size, 2 * ncol))
-    for t, year in enumerate(years):
-        g, h, gr, hr = model.coefficients(year)
-        synthesis.grid_row_terms(lat_a, alt, g, h, gr, hr, k1, k2, diag, model.reference_radius_km, terms)
-        np.matmul(terms.reshape(6 * lat_a.size, 2 * ncol), trig, out=vector[t].reshape(6 * lat_a.size, lon_a.size))
-        _derive(vector[t], derived[t], zone[t])
+    with synthesis.threads_for(npts):
+        for t, year in enumerate(years):
+            g, h, gr, hr = model.coefficients(year)
+            synthesis.grid_row_terms(lat_a, alt, g, h, gr, hr, k1, k2, diag, model.reference_radius_km, terms)
+            np.matmul(terms.reshape(6 * lat_a.size, 2 * ncol), trig, out=vector[t].reshape(6 * lat_a.size, lon_a.size))
+            _derive(vector[t], derived[t], zone[t])
     data = {name: derived[:, i].reshape(shape) for i, name in enumerate(ELEMENTS)}
     data.update({name: vector[:, i].reshape(shape) for i, name in enumerate(VECTOR)})
     zone = zone.reshape(shape)

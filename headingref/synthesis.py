@@ -28,6 +28,7 @@ Outputs are north, east, down components X, Y, Z (nT, geodetic frame) and their 
 
 from __future__ import annotations
 
+import contextlib
 import math
 
 import numba as nb
@@ -41,6 +42,28 @@ WGS84_E2 = WGS84_F * (2.0 - WGS84_F)
 # sin(theta) is held at or above this floor, which moves the point by ~1e-15 rad (nanometres):
 # the result is the limit approached along the given meridian, and far below the model's precision.
 _SIN_THETA_FLOOR = 1e-15
+
+
+_PARALLEL_MIN_POINTS = 4096
+
+
+@contextlib.contextmanager
+def threads_for(npoints: int):
+    """Run small jobs on the calling thread only.
+
+    Waking numba's thread pool costs tens of microseconds when idle and milliseconds when the
+    machine is busy, far more than a few hundred points take; below ``_PARALLEL_MIN_POINTS`` the
+    parallel kernels are limited to one thread (numba's setting is thread-local and restored).
+    """
+    if npoints >= _PARALLEL_MIN_POINTS:
+        yield
+        return
+    previous = nb.get_num_threads()
+    nb.set_num_threads(1)
+    try:
+        yield
+    finally:
+        nb.set_num_threads(previous)
 
 
 def recursion_constants(nmax: int) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
