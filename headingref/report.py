@@ -127,10 +127,11 @@ def _figure_html(fig, alt: str, caption: str = "") -> str:
     return f'<figure><img alt="{_esc(alt)}" src="data:image/png;base64,{data}">{cap}</figure>'
 
 
-_DECIMALS = (("_nT", 0), ("_nm", 1), ("_km", 1), ("_km2", 0), ("_m", 1), ("_min", 1), ("_deg", 1), ("_years", 1), ("_year", 2))
+_DECIMALS = (("standard_error_deg", 2), ("minus_model_deg", 2), ("_nT", 0), ("_nm", 1), ("_km", 1), ("_km2", 0), ("_m", 1), ("_min", 1), ("_deg", 1), ("_years", 1), ("_year", 2))
 
 
 def _format_cell(column: str, value: Any) -> str:
+    column = column.removesuffix("_mid").removesuffix("_end")
     if value is None or (isinstance(value, float) and math.isnan(value)):
         return ""
     if isinstance(value, (bool, np.bool_)):
@@ -730,7 +731,8 @@ def _job_swing(run: _Run, sec: Section) -> None:
         figures.append(_figure_html(deviation_figure(analysis), "deviation curve", "Deviations, fitted curve and residuals."))
     if figures:
         sec.blocks.append('<div class="figs">' + "".join(figures) + "</div>")
-    sec.blocks.append("<h3>Correction card</h3>" + _table_html(analysis.card))
+    sec.blocks.append("<h3>Correction card</h3>" + _table_html(analysis.card, {
+        "for_magnetic": "for magnetic", "steer_compass": "steer compass", "deviation_deg": "deviation there °"}))
     sec.notes.extend(analysis.notes)
     sec.blocks.append(run.files_html(names))
 
@@ -759,7 +761,9 @@ def _job_runways(run: _Run, sec: Section) -> None:
         ends = ", ".join(f"{a} {b}" for a, b in zip(boundary["airport"], boundary["runway"], strict=True))
         run.summary["runways"].append(f"On a rounding boundary (no verdict; check with the survey): {_esc(ends)}.")
     if not run.summary["runways"]:
-        run.summary["runways"].append(f"All {s['rows']} runway ends match and none changes within {r['horizon_years']:g} years.")
+        run.summary["runways"].append(f"All {s['rows']} runway ends match and none changes before {s['forecast_end']}.")
+    if result.notes:
+        run.summary["runways"].append(f"Forecast to {_esc(s['forecast_end'])}: " + _esc(" ".join(result.notes)))
     sec.blocks.append("<p>" + "<br>".join(_esc(line) for line in result.summary_text().splitlines()) + "</p>")
     sec.blocks.append(_table_html(table, {
         "airport": "airport", "runway": "runway", "true_bearing_deg": "true °", "variation_deg": "variation °",
