@@ -76,7 +76,8 @@ def run(args) -> int:
         if not c.determined:
             print(f"  {c.coefficient}        (not fitted)")
             continue
-        print(f"  {c.coefficient}  {c.value_deg:+8.2f}°  {c.standard_error_deg:8.2f}°  {c.inflation:8.2f}   {c.meaning}")
+        se = f"{c.standard_error_deg:8.2f}°" if c.standard_error_deg == c.standard_error_deg else "     n/a "
+        print(f"  {c.coefficient}  {c.value_deg:+8.2f}°  {se}  {c.inflation:8.2f}   {c.meaning}")
     print(f"condition number {result.condition_number:.2f}, rms fit residual {result.rms_fit_residual_deg:.2f}°")
     print(
         f"largest residual after B and C: {result.max_residual_deg:.2f}° on {result.max_residual_heading_deg:05.1f} "
