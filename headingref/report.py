@@ -325,10 +325,13 @@ def _job_routes(run: _Run, sec: Section) -> None:
     )
     for plan in settings["plan"]:
         name = plan["name"]
-        result = route(
-            str(plan["file"]), run.date, alt_km=settings["alt"], grid=settings["grid"], spacing_nm=settings["spacing_nm"],
-            path=settings["path"], **run.common,
-        )
+        try:
+            result = route(
+                str(plan["file"]), run.date, alt_km=settings["alt"], grid=settings["grid"], spacing_nm=settings["spacing_nm"],
+                path=settings["path"], **run.common,
+            )
+        except HeadingrefError as exc:
+            raise type(exc)(f"route {name!r} ({plan['file'].name}): {exc}") from None
         run.route_results.append((name, result))
         legs, samples = result.legs.copy(), result.samples.copy()
         lat, lon, alt = (samples[c].to_numpy() for c in ("lat_deg", "lon_deg", "alt_km"))

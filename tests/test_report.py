@@ -215,3 +215,17 @@ def test_cli_report_and_errors(tmp_path, capsys):
     assert main(["report", str(bad), "--out", str(tmp_path / "x"), "--no-progress"]) == 2
     err = capsys.readouterr().err.strip()
     assert err.count("\n") == 0 and "did you mean 'runways'" in err
+
+
+def test_bad_output_folder_and_bad_route_name_the_culprit(tmp_path):
+    (tmp_path / "afile").write_text("x", encoding="utf-8")
+    with pytest.raises(InputError, match="exists and is not a folder"):
+        build_report(_small_scenario(tmp_path), tmp_path / "afile", progress=False)
+    with pytest.raises(InputError, match="does not exist"):
+        build_report(_small_scenario(tmp_path), tmp_path / "no" / "such" / "dir", progress=False)
+    (tmp_path / "one.csv").write_text("name,lat,lon\nA,70,20\n", encoding="utf-8")
+    path = tmp_path / "r.toml"
+    path.write_text('analysis_date = "2026-12-02"\n[routes]\n[[routes.plan]]\nname = "R1"\nfile = "one.csv"\n', encoding="utf-8")
+    with pytest.raises(InputError, match="route 'R1' \\(one.csv\\): a route needs at least two waypoints"):
+        build_report(path, tmp_path / "out", progress=False)
+    assert not (tmp_path / "out").exists()
