@@ -307,9 +307,9 @@ def _budget(
     limit = float(_finite("limit_deg", limit_deg, 0.0, 180.0, "degrees"))
     tilt_pitch, tilt_roll = detector_tilt(bank_deg, accel_mps2, pitch_deg, gimbal_limit_deg)
     if heading_deg is None:
-        tilt_error = worst_tilt_heading_error_deg(inclination_deg, tilt_pitch, tilt_roll)
+        tilt_error, heading = worst_tilt_heading_error_deg(inclination_deg, tilt_pitch, tilt_roll, return_heading=True)
     else:
-        heading = _finite("heading_deg", heading_deg, -360.0, 360.0, "degrees")
+        heading = _finite("heading_deg", heading_deg, -360.0, 360.0, "degrees") % 360.0
         tilt_error = tilt_heading_error_deg(inclination_deg, heading, tilt_pitch, tilt_roll)
         # no horizontal field: no heading at all
         tilt_error = np.where(horizontal_nT > 0, tilt_error, 180.0)
@@ -322,6 +322,7 @@ def _budget(
     out = {
         "tilt_pitch_deg": tilt_pitch,
         "tilt_roll_deg": tilt_roll,
+        "heading_deg": heading,
         "residual_field_error_deg": residual,
         "model_uncertainty_deg": uncertainty,
         "tilt_error_deg": tilt_error,
@@ -372,9 +373,12 @@ def heading_error(
     -------
     pandas.DataFrame
         ``lat_deg, lon_deg, alt_km, decimal_year, horizontal_nT, inclination_deg,
-        tilt_pitch_deg, tilt_roll_deg, residual_field_error_deg, model_uncertainty_deg,
+        tilt_pitch_deg, tilt_roll_deg, heading_deg (the heading given, or the worst one; NaN
+        where every heading is equally bad or none is), residual_field_error_deg, model_uncertainty_deg,
         tilt_error_deg, slaving_drift_deg, slaving_recovery_min, budget_rss_deg,
-        budget_linear_deg, exceeds_limit``. How the terms combine: module docstring.
+        budget_linear_deg, exceeds_limit``. ``tilt_error_deg`` is signed (apparent minus true,
+        east positive) for a given heading and the magnitude for the worst heading. How the terms
+        combine: module docstring.
     """
     from .field import field_arrays
 

@@ -179,9 +179,13 @@ def test_heading_error_budget_at_route_samples():
     rss = np.sqrt(df.residual_field_error_deg**2 + df.model_uncertainty_deg**2 + df.slaving_drift_deg**2)
     assert np.allclose(df.budget_rss_deg, rss)
     assert np.all(df.budget_linear_deg >= df.budget_rss_deg)
-    # the worst heading bounds any given heading
+    # the worst heading bounds any given heading, and re-evaluating at it gives the worst again
     some = headingref.heading_error(lats, lons, "2026-12-02", bank_deg=5.0, heading_deg=37.0)
     assert np.all(np.abs(some.tilt_error_deg) <= df.tilt_error_deg + 1e-9)
+    finite = np.isfinite(df.heading_deg.to_numpy())
+    again = headingref.heading_error(lats[finite], lons[finite], "2026-12-02", bank_deg=5.0,
+                                     heading_deg=df.heading_deg.to_numpy()[finite])
+    assert np.allclose(np.abs(again.tilt_error_deg), df.tilt_error_deg[finite], atol=1e-6)
     # weaker H further north: the tilt error grows toward the dip pole
     assert df.tilt_error_deg.iloc[0] < df.tilt_error_deg.iloc[1] < df.tilt_error_deg.iloc[2]
     assert df.exceeds_limit.iloc[3] and not df.exceeds_limit.iloc[0]
