@@ -897,11 +897,8 @@ def build_report(scenario: Scenario | str | os.PathLike, out_dir: str | os.PathL
         Bad scenario or input files (the message names the section, file and row); nothing
         is written then.
     """
-    import matplotlib
-
-    if matplotlib.get_backend().lower() not in ("agg", "module://matplotlib_inline.backend_inline"):
-        with contextlib.suppress(Exception):
-            matplotlib.use("Agg")
+    # Figures are drawn with pyplot and closed once saved, so any backend will do (matplotlib
+    # falls back to Agg when there is no display); the user's backend is left alone.
     from tqdm.auto import tqdm
 
     sc = scenario if isinstance(scenario, Scenario) else load_scenario(scenario)
