@@ -41,6 +41,11 @@ import numpy as np
 from .errors import DateRangeError, ExtrapolationWarning, ModelFileError
 
 REFERENCE_RADIUS_KM = 6371.2  # magnetic reference spherical radius of IGRF and WMM
+MAX_COEFFICIENT_NT = 1e7
+"""Largest accepted |coefficient| (nT) or |rate| (nT/yr). The largest main-field coefficient, the dipole
+g10, is about -31,500 nT (IGRF, 1900); a value a few hundred times larger is a typo or a corrupt file,
+and values near 1e308 would overflow the synthesis into infinite fields."""
+EPOCH_RANGE = (1000.0, 3000.0)  # the decimal years headingref.units.decimal_year accepts
 
 
 @dataclass(frozen=True, eq=False)
@@ -118,6 +123,21 @@ def _fail(path: Path, message: str) -> ModelFileError:
     return ModelFileError(f"coefficient file {path.name}: {message}")
 
 
+def _check_values(path: Path, values: np.ndarray, what: str) -> None:
+    """Coefficients and rates must be finite and below :data:`MAX_COEFFICIENT_NT` in size."""
+    too_big = ~(np.abs(values) <= MAX_COEFFICIENT_NT)
+    if too_big.any():
+        raise _fail(path, f"{what} {values[too_big].flat[0]!r} is not a plausible main-field value "
+                          f"(accepted: finite, at most {MAX_COEFFICIENT_NT:g} nT or nT/yr in size)")
+
+
+def _check_validity(path: Path, valid_from: float, valid_to: float) -> None:
+    lo, hi = EPOCH_RANGE
+    if not (lo <= valid_from <= valid_to <= hi):
+        raise _fail(path, f"validity {valid_from!r} to {valid_to!r} is not an ordered pair of decimal years "
+                          f"from {lo:g} to {hi:g}")
+
+
 def _read_shc(path: Path, text: str) -> Model:
     lines = [line for line in text.splitlines() if line.strip() and not line.lstrip().startswith("#")]
     if len(lines) < 3:
@@ -150,12 +170,14 @@ def _read_shc(path: Path, text: str) -> Model:
     expected = nmax * (nmax + 2)
     if len(seen) != expected:
         raise _fail(path, f"found {len(seen)} coefficients, expected {expected} for degree {nmax}")
+    _check_values(path, values, "coefficient")
     valid_from, valid_to = float(epochs[0]), float(epochs[-1])
     if len(params) >= 7:
         try:
             valid_from, valid_to = float(params[5]), float(params[6])
         except ValueError:
             pass
+    _check_validity(path, valid_from, valid_to)
     g, h = values[0], values[1]
     if ntimes == 1:
         rate_g = np.zeros_like(g)
@@ -202,6 +224,8 @@ def _read_cof(path: Path, text: str) -> Model:
     arr = np.zeros((4, 1, nmax + 1, nmax + 1))
     for n, m, g, h, gd, hd in rows:
         arr[:, 0, n, m] = (g, h, gd, hd)
+    _check_values(path, arr, "coefficient or rate")
+    _check_validity(path, epoch, epoch + 5.0)
     display = name.replace("WMM-", "WMM") if name.upper().startswith("WMM") else name
     return Model(display, nmax, np.array([epoch]), arr[0], arr[1], arr[2], arr[3], epoch, epoch + 5.0, str(path))
 
