@@ -419,6 +419,7 @@ def heading_error_grid(
     gimbal_limit_deg: float = GIMBAL_LIMIT_DEG,
     limit_deg: float = DEFAULT_LIMIT_DEG,
     model=None,
+    allow_extrapolation: bool = False,
 ):
     """The error budget as a map (one date), an xarray Dataset.
 
@@ -454,7 +455,8 @@ def heading_error_grid(
         raise InputError("heading_error_grid takes one date; call it once per date")
     kind, _ = parse_area(area)
     if kind == "region":
-        ds = area_grid(area, date, resolution_deg=resolution_deg, alt_km=alt_km, model=model)
+        ds = area_grid(area, date, resolution_deg=resolution_deg, alt_km=alt_km, model=model,
+                       allow_extrapolation=allow_extrapolation)
         terms = _budget(ds["horizontal_nT"].values, ds["inclination_deg"].values,
                         ds["declination_uncertainty_deg"].values, **options)
         for name, value in terms.items():
@@ -467,7 +469,8 @@ def heading_error_grid(
         x, y, lat, lon, inside, _, lat_in, lon_in, cell_in_km2 = _stereo_cap(kind, resolution_deg)
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", UndefinedDeclinationWarning)  # D at the pole point is not used
-            f = field_arrays(lat_in, lon_in, decimal_year(date), alt_km=alt_km, model=model)
+            f = field_arrays(lat_in, lon_in, decimal_year(date), alt_km=alt_km, model=model,
+                             allow_extrapolation=allow_extrapolation)
         terms = _budget(f["horizontal_nT"], f["inclination_deg"], f["declination_uncertainty_deg"], **options)
         variables = {}
         for name, values in [*((n, f[n]) for n in ("horizontal_nT", "inclination_deg", "declination_uncertainty_deg")),

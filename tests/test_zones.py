@@ -239,3 +239,17 @@ def test_plot_zone_map_shades_and_outlines():
     grid = heading_error_grid("north", DATE, resolution_deg=1.0, limit_deg=2.0)
     fig = plot_error_map(grid)
     assert f"{grid.attrs['area_exceeding_limit_km2']:,.0f}" in fig.axes[0].get_title()
+
+
+def test_cli_zones_budget_map_and_early_option_check(tmp_path, capsys):
+    from headingref.cli import main
+
+    png = tmp_path / "budget.png"
+    assert main(["zones", "--cap", "north", "--date", DATE, "--resolution", "1", "--budget-png", str(png),
+                 "--bank", "10", "--turn-min", "0.2", "--limit", "2"]) == 0
+    assert "error budget beyond 2 deg" in capsys.readouterr().out and png.exists()
+    # a bad budget option is refused before any output is written
+    geojson = tmp_path / "z.geojson"
+    assert main(["zones", "--cap", "north", "--date", DATE, "--geojson", str(geojson), "--budget-png", str(png),
+                 "--bank", "95"]) == 2
+    assert "bank_deg 95" in capsys.readouterr().err and not geojson.exists()

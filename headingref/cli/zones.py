@@ -10,6 +10,7 @@ EXAMPLES = """\
   headingref zones --cap north --date 2015-01-01 --date2 2026-12-02 --geojson moved.geojson --png moved.png
   headingref zones --region 60,85,150,-120 --date 2027.0 --resolution 0.25 --netcdf region.nc
   headingref zones --region=-75,-55,100,170 --date 2026-12-02 --thresholds 3000,8000
+  headingref zones --cap north --date 2026-12-02 --budget-png budget.png --bank 15 --turn-min 0.5 --limit 2
 
 A region is LAT_MIN,LAT_MAX,LON_MIN,LON_MAX in degrees; LON_MAX < LON_MIN crosses the antimeridian.
 Write --region=... with '=' when it starts with a minus sign. Areas are geodesic on WGS84."""
@@ -43,6 +44,16 @@ def register(subparsers) -> None:
     parser.add_argument("--geojson", metavar="FILE", help="zone boundaries as GeoJSON polygons")
     parser.add_argument("--png", metavar="FILE", help="map of the zones (and of the second date's boundaries)")
     parser.add_argument("--netcdf", metavar="FILE", help="the grid (H, uncertainty, inclination, zone codes) as netCDF")
+    budget = parser.add_argument_group(
+        "heading-reference error budget (map of the combined error of a slaved flux-gate compass)")
+    budget.add_argument("--budget-png", metavar="FILE", help="map of the combined error budget with the limit contour")
+    budget.add_argument("--limit", type=float, default=2.0, metavar="DEG", help="error limit in degrees (default 2)")
+    budget.add_argument("--bank", type=float, default=0.0, metavar="DEG", help="bank angle of a coordinated turn (default 0)")
+    budget.add_argument("--accel", type=float, default=0.0, metavar="M_S2", help="longitudinal acceleration, m/s^2 (default 0)")
+    budget.add_argument("--turn-min", type=float, default=1.0, metavar="MIN",
+                        help="how long slaving stays on during the manoeuvre, minutes (default 1)")
+    budget.add_argument("--residual-nt", type=float, default=100.0, metavar="NT",
+                        help="uncompensated aircraft field at the detector, nT (default 100)")
     add_model_options(parser)
     parser.set_defaults(func=run)
 
@@ -86,6 +97,8 @@ def run(args) -> int:
     from ..zones import write_geojson, zone_areas, zone_change, zone_geojson, zones
 
     area = args.cap or args.region
+    if args.budget_png:  # check the budget options before anything is computed or written
+        _budget_options_checked(args)
     options = {
         "resolution_deg": args.resolution,
         "thresholds": parse_thresholds(args.thresholds),
@@ -119,5 +132,29 @@ def run(args) -> int:
         print(f"wrote {args.netcdf}")
     if args.png:
         save_plot("plot_zone_map", ds, args.png)
+    if args.budget_png:
+        _budget_map(args, area)
     print("\n" + CAUTION, file=sys.stderr)
     return 0
+
+
+def _budget_options(args) -> dict:
+    return {"residual_field_nT": args.residual_nt, "bank_deg": args.bank, "accel_mps2": args.accel,
+            "turn_duration_min": args.turn_min, "limit_deg": args.limit, "model": args.model}
+
+
+def _budget_options_checked(args) -> None:
+    from ..detector import heading_error
+
+    heading_error(0.0, 0.0, args.date, allow_extrapolation=args.extrapolate, **_budget_options(args))
+
+
+def _budget_map(args, area) -> None:
+    from ..detector import heading_error_grid
+    from ..units import parse_height_km
+
+    grid = heading_error_grid(area, args.date, resolution_deg=args.resolution, alt_km=parse_height_km(args.alt),
+                              allow_extrapolation=args.extrapolate, **_budget_options(args))
+    print(f"error budget beyond {args.limit:g} deg (root-sum-square of residual field, WMM model uncertainty "
+          f"and slaving drift): {grid.attrs['area_exceeding_limit_km2']:,.0f} km^2")
+    save_plot("plot_error_map", grid, args.budget_png)
