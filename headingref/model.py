@@ -204,17 +204,21 @@ def _read_cof(path: Path, text: str) -> Model:
     except (ValueError, IndexError):
         raise _fail(path, "the header line 'EPOCH NAME DATE' is malformed") from None
     rows = []
+    seen: dict[tuple[int, int], int] = {}
     for number, line in enumerate(lines[1:], start=2):
         if line.strip().startswith("9999"):
             break
         parts = line.split()
         try:
             n, m = int(parts[0]), int(parts[1])
-            vals = [float(v) for v in parts[2:6]]
+            vals = [float(v) for v in parts[2:]]
         except (ValueError, IndexError):
             raise _fail(path, f"line {number} is not 'n m g h gdot hdot': {line.strip()[:60]!r}") from None
         if len(vals) != 4 or not np.all(np.isfinite(vals)) or not (1 <= n <= 60 and 0 <= m <= n):
             raise _fail(path, f"line {number} is not 'n m g h gdot hdot' with 0 <= m <= n: {line.strip()[:60]!r}")
+        if (n, m) in seen:
+            raise _fail(path, f"line {number} repeats degree/order ({n}, {m}) of line {seen[n, m]}")
+        seen[n, m] = number
         rows.append((n, m, *vals))
     if not rows:
         raise _fail(path, "no coefficient lines")
