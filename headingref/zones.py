@@ -33,7 +33,17 @@ Poles
   geocentric one with ``tan(lat) = tan(lat_c) / (1 - e^2)``; ``lat_geocentric`` is kept too.
 - :func:`pole_tracks`: both kinds over a range of years.
 
+Public API
+----------
+:func:`zones`, :func:`zone_geojson`, :func:`zone_areas`, :func:`zone_change`,
+:func:`write_geojson`, :func:`threshold_polygons`, :func:`polygons_area_km2`, :func:`area_grid`,
+:func:`parse_area`, :func:`check_resolution_deg`, :func:`dip_poles`, :func:`geomagnetic_poles`,
+:func:`pole_tracks`, :func:`geodetic_from_geocentric_lat`. The package exports ``zones``,
+``dip_poles``, ``geomagnetic_poles`` and ``pole_tracks`` at top level, so ``headingref.zones`` is
+the function: reach the rest with ``from headingref.zones import ...``.
+
 >>> import headingref
+>>> from headingref.zones import zone_areas
 >>> ds = headingref.zones("north", "2026-12-02", resolution_deg=1.0)
 >>> sorted(zone_areas(ds).zone)
 ['blackout', 'caution']
