@@ -56,6 +56,8 @@ __all__ = ["REPORT_FILE", "ReportResult", "build_report"]
 
 REPORT_FILE = "report.html"
 _FIG_DPI = 90
+_SUMMARY_LIMIT = 15  # summary lines per topic before "... and N more"
+_TABLE_LIMIT = 200  # longer runway tables show only the rows needing attention
 
 
 # --------------------------------------------------------------------------- result containers
@@ -749,30 +751,53 @@ def _job_runways(run: _Run, sec: Section) -> None:
     run.tables.update({"runways": table, "runway_changes": changes})
     names = [run.write_csv("runways.csv", table), run.write_csv("runway_changes.csv", changes)]
     s = result.summary
-    mismatch = table[(table["status"] != "error") & (~table["designator_matches"].astype(bool)) & (~table["on_boundary"].astype(bool))]
-    for _, row in mismatch.iterrows():
-        run.summary["runways"].append(
-            f"<b>{_esc(row['airport'])} {_esc(row['runway'])}</b>: out of date now; magnetic {row['magnetic_bearing_deg']:.1f}° "
-            f"implies {_esc(row['designator_implied'])}."
-        )
-    for _, row in changes.iterrows():
-        run.summary["runways"].append(
-            f"{_esc(row['airport'])} {_esc(row['runway'])}: becomes {_esc(row['next_designator'])} on {_esc(row['change_date'])}."
-        )
-    boundary = table[table["on_boundary"].astype(bool)]
+    ok = table["status"] != "error"
+    on_boundary = table["on_boundary"].astype(bool)
+    mismatch = table[ok & (~table["designator_matches"].astype(bool)) & (~on_boundary)]
+    lines = [
+        f"<b>{_esc(row['airport'])} {_esc(row['runway'])}</b>: out of date now; magnetic {row['magnetic_bearing_deg']:.1f}° "
+        f"implies {_esc(row['designator_implied'])}."
+        for _, row in mismatch.iterrows()
+    ]
+    lines += [
+        f"{_esc(row['airport'])} {_esc(row['runway'])}: becomes {_esc(row['next_designator'])} on {_esc(row['change_date'])}."
+        for _, row in changes.iterrows()
+    ]
+    if len(lines) > _SUMMARY_LIMIT:
+        extra = len(lines) - _SUMMARY_LIMIT
+        lines = lines[:_SUMMARY_LIMIT] + [f"… and {extra} more (see runways.csv and runway_changes.csv)."]
+    run.summary["runways"].extend(lines)
+    boundary = table[on_boundary]
     if not boundary.empty:
-        ends = ", ".join(f"{a} {b}" for a, b in zip(boundary["airport"], boundary["runway"], strict=True))
-        run.summary["runways"].append(f"On a rounding boundary (no verdict; check with the survey): {_esc(ends)}.")
+        ends = [f"{a} {b}" for a, b in zip(boundary["airport"], boundary["runway"], strict=True)]
+        more = f" and {len(ends) - _SUMMARY_LIMIT} more" if len(ends) > _SUMMARY_LIMIT else ""
+        run.summary["runways"].append(
+            f"On a rounding boundary (no verdict; check with the survey): {_esc(', '.join(ends[:_SUMMARY_LIMIT]))}{more}."
+        )
+    errors = int((~ok).sum())
+    if errors:
+        run.summary["runways"].append(f"{errors} runway row(s) could not be checked; the reasons are in the table.")
     if not run.summary["runways"]:
         run.summary["runways"].append(f"All {s['rows']} runway ends match and none changes before {s['forecast_end']}.")
     if result.notes:
         run.summary["runways"].append(f"Forecast to {_esc(s['forecast_end'])}: " + _esc(" ".join(result.notes)))
     sec.blocks.append("<p>" + "<br>".join(_esc(line) for line in result.summary_text().splitlines()) + "</p>")
-    sec.blocks.append(_table_html(table, {
+
+    def attention(row) -> str:
+        if row["status"] == "error" or row["verdict"] == "mismatch":
+            return "bad"
+        changing = isinstance(row["change_date"], str) and row["change_date"] != ""
+        return "warn" if bool(row["on_boundary"]) or changing or row["status"] == "warning" else ""
+
+    shown = table
+    if len(table) > _TABLE_LIMIT:  # a large batch: list only the rows that need attention
+        shown = table[[attention(row) != "" for _, row in table.iterrows()]]
+        sec.blocks.append(f"<p>{len(shown)} of {len(table)} runway ends need attention and are listed; all are in runways.csv.</p>")
+    sec.blocks.append(_table_html(shown, {
         "airport": "airport", "runway": "runway", "true_bearing_deg": "true °", "variation_deg": "variation °",
         "magnetic_bearing_deg": "magnetic °", "designator_implied": "implied", "verdict": "verdict", "margin_deg": "margin °",
         "change_date": "changes on", "next_designator": "to", "pair_check": "pair", "status": "status", "reason": "reason",
-    }, highlight=lambda row: "bad" if row["verdict"] == "mismatch" else ("warn" if row["on_boundary"] or row["change_date"] else "")))
+    }, highlight=attention))
     with contextlib.suppress(_Missing):
         runway_bearing_figure = _need("plots.runways", "runway_bearing_figure")
         sec.blocks.append('<div class="figs">' + _figure_html(runway_bearing_figure(result), "runway magnetic azimuth against time",

@@ -229,3 +229,30 @@ def test_bad_output_folder_and_bad_route_name_the_culprit(tmp_path):
     with pytest.raises(InputError, match="route 'R1' \\(one.csv\\): a route needs at least two waypoints"):
         build_report(path, tmp_path / "out", progress=False)
     assert not (tmp_path / "out").exists()
+
+
+def test_large_runway_batch_keeps_the_summary_short(tmp_path):
+    inputs = pd.read_csv(DEMO / "runways.csv", dtype=str)
+    copies = []
+    for i in range(10):  # 260 ends at 100 invented airfields
+        part = inputs.copy()
+        part["airport"] = part["airport"].str[:2] + f"{i:02d}"
+        copies.append(part)
+    pd.concat(copies).to_csv(tmp_path / "rw.csv", index=False)
+    path = tmp_path / "big.toml"
+    path.write_text('analysis_date = "2026-12-02"\n[runways]\nfile = "rw.csv"\n', encoding="utf-8")
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        result = build_report(path, tmp_path / "out", progress=False)
+    lines = result.summary["runways"]
+    table = pd.read_csv(result.out_dir / "runways.csv")
+    changes = pd.read_csv(result.out_dir / "runway_changes.csv")
+    assert len(table) == 260
+    stale = int(((table.verdict == "mismatch") & ~table.on_boundary).sum())
+    assert stale == 40  # the demo's four stale ends, ten times
+    # one line per stale end and per change, capped at 15 and the rest counted
+    assert len(lines) <= 15 + 4
+    assert any(f"and {stale + len(changes) - 15} more" in line for line in lines)
+    page = result.html.read_text(encoding="utf-8")
+    shown = page.split('id="runways"')[1].count("<tr") - 1  # header row
+    assert shown < 260  # only the ends needing attention are listed in the page
