@@ -322,7 +322,7 @@ def _job_routes(run: _Run, sec: Section) -> None:
         f"<code>{_esc(settings['grid'])}</code>; field {_esc(run.sc.model_name)} on {_esc(run.date)}. Courses are at the "
         f"start of each leg (true, magnetic = true − variation, grid = true − convergence). The error budget is for a "
         f"slaved flux-gate detector with a {budget['residual_field_nT']:g} nT residual aircraft field: steady level flight, "
-        f"and a {budget['bank_angle_deg']:g}° banked turn lasting {budget['turn_duration_s']:g} s with slaving on "
+        f"and a {_manoeuvre(budget)} lasting {budget['turn_duration_s']:g} s with slaving on "
         f"(root-sum-square of the terms), against a limit of {budget['limit_deg']:g}°.</p>"
     )
     for plan in settings["plan"]:
@@ -338,12 +338,12 @@ def _job_routes(run: _Run, sec: Section) -> None:
         legs, samples = result.legs.copy(), result.samples.copy()
         lat, lon, alt = (samples[c].to_numpy() for c in ("lat_deg", "lon_deg", "alt_km"))
         common = dict(
-            residual_field_nT=budget["residual_field_nT"], accel_mps2=budget["acceleration_mps2"],
-            gimbal_limit_deg=budget["joint_limit_deg"], slaving_rate_deg_per_min=budget["slaving_rate_deg_per_min"],
+            residual_field_nT=budget["residual_field_nT"], gimbal_limit_deg=budget["joint_limit_deg"], slaving_rate_deg_per_min=budget["slaving_rate_deg_per_min"],
             turn_duration_min=budget["turn_duration_s"] / 60.0, limit_deg=budget["limit_deg"], **run.common,
         )
-        steady = heading_error(lat, lon, run.date, alt_km=alt, bank_deg=0.0, **common)
-        turning = heading_error(lat, lon, run.date, alt_km=alt, bank_deg=budget["bank_angle_deg"], **common)
+        steady = heading_error(lat, lon, run.date, alt_km=alt, bank_deg=0.0, accel_mps2=0.0, **common)
+        turning = heading_error(lat, lon, run.date, alt_km=alt, bank_deg=budget["bank_angle_deg"],
+                                accel_mps2=budget["acceleration_mps2"], **common)
         samples["budget_steady_deg"] = steady["budget_rss_deg"].to_numpy()
         samples["budget_turn_deg"] = turning["budget_rss_deg"].to_numpy()
         samples["tilt_error_turn_deg"] = turning["tilt_error_deg"].to_numpy()
@@ -428,8 +428,19 @@ def _job_routes(run: _Run, sec: Section) -> None:
     names = [run.write_csv("route_legs.csv", legs_all), run.write_csv("route_samples.csv", samples_all)]
     names.append(run.write_json("routes.geojson", {"type": "FeatureCollection", "features": features}))
     sec.blocks.append(run.files_html(names))
+    if len(run.summary["routes"]) > _SUMMARY_LIMIT:
+        extra = len(run.summary["routes"]) - _SUMMARY_LIMIT
+        run.summary["routes"][_SUMMARY_LIMIT:] = [f"… and {extra} more legs (see route_legs.csv)."]
     if not run.summary["routes"]:
         run.summary["routes"].append("Every leg keeps a usable magnetic reference (H above the caution threshold throughout).")
+
+
+def _manoeuvre(budget: dict) -> str:
+    """The manoeuvre of the error budget in words."""
+    text = f"{budget['bank_angle_deg']:g}° bank turn"
+    if budget["acceleration_mps2"]:
+        text += f" with {budget['acceleration_mps2']:g} m/s² along-track acceleration"
+    return text
 
 
 def _budget_profile_figure(samples: pd.DataFrame, budget: dict):
@@ -438,7 +449,7 @@ def _budget_profile_figure(samples: pd.DataFrame, budget: dict):
     fig, ax = plt.subplots(figsize=(8, 2.8))
     d = samples["distance_along_route_nm"].to_numpy()
     ax.plot(d, samples["budget_steady_deg"], label="steady level flight", color="C0")
-    ax.plot(d, samples["budget_turn_deg"], label=f"{budget['bank_angle_deg']:g}° bank turn", color="C1", alpha=0.8)
+    ax.plot(d, samples["budget_turn_deg"], label=_manoeuvre(budget), color="C1", alpha=0.8)
     ax.axhline(budget["limit_deg"], color="C3", linestyle="--", linewidth=1, label=f"limit {budget['limit_deg']:g}°")
     ax.set_yscale("log")
     ax.set_ylim(0.1, 200)
@@ -558,13 +569,12 @@ def _job_budget_map(run: _Run, sec: Section) -> None:
     z = run.sc.zones or {"cap": "north", "edge_lat_deg": 55.0, "step_deg": 0.5}
     area = _zone_area(run) if run.sc.zones else (55.0, 90.0, -180.0, 180.0)
     alt = run.sc.routes["alt"] if run.sc.routes else 0.0
-    options = dict(resolution_deg=z["step_deg"], alt_km=alt, residual_field_nT=b["residual_field_nT"],
-                   accel_mps2=b["acceleration_mps2"], gimbal_limit_deg=b["joint_limit_deg"],
+    options = dict(resolution_deg=z["step_deg"], alt_km=alt, residual_field_nT=b["residual_field_nT"], gimbal_limit_deg=b["joint_limit_deg"],
                    slaving_rate_deg_per_min=b["slaving_rate_deg_per_min"], turn_duration_min=b["turn_duration_s"] / 60.0,
                    limit_deg=b["limit_deg"], model=run.model)
-    grids = {"steady": heading_error_grid(area, run.date, bank_deg=0.0, **options),
-             "turn": heading_error_grid(area, run.date, bank_deg=b["bank_angle_deg"], **options)}
-    rows = [{"case": "steady level flight" if k == "steady" else f"{b['bank_angle_deg']:g}° bank turn, {b['turn_duration_s']:g} s",
+    grids = {"steady": heading_error_grid(area, run.date, bank_deg=0.0, accel_mps2=0.0, **options),
+             "turn": heading_error_grid(area, run.date, bank_deg=b["bank_angle_deg"], accel_mps2=b["acceleration_mps2"], **options)}
+    rows = [{"case": "steady level flight" if k == "steady" else f"{_manoeuvre(b)}, {b['turn_duration_s']:g} s",
              "limit_deg": b["limit_deg"], "area_exceeding_limit_km2": g.attrs.get("area_exceeding_limit_km2", float("nan")),
              "combination": g.attrs.get("combination", "")} for k, g in grids.items()]
     table = pd.DataFrame(rows)
@@ -573,7 +583,7 @@ def _job_budget_map(run: _Run, sec: Section) -> None:
     sec.blocks.append(
         f"<p>The heading-reference error budget at {alt:.1f} km over the cap: residual aircraft field "
         f"{b['residual_field_nT']:g} nT (error up to asin(ΔB/H)), the WMM declination uncertainty, and in the turn the "
-        f"detector tilt ({b['bank_angle_deg']:g}° bank; the error grows with the tangent of the inclination) and the "
+        f"detector tilt ({_manoeuvre(b)}; the error grows with the tangent of the inclination) and the "
         f"gyro being dragged by slaving at {b['slaving_rate_deg_per_min']:g}°/min for {b['turn_duration_s']:g} s. "
         f"Shaded where the combined error exceeds {b['limit_deg']:g}°.</p>"
     )
@@ -602,7 +612,7 @@ def _budget_map_figure(run: _Run, grids: dict, b: dict, z: dict):
         mesh = ax.contourf(x, y, data, levels=levels, cmap=cmap, norm=norm, zorder=0.5)
         ax.contour(x, y, data, levels=[b["limit_deg"]], colors="k", linewidths=1.0, zorder=1.6)
         basemap.draw_coastlines(ax, to_map)
-        ax.set_title("steady level flight" if key == "steady" else f"{b['bank_angle_deg']:g}° bank turn", fontsize=10)
+        ax.set_title("steady level flight" if key == "steady" else _manoeuvre(b), fontsize=10)
     fig.colorbar(mesh, ax=list(axes), shrink=0.8, label="combined heading error (°, RSS)")
     return fig
 
