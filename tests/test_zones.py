@@ -6,6 +6,8 @@ import json
 
 import numpy as np
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 from matplotlib.path import Path as MplPath
 from pyproj import Geod
 
@@ -15,6 +17,7 @@ from headingref.field import BLACKOUT_NT, CAUTION_NT
 from headingref.zones import (
     DEFAULT_LABELS,
     DEFAULT_THRESHOLDS_NT,
+    parse_area,
     zone_areas,
     zone_change,
     zone_geojson,
@@ -253,3 +256,19 @@ def test_cli_zones_budget_map_and_early_option_check(tmp_path, capsys):
     assert main(["zones", "--cap", "north", "--date", DATE, "--geojson", str(geojson), "--budget-png", str(png),
                  "--bank", "95"]) == 2
     assert "bank_deg 95" in capsys.readouterr().err and not geojson.exists()
+
+
+@settings(max_examples=100, deadline=None)
+@given(st.floats(-90, 90), st.floats(-90, 90), st.floats(-180, 180), st.floats(-180, 180))
+def test_parse_area_text_and_tuple_agree(lat_a, lat_b, lon_a, lon_b):
+    lat_min, lat_max = sorted((lat_a, lat_b))
+    if lat_min == lat_max or lon_a == lon_b:
+        with pytest.raises(InputError):
+            parse_area((lat_min, lat_max, lon_a, lon_b))
+        return
+    kind, bounds = parse_area((lat_min, lat_max, lon_a, lon_b))
+    assert kind == "region"
+    assert parse_area(f"{lat_min!r},{lat_max!r},{lon_a!r},{lon_b!r}") == (kind, bounds)
+    # the eastward span from LON_MIN to LON_MAX, unwrapped past 180 across the antimeridian
+    assert bounds[2] == lon_a and 0.0 < bounds[3] - bounds[2] <= 360.0
+    assert min(abs(bounds[3] - lon_b), abs(bounds[3] - lon_b - 360.0)) < 1e-9
