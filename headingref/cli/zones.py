@@ -81,15 +81,6 @@ def save_plot(function_name: str, data, target: str) -> None:
     print(f"wrote {target}")
 
 
-def _netcdf_ready(ds):
-    """Attributes netCDF can store: lists of strings become one space-separated string."""
-    out = ds.copy()
-    for name, value in list(out.attrs.items()):
-        if isinstance(value, list) and value and isinstance(value[0], str):
-            out.attrs[name] = " ".join(value)
-    return out
-
-
 def run(args) -> int:
     from ..io import atomic_path
     from ..notices import CAUTION
@@ -128,7 +119,7 @@ def run(args) -> int:
         print(f"wrote {args.geojson} ({len(collection['features'])} features)")
     if args.netcdf:
         with atomic_path(args.netcdf) as tmp:
-            _netcdf_ready(ds).to_netcdf(tmp, engine="h5netcdf")
+            ds.to_netcdf(tmp, engine="h5netcdf")
         print(f"wrote {args.netcdf}")
     if args.png:
         save_plot("plot_zone_map", ds, args.png)
