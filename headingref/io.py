@@ -67,8 +67,15 @@ def read_table(
     header: list[str] | None = None
     rows: list[list[str]] = []
     line_numbers: list[int] = []
+    end_of_previous = 0
     try:
         for record in reader:
+            start, end_of_previous = end_of_previous + 1, reader.line_num
+            if any("\n" in cell or "\r" in cell for cell in record):
+                raise InputError(
+                    f"{label} line {start}: a quoted field runs on to line {reader.line_num}; "
+                    'check that every double quote (") is closed on its own line'
+                )
             if not any(cell.strip() for cell in record):
                 continue
             if header is None:
