@@ -272,3 +272,23 @@ def test_parse_area_text_and_tuple_agree(lat_a, lat_b, lon_a, lon_b):
     # the eastward span from LON_MIN to LON_MAX, unwrapped past 180 across the antimeridian
     assert bounds[2] == lon_a and 0.0 < bounds[3] - bounds[2] <= 360.0
     assert min(abs(bounds[3] - lon_b), abs(bounds[3] - lon_b - 360.0)) < 1e-9
+
+
+@pytest.mark.parametrize("cap", ["north", "south"])
+def test_boundary_vertices_lie_on_their_threshold_in_ppigrf(cap, north, south):
+    import pandas as pd
+    import ppigrf
+
+    # ppigrf (independent IGRF-14 synthesis): H at the boundary vertices equals the threshold the
+    # boundary stands for, within 20 nT at 0.5 deg (linear interpolation between grid nodes)
+    collection = zone_geojson(north if cap == "north" else south)
+    for feature in collection["features"]:
+        upper = feature["properties"]["upper_nT"]
+        lower = feature["properties"]["lower_nT"]
+        ring = np.asarray(feature["geometry"]["coordinates"][0][0])
+        keep = (np.abs(ring[:, 0]) < 180.0) & (np.abs(ring[:, 1]) < 90.0) & (np.abs(ring[:, 1]) > 50.001)
+        lon, lat = ring[keep, 0][::5], ring[keep, 1][::5]
+        east, north_nT, _ = ppigrf.igrf(lon, lat, 0.0, pd.Timestamp(DATE))
+        h = np.hypot(np.ravel(east), np.ravel(north_nT))
+        off = np.minimum(np.abs(h - upper), np.abs(h - lower) if lower > 0 else np.inf)
+        assert off.size > 10 and off.max() < 20.0
