@@ -131,13 +131,18 @@ def decimal_year(dates: Any) -> np.ndarray | float:
 
 
 def timestamp_from_decimal_year(year: float) -> pd.Timestamp:
-    """Inverse of :func:`decimal_year` for one value (to the nanosecond)."""
+    """Inverse of :func:`decimal_year` for one value, rounded to the millisecond.
+
+    A float64 decimal year near 2000 resolves about 7 microseconds, so the millisecond rounding
+    keeps round trips exact (2026-12-02 comes back as 00:00:00.000, not 23:59:59.999998 the day
+    before).
+    """
     if not math.isfinite(year):
         raise InputError(f"decimal year {year!r} is not finite")
     whole = math.floor(year)
     start = pd.Timestamp(year=whole, month=1, day=1)
     end = pd.Timestamp(year=whole + 1, month=1, day=1)
-    return start + (end - start) * (year - whole)
+    return (start + (end - start) * (year - whole)).round("ms")
 
 
 _COORD_RE = re.compile(
