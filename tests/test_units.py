@@ -162,3 +162,9 @@ def test_atomic_write_leaves_nothing_on_failure(tmp_path):
     assert [p.name for p in tmp_path.iterdir()] == ["out.csv"]
     with pytest.raises(InputError, match="does not exist"):
         io.write_text(tmp_path / "no" / "x.txt", "x")
+
+
+@given(st.dates(min_value=pd.Timestamp("1900-01-01").date(), max_value=pd.Timestamp("2099-12-31").date()))
+def test_calendar_dates_come_back_exact(day):
+    # A date must not come back as 23:59:59.999 of the day before (it would print the wrong day).
+    assert timestamp_from_decimal_year(decimal_year(day.isoformat())) == pd.Timestamp(day)
