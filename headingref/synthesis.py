@@ -100,6 +100,22 @@ def _geocentric(lat_deg, alt_km):
     return r, st, ct, sin_psi, cos_psi
 
 
+@nb.njit(cache=True, fastmath=True, inline="always")
+def _diagonal_step(m, st, ct, pmm, dpmm, diag):
+    """P_m^m and its theta-derivative from P_{m-1}^{m-1} (Schmidt semi-normalised)."""
+    if m == 1:
+        return st, ct
+    if m >= 2:
+        return diag[m] * st * pmm, diag[m] * (ct * pmm + st * dpmm)
+    return pmm, dpmm
+
+
+@nb.njit(cache=True, fastmath=True, inline="always")
+def _degree_step(a1, a2, st, ct, p1, dp1, p2, dp2):
+    """P_n^m and its theta-derivative from degrees n-1 and n-2 (three-term recursion)."""
+    return a1 * ct * p1 - a2 * p2, a1 * (ct * dp1 - st * p1) - a2 * dp2
+
+
 @nb.njit(parallel=True, cache=True, fastmath=True)
 def scattered(lat_deg, lon_deg, alt_km, k_index, dt_years, g, h, g_rate, h_rate, k1, k2, diag, a_ref, out):
     """Field and its rate at scattered points.
@@ -129,13 +145,7 @@ def scattered(lat_deg, lon_deg, alt_km, k_index, dt_years, g, h, g_rate, h_rate,
         dpmm = 0.0
         rm = ratio * ratio
         for m in range(nmax + 1):
-            if m == 1:
-                pmm = st
-                dpmm = ct
-            elif m >= 2:
-                pnew = diag[m] * st * pmm
-                dpmm = diag[m] * (ct * pmm + st * dpmm)
-                pmm = pnew
+            pmm, dpmm = _diagonal_step(m, st, ct, pmm, dpmm, diag)
             if m >= 1:
                 cnew = cm * cl - sm * sl
                 sm = sm * cl + cm * sl
@@ -148,12 +158,7 @@ def scattered(lat_deg, lon_deg, alt_km, k_index, dt_years, g, h, g_rate, h_rate,
             rn = rm
             for n in range(m, nmax + 1):
                 if n > m:
-                    pn = k1[n, m] * ct * p1 - k2[n, m] * p2
-                    dpn = k1[n, m] * (ct * dp1 - st * p1) - k2[n, m] * dp2
-                    p2 = p1
-                    dp2 = dp1
-                    p1 = pn
-                    dp1 = dpn
+                    p2, dp2, p1, dp1 = p1, dp1, *_degree_step(k1[n, m], k2[n, m], st, ct, p1, dp1, p2, dp2)
                     rn *= ratio
                 if n == 0:
                     continue
@@ -203,13 +208,7 @@ def grid_row_terms(lat_deg, alt_km, g, h, g_rate, h_rate, k1, k2, diag, a_ref, o
         dpmm = 0.0
         rm = ratio * ratio
         for m in range(nmax + 1):
-            if m == 1:
-                pmm = st
-                dpmm = ct
-            elif m >= 2:
-                pnew = diag[m] * st * pmm
-                dpmm = diag[m] * (ct * pmm + st * dpmm)
-                pmm = pnew
+            pmm, dpmm = _diagonal_step(m, st, ct, pmm, dpmm, diag)
             if m >= 1:
                 rm *= ratio
             p1 = pmm
@@ -223,12 +222,7 @@ def grid_row_terms(lat_deg, alt_km, g, h, g_rate, h_rate, k1, k2, diag, a_ref, o
             dxc = dxs_ = dyc = dys_ = dzc = dzs_ = 0.0
             for n in range(m, nmax + 1):
                 if n > m:
-                    pn = k1[n, m] * ct * p1 - k2[n, m] * p2
-                    dpn = k1[n, m] * (ct * dp1 - st * p1) - k2[n, m] * dp2
-                    p2 = p1
-                    dp2 = dp1
-                    p1 = pn
-                    dp1 = dpn
+                    p2, dp2, p1, dp1 = p1, dp1, *_degree_step(k1[n, m], k2[n, m], st, ct, p1, dp1, p2, dp2)
                     rn *= ratio
                 if n == 0:
                     continue
