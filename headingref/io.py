@@ -45,13 +45,16 @@ def read_table(
     """
     path = Path(path)
     label = f"{what} {path.name}"
-    if not path.exists():
-        raise InputError(f"{label}: no such file {str(path)!r}")
-    if not path.is_file():
-        raise InputError(f"{label}: {str(path)!r} is not a file")
-    if path.stat().st_size > MAX_TABLE_BYTES:
-        raise InputError(f"{label}: file is larger than {MAX_TABLE_BYTES // 2**20} MiB")
-    raw = path.read_bytes()
+    try:
+        if not path.exists():
+            raise InputError(f"{label}: no such file {str(path)!r}")
+        if not path.is_file():
+            raise InputError(f"{label}: {str(path)!r} is not a file")
+        if path.stat().st_size > MAX_TABLE_BYTES:
+            raise InputError(f"{label}: file is larger than {MAX_TABLE_BYTES // 2**20} MiB")
+        raw = path.read_bytes()
+    except OSError as exc:  # name too long, no permission, I/O error
+        raise InputError(f"{label}: cannot read {str(path)!r}: {exc.strerror or exc}") from None
     if b"\x00" in raw:
         raise InputError(f"{label}: file holds binary data (NUL bytes); give a UTF-8 CSV text file")
     try:
