@@ -277,6 +277,10 @@ def load_model(path: str | os.PathLike | None = None) -> Model:
             _DEFAULT = load_model(default_coefficient_file())
         return _DEFAULT
     p = Path(path)
-    if not p.is_file():
-        raise ModelFileError(f"coefficient file {str(p)!r} does not exist; give an IGRF-format .shc or a WMM .COF file")
-    return _load_cached(str(p.resolve()), p.stat().st_mtime)
+    try:
+        if not p.is_file():
+            raise ModelFileError(f"coefficient file {str(p)!r} does not exist; give an IGRF-format .shc or a WMM .COF file")
+        key = (str(p.resolve()), p.stat().st_mtime)
+    except OSError as exc:  # name too long, no permission
+        raise ModelFileError(f"coefficient file {str(p)!r} cannot be read: {exc.strerror or exc}") from None
+    return _load_cached(*key)
