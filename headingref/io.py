@@ -184,15 +184,29 @@ def atomic_path(target: str | os.PathLike) -> Iterator[Path]:
     """
     target = Path(target)
     parent = target.parent if str(target.parent) else Path(".")
+    if "\x00" in str(target):
+        raise InputError(f"cannot write {str(target)!r}: a file name cannot hold a NUL character")
     if not parent.is_dir():
         raise InputError(f"cannot write {str(target)!r}: folder {str(parent)!r} does not exist")
-    tmp = parent / f".{target.stem}.tmp{os.getpid()}{target.suffix}"
+    try:
+        kind = "folder" if target.is_dir() else "special" if target.exists() and not target.is_file() else "file"
+    except OSError as exc:  # name too long
+        raise InputError(f"cannot write {str(target)!r}: {exc.strerror or exc}") from None
+    if kind == "folder":
+        raise InputError(f"cannot write {str(target)!r}: it is a folder; give a file name")
+    # A device or pipe (/dev/null, /dev/stdout) is written directly: renaming a file onto it would
+    # replace the device itself (as root) instead of writing through it.
+    tmp = target if kind == "special" else parent / f".{target.stem[:100]}.tmp{os.getpid()}{target.suffix}"
     try:
         yield tmp
-        os.replace(tmp, target)
+        if tmp != target:
+            os.replace(tmp, target)
+    except OSError as exc:  # name too long, disk full, no permission
+        raise InputError(f"cannot write {str(target)!r}: {exc.strerror or exc}") from None
     finally:
-        with contextlib.suppress(FileNotFoundError):
-            tmp.unlink()
+        if tmp != target:
+            with contextlib.suppress(OSError):
+                tmp.unlink()
 
 
 def write_text(target: str | os.PathLike, text: str) -> Path:
