@@ -60,6 +60,7 @@ _N = _F / (2.0 - _F)  # third flattening
 ZONE_NAMES = np.array(["normal", "caution", "blackout"])
 POLE_NUDGE_M = 1.0
 MIN_LEG_M = 1.0
+MAX_SAMPLES = 2_000_000  # ~ a round-the-world route every 0.01 NM; more would exhaust memory, not add accuracy
 
 
 class RouteResult(NamedTuple):
@@ -326,7 +327,14 @@ def route(
         )
 
     dist_nm = dist_m / NAUTICAL_MILE_M
-    n_seg = np.maximum(1, np.ceil(dist_nm / spacing - 1e-9).astype(np.int64))
+    with np.errstate(over="ignore"):
+        n_wanted = np.ceil(dist_nm / spacing - 1e-9)
+    if n_wanted.sum() + n_legs > MAX_SAMPLES:
+        raise InputError(
+            f"spacing {spacing:g} NM gives {n_wanted.sum() + n_legs:.3g} samples along the route's {dist_nm.sum():,.1f} NM "
+            f"(at most {MAX_SAMPLES:,}); give a larger spacing"
+        )
+    n_seg = np.maximum(1, n_wanted.astype(np.int64))
     counts = n_seg + 1
     leg_of = np.repeat(np.arange(n_legs), counts)
     k = np.arange(counts.sum()) - np.repeat(np.cumsum(counts) - counts, counts)
