@@ -47,7 +47,7 @@ _DATE_HELP = "an ISO date such as 2026-12-02 (optionally with a time), or a deci
 
 
 def _as_datetime64(value: Any) -> np.datetime64 | None:
-    """Return a UTC naive datetime64[ns] for a date-like scalar, None for a number."""
+    """Return a UTC naive datetime64[us] for a date-like scalar, None for a number."""
     if isinstance(value, (bool, np.bool_)):
         raise InputError(f"date {value!r} is not a date; give {_DATE_HELP}")
     if isinstance(value, (int, float, np.integer, np.floating)):
@@ -77,14 +77,14 @@ def _as_datetime64(value: Any) -> np.datetime64 | None:
         raise InputError(f"date {value!r} is missing; give {_DATE_HELP}")
     if ts.tzinfo is not None:
         ts = ts.tz_convert("UTC").tz_localize(None)
-    return ts.to_datetime64().astype("datetime64[ns]")
+    return ts.to_datetime64().astype("datetime64[us]")
 
 
 def _decimal_year_from_datetime64(values: np.ndarray) -> np.ndarray:
-    values = values.astype("datetime64[ns]")
+    values = values.astype("datetime64[us]")
     years = values.astype("datetime64[Y]")
-    start = years.astype("datetime64[ns]")
-    end = (years + 1).astype("datetime64[ns]")
+    start = years.astype("datetime64[us]")
+    end = (years + 1).astype("datetime64[us]")
     fraction = (values - start).astype(np.float64) / (end - start).astype(np.float64)
     return years.astype(np.int64) + 1970 + fraction
 
