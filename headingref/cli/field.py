@@ -81,7 +81,9 @@ def run(args) -> int:
     from ..field import field
     from ..notices import CAUTION
     from ..units import format_dm, timestamp_from_decimal_year
+    from .common import check_outputs
 
+    check_outputs(files=[args.output], inputs=[args.input, args.model])
     names, lat, lon, alt, years = _inputs(args)
     table = field(lat, lon, years, alt_km=alt, model=args.model, allow_extrapolation=args.extrapolate)
     table.insert(0, "name", names)

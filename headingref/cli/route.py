@@ -73,7 +73,10 @@ def run(args) -> int:
     from ..io import write_csv, write_text
     from ..notices import CAUTION
     from ..routes import route, route_geojson
+    from .common import check_outputs
 
+    check_outputs(files=[args.output, args.samples, args.geojson], figures=[args.plot, args.profile],
+                  inputs=[args.input, args.model])
     result = route(
         args.input,
         args.date,

@@ -52,7 +52,9 @@ def run(args) -> int:
     from ..io import write_csv
     from ..notices import CAUTION
     from ..runways import BOUNDARY_TOLERANCE_DEG, check_runways
+    from .common import check_outputs
 
+    check_outputs(files=[args.output], figures=[args.plot], inputs=[args.input, args.model])
     tolerance = BOUNDARY_TOLERANCE_DEG if args.tolerance is None else args.tolerance
     result = check_runways(
         args.input,
