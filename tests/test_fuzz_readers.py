@@ -33,7 +33,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from headingref.cli import main
-from headingref.errors import HeadingrefError, HeadingrefWarning, InputError, ModelFileError
+from headingref.errors import HeadingrefError, HeadingrefWarning, ModelFileError
 from headingref.model import default_coefficient_file, load_model
 
 DATA = Path(__file__).parent / "data"
@@ -703,3 +703,49 @@ def test_coefficient_file_bad_paths(tmp_path, label, make, expected):
     kind, message = outcome(lambda: load_model(path))
     assert kind == "error" and message.startswith("coefficient file"), message
     assert re.search("does not exist" if label in ("no such file", "a folder") else "cannot be read", message), message
+
+
+# --------------------------------------------------------------------------- the same through the CLI
+
+
+def _cli_argv(reader: str, path: Path, out: Path) -> list[str]:
+    return {
+        "places": ["field", "--input", path, "--date", TODAY, "--output", out / "field.csv"],
+        "route": ["route", "--input", path, "--date", TODAY, "--spacing", "50", "--output", out / "legs.csv",
+                  "--samples", out / "samples.csv", "--geojson", out / "route.geojson"],
+        "runways": ["runways", "--input", path, "--date", TODAY, "--horizon", "0", "--output", out / "checked.csv"],
+        "bases": ["base", "--input", path, "--date", TODAY, "--output", out / "upkeep.csv"],
+        "swing": ["swing", "--input", path, "--output", out / "coefficients.csv", "--card", out / "card.csv"],
+        "scenario": ["report", path, "--out", out / "report", "--no-progress"],
+        "model": ["field", "--lat", "60", "--lon", "10", "--date", TODAY, "--model", path, "--output", out / "field.csv"],
+    }[reader]
+
+
+COMMAND = {"places": "field", "route": "route", "runways": "runways", "bases": "base", "swing": "swing",
+           "scenario": "report", "model": "field"}
+
+CLI_CASES = [(reader, label, data) for reader, label, data, expected in STRUCTURAL if expected is not None]
+CLI_CASES += [("scenario", label, data) for label, data in
+              [("empty", b""), ("UTF-16", (DEMO / "scenario.toml").read_text(encoding="utf-8").encode("utf-16")),
+               ("bad TOML", b"analysis_date: 2026\n"), ("unknown key", b'analysis_date = "2026-12-02"\nmodle = "x"\n')]]
+CLI_CASES += [("model", f"{suffix} {label}", data) for suffix, text in (("shc", SHC_TEXT), ("COF", COF_TEXT))
+              for label, data in _model_mutations(text, suffix)[:6]]
+
+
+@pytest.mark.parametrize("reader, label, data", CLI_CASES, ids=[f"{c[0]}-{c[1]}" for c in CLI_CASES])
+def test_cli_bad_file_one_line_and_no_output(tmp_path, reader, label, data):
+    # exit 2, one 'headingref CMD: error:' line, no traceback, the output folder still empty
+    inputs, out = tmp_path / "in", tmp_path / "out"
+    inputs.mkdir()
+    out.mkdir()
+    suffix = {"scenario": ".toml", "model": ".shc" if label.startswith("shc") else ".COF"}.get(reader, ".csv")
+    path = inputs / f"input{suffix}"
+    if reader == "scenario":  # inside a copy of the demo folder, so relative names resolve
+        import shutil
+
+        shutil.copytree(DEMO, inputs / "demo")
+        path = inputs / "demo" / "bad.toml"
+    path.write_bytes(data)
+    code, _, err = run_cli([str(a) for a in _cli_argv(reader, path, out)])
+    assert_cli_failed_cleanly(code, err, out, set(), COMMAND[reader])
+    assert [p.name for p in tmp_path.iterdir() if p.name.startswith(".")] == []  # no report staging folder left
