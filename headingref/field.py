@@ -15,7 +15,8 @@ Declination uncertainty follows the WMM error model, ``sqrt(0.26^2 + (5417/H)^2)
 in nT (WMM2020 and WMM2025 technical reports, section on uncertainty). Zones follow the same
 reports: ``blackout`` where H < 2000 nT (compasses unreliable), ``caution`` where 2000 <= H < 6000 nT,
 else ``normal``. Declination is undefined at the geographic poles and where H = 0 (below
-0.01 nT here): it is NaN there, with the reason in ``declination_flag``, and a warning is issued.
+0.01 nT here): it is NaN there, with the reason in ``declination_flag``, and a warning is issued;
+where H is below 0.01 nT the declination uncertainty is infinite (the error model's limit).
 
 >>> import headingref
 >>> df = headingref.field([60.0, 78.2], [25.0, 15.6], "2026-12-02")
@@ -198,6 +199,9 @@ def _synthesise(model: Model, lat, lon, alt, years) -> tuple[np.ndarray, np.ndar
 
 def _derive(xyz: np.ndarray, out: np.ndarray, zone: np.ndarray) -> None:
     synthesis.derive(xyz, H_UNDEFINED_NT, UNCERTAINTY_CONST_DEG, UNCERTAINTY_SCALE_NT, BLACKOUT_NT, CAUTION_NT, out, zone)
+    # The WMM error model sqrt(0.26^2 + (5417/H)^2) tends to infinity as H -> 0: where the kernel
+    # leaves it NaN (H below H_UNDEFINED_NT) the uncertainty is infinite, not unknown.
+    out[8][~(out[2] >= H_UNDEFINED_NT)] = np.inf
 
 
 FLAG_REASONS = (
