@@ -171,14 +171,18 @@ def _prepare(lat, lon, years, alt_km, model, allow_extrapolation):
     alt_a = _heights(alt_km)
     years_a = np.asarray(years, dtype=np.float64)
     try:
-        lat_b, lon_b, alt_b, years_b = np.broadcast_arrays(lat_a, lon_a, alt_a, years_a)
+        shape = np.broadcast_shapes(lat_a.shape, lon_a.shape, alt_a.shape, years_a.shape)
     except ValueError:
         raise InputError(
             f"lat {lat_a.shape}, lon {lon_a.shape}, alt_km {alt_a.shape} and dates {years_a.shape} do not broadcast "
             "to one shape; give scalars or equal-length sequences"
         ) from None
-    model.check_dates(years_b, allow_extrapolation)
-    return model, [np.ascontiguousarray(a, dtype=np.float64).ravel() for a in (lat_b, lon_b, alt_b, years_b)]
+    # Expand only what needs it, as a copy: a broadcast view passed to numba raises a FutureWarning
+    # (numpy: broadcast views will stop being writeable).
+    flat = [np.ascontiguousarray(a if a.shape == shape else np.broadcast_to(a, shape).copy(), dtype=np.float64).ravel()
+            for a in (lat_a, lon_a, alt_a, years_a)]
+    model.check_dates(flat[3], allow_extrapolation)
+    return model, flat
 
 
 def _synthesise(model: Model, lat, lon, alt, years) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
