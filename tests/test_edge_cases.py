@@ -295,38 +295,42 @@ def test_heights_just_outside_are_refused(alt_km):
         headingref.field(60.0, 10.0, DATE, alt_km=alt_km)
 
 
-@pytest.mark.parametrize("text, km", [("-1 km", -1.0), ("-1000 m", -1.0), ("1000 km", 1000.0), ("FL999", 99900 * 0.3048e-3)])
-def test_height_text_at_the_limits(text, km):
-    assert parse_height_km(text) == pytest.approx(km, abs=1e-12)
-
-
-@pytest.mark.parametrize("text", ["-1001 m", "1000001 m", "3280841 ft", "-1.0001 km"])
-def test_height_text_just_outside(text):
-    # 1000 km = 3,280,839.9 ft (1 ft = 0.3048 m exactly)
-    with pytest.raises(InputError, match="outside -1 km to 1000 km"):
-        parse_height_km(text)
-
-
-# --------------------------------------------------------------------------- 29 February and far dates
+# --------------------------------------------------------------------------- text at the limits: heights, 29 February
 
 
 @pytest.mark.parametrize(
-    "date, expected",
+    "parse, text, expected",
     [
-        ("2024-02-29T12:00", 2024 + 59.5 / 366),  # 31 + 28 days, then half a day; 2024 is a leap year
-        ("2000-02-29", 2000 + 59 / 366),  # divisible by 400: leap (Gregorian rule)
-        ("2028-02-29T23:59:59", 2028 + (60 - 1 / 86400) / 366),
+        (parse_height_km, "-1 km", -1.0),
+        (parse_height_km, "-1000 m", -1.0),
+        (parse_height_km, "1000 km", 1000.0),
+        (parse_height_km, "FL999", 99900 * 0.3048e-3),  # 1 ft = 0.3048 m exactly
+        (decimal_year, "2024-02-29T12:00", 2024 + 59.5 / 366),  # 31 + 28 days, then half a day; 2024 is leap
+        (decimal_year, "2000-02-29", 2000 + 59 / 366),  # divisible by 400: leap (Gregorian rule)
+        (decimal_year, "2028-02-29T23:59:59", 2028 + (60 - 1 / 86400) / 366),
     ],
 )
-def test_leap_day_decimal_year(date, expected):
-    assert decimal_year(date) == pytest.approx(expected, abs=1e-12)
+def test_text_at_the_limits(parse, text, expected):
+    assert parse(text) == pytest.approx(expected, abs=1e-12)
 
 
-@pytest.mark.parametrize("date", ["2100-02-29", "1900-02-29", "2025-02-29", "2026-02-30"])
-def test_leap_day_of_a_common_year_is_refused(date):
-    # Gregorian rule: century years are leap years only when divisible by 400 (1900, 2100 are not)
-    with pytest.raises(InputError, match="not a valid calendar date"):
-        decimal_year(date)
+@pytest.mark.parametrize(
+    "parse, text, message",
+    [
+        (parse_height_km, "-1001 m", "outside -1 km to 1000 km"),
+        (parse_height_km, "1000001 m", "outside -1 km to 1000 km"),
+        (parse_height_km, "3280841 ft", "outside -1 km to 1000 km"),  # 1000 km = 3,280,839.9 ft
+        (parse_height_km, "-1.0001 km", "outside -1 km to 1000 km"),
+        # Gregorian rule: century years are leap years only when divisible by 400 (1900, 2100 are not)
+        (decimal_year, "2100-02-29", "not a valid calendar date"),
+        (decimal_year, "1900-02-29", "not a valid calendar date"),
+        (decimal_year, "2025-02-29", "not a valid calendar date"),
+        (decimal_year, "2026-02-30", "not a valid calendar date"),
+    ],
+)
+def test_text_just_outside_is_refused(parse, text, message):
+    with pytest.raises(InputError, match=message):
+        parse(text)
 
 
 def test_leap_day_field_between_its_neighbours():
