@@ -695,9 +695,9 @@ def check_runways(
     if end_year > the_model.valid_to:
         notes.append(f"past {the_model.valid_to:g} the {the_model.name} secular variation is extrapolated linearly")
     inner = the_model.starts[(the_model.starts > start_year) & (the_model.starts < end_year)]
+    # One knot when there is no forecast (the field at the check date only): a padding knot a day
+    # later fell outside the model at its last valid date (2030-01-01 for IGRF-14).
     knots = np.unique(np.concatenate([[start_year], inner, [end_year]]))
-    if knots.size == 1:
-        knots = np.array([start_year, start_year + 1.0 / 365.0])
 
     geometry_ok = np.isfinite(true_bearing) & np.isfinite(mid_lat) & np.isfinite(mid_lon)
     computable = np.flatnonzero(geometry_ok)
