@@ -266,6 +266,17 @@ def test_validity_edges_through_route_runways_and_cli(tmp_path):
     assert out.exists()
 
 
+@pytest.mark.parametrize("horizon", [0, 10])
+def test_runways_checked_on_the_last_valid_date(horizon):
+    # 2030-01-01 is inside IGRF-14's validity (1900.0 to 2030.0 inclusive); the check used to evaluate
+    # the field a day later as well and fail with 'outside validity' (fixed in runways.py).
+    ends = pd.DataFrame({"airport": ["EDGE"], "runway": ["09"], "lat": [69.3], "lon": [16.1], "true_bearing_deg": [95.0]})
+    result = check_runways(ends, "2030-01-01", horizon_years=horizon)
+    east, north, _ = ppigrf_enu(69.3, 16.1, 0.0, "2030-01-01")
+    assert result.table.variation_deg.iloc[0] == pytest.approx(math.degrees(math.atan2(east, north)), abs=0.01)  # ppigrf
+    assert result.table.status.iloc[0] != "error"
+
+
 def test_wmm_validity_edges(tmp_path):
     import pygeomag
 
