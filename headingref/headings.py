@@ -94,16 +94,31 @@ def _scalar_or_array(values: np.ndarray, like: Any) -> Any:
     return float(values) if np.ndim(like) == 0 and np.ndim(values) == 0 else values
 
 
+def _finite_or_nan(values: Any, what: str) -> np.ndarray:
+    """Angles as float64; NaN passes (an undefined angle, e.g. variation at a pole), +-inf is refused."""
+    a = np.asarray(values, dtype=np.float64)
+    infinite = np.isinf(a)
+    if infinite.any():
+        raise InputError(f"{what} {float(a[infinite].flat[0])!r} is infinite; give degrees as finite numbers")
+    return a
+
+
 def normalize_heading(heading_deg: Any) -> Any:
-    """Reduce headings to ``0 <= h < 360`` degrees (a tiny negative gives 0, never 360)."""
-    h = np.mod(np.asarray(heading_deg, dtype=np.float64), 360.0)
+    """Reduce headings to ``0 <= h < 360`` degrees (a tiny negative gives 0, never 360).
+
+    NaN stays NaN (an undefined heading); an infinite value raises :class:`InputError`.
+    """
+    h = np.mod(_finite_or_nan(heading_deg, "heading"), 360.0)
     h = np.where(h >= 360.0, 0.0, h)
     return _scalar_or_array(h, heading_deg)
 
 
 def wrap_angle(angle_deg: Any) -> Any:
-    """Reduce signed angles (variation, convergence, differences) to ``-180 < a <= 180``."""
-    a = np.asarray(angle_deg, dtype=np.float64)
+    """Reduce signed angles (variation, convergence, differences) to ``-180 < a <= 180``.
+
+    NaN stays NaN (an undefined angle); an infinite value raises :class:`InputError`.
+    """
+    a = _finite_or_nan(angle_deg, "angle")
     out = 180.0 - np.mod(180.0 - a, 360.0)
     out = np.where(out <= -180.0, out + 360.0, out)
     return _scalar_or_array(out, angle_deg)
