@@ -387,3 +387,27 @@ def test_field_arrays_single_point_and_scalars_at_edges():
     assert out["horizontal_nT"].shape == (1,) and np.isfinite(out["total_nT"]).all()
     east, north, up = ppigrf_enu(-89.9999, -180.0, 1000.0, "1900-01-01")
     assert out["total_nT"][0] == pytest.approx(math.sqrt(east**2 + north**2 + up**2), abs=1.0)
+
+
+# --------------------------------------------------------------------------- non-finite angles
+
+
+@pytest.mark.parametrize("true, variation", [(float("inf"), 3.0), (10.0, float("-inf"))])
+def test_infinite_angles_are_refused(true, variation):
+    # used to return NaN with numpy's 'invalid value encountered in remainder' (fixed in headings.py)
+    from headingref.headings import true_to_magnetic
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        with pytest.raises(InputError, match="is infinite"):
+            true_to_magnetic(true, variation)
+
+
+def test_nan_angle_stays_undefined():
+    # NaN marks an undefined angle (variation at a pole, headingref.field docstring) and passes through
+    from headingref.headings import normalize_heading, true_to_magnetic, wrap_angle
+
+    assert math.isnan(true_to_magnetic(10.0, float("nan")))
+    out = normalize_heading(np.array([float("nan"), -0.0, 360.0, -1e-300]))
+    assert math.isnan(out[0]) and list(out[1:]) == [0.0, 0.0, 0.0]  # never 360 (module docstring)
+    assert wrap_angle(-180.0) == 180.0 and wrap_angle(540.0) == 180.0
