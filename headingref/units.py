@@ -139,6 +139,8 @@ def timestamp_from_decimal_year(year: float) -> pd.Timestamp:
     """
     if not math.isfinite(year):
         raise InputError(f"decimal year {year!r} is not finite")
+    if not 1.0 <= year < 9999.0:  # the years a calendar date (datetime, pandas.Timestamp) can hold
+        raise InputError(f"decimal year {year!r} is outside the calendar years 1 to 9998")
     whole = math.floor(year)
     start = pd.Timestamp(year=whole, month=1, day=1)
     end = pd.Timestamp(year=whole + 1, month=1, day=1)
