@@ -411,3 +411,23 @@ def test_nan_angle_stays_undefined():
     out = normalize_heading(np.array([float("nan"), -0.0, 360.0, -1e-300]))
     assert math.isnan(out[0]) and list(out[1:]) == [0.0, 0.0, 0.0]  # never 360 (module docstring)
     assert wrap_angle(-180.0) == 180.0 and wrap_angle(540.0) == 180.0
+
+
+@pytest.mark.parametrize("year", [1e308, 9999.0, 0.5, -2026.0])
+def test_decimal_year_beyond_the_calendar_is_one_error(year):
+    # datetime / pandas.Timestamp hold years 1 to 9999 (Python datetime docs, MINYEAR/MAXYEAR); a
+    # resurvey interval of 1e308 years used to end in OverflowError from pandas (fixed in units.py)
+    from headingref.units import timestamp_from_decimal_year
+
+    with pytest.raises(InputError, match="outside the calendar years"):
+        timestamp_from_decimal_year(year)
+
+
+def test_compass_base_with_an_absurd_resurvey_interval_is_one_error(tmp_path):
+    from headingref.cli import main
+
+    sites = tmp_path / "sites.csv"
+    sites.write_text("name,lat,lon,surveyed_variation,survey_date,tolerance_deg,resurvey_years\n"
+                     "Invented base,60,10,3E,2020-01-01,50,1e308\n", encoding="utf-8")
+    assert main(["base", "--input", str(sites), "--date", DATE, "--output", str(tmp_path / "out.csv")]) == 2
+    assert [p.name for p in tmp_path.iterdir()] == ["sites.csv"]
