@@ -749,3 +749,29 @@ def test_cli_bad_file_one_line_and_no_output(tmp_path, reader, label, data):
     code, _, err = run_cli([str(a) for a in _cli_argv(reader, path, out)])
     assert_cli_failed_cleanly(code, err, out, set(), COMMAND[reader])
     assert [p.name for p in tmp_path.iterdir() if p.name.startswith(".")] == []  # no report staging folder left
+
+
+SECTION_FILES = {  # scenario section -> (TOML lines, data file the section reads)
+    "routes": ('[routes]\n[[routes.plan]]\nname = "Invented"\nfile = "data.csv"\n', "route"),
+    "compass_bases": ('[compass_bases]\nfile = "data.csv"\n', "bases"),
+    "swing": ('[swing]\nfile = "data.csv"\n', "swing"),
+    "runways": ('[runways]\nfile = "data.csv"\nhorizon_years = 1.0\n', "runways"),
+}
+
+
+@pytest.mark.parametrize("section", sorted(SECTION_FILES))
+@pytest.mark.parametrize("damage", ["UTF-16", "missing column", "empty"])
+def test_report_with_a_broken_data_file(tmp_path, section, damage):
+    # A valid scenario whose data file is broken: the report stops with one line naming the job and
+    # the file, and writes nothing (no report folder, no staging folder beside it).
+    toml, reader = SECTION_FILES[section]
+    text = READERS[reader][1]
+    data = {"UTF-16": text.encode("utf-16"), "empty": b"",
+            "missing column": _without_column(text, READERS[reader][2][-1]).encode()}[damage]
+    (tmp_path / "data.csv").write_bytes(data)
+    scenario = tmp_path / "study.toml"
+    scenario.write_text(f'analysis_date = "{TODAY}"\n' + toml, encoding="utf-8")
+    before = {p.name for p in tmp_path.iterdir()}
+    code, _, err = run_cli(["report", str(scenario), "--out", str(tmp_path / "report"), "--no-progress"])
+    line = assert_cli_failed_cleanly(code, err, tmp_path, before, "report")
+    assert "data.csv" in line
