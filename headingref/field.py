@@ -62,29 +62,12 @@ ELEMENTS = (
 VECTOR = ("north_nT", "east_nT", "down_nT", "north_nT_per_year", "east_nT_per_year", "down_nT_per_year")
 """Order of the rows of the synthesis kernels' output."""
 
-COLUMNS = (
-    "lat_deg",
-    "lon_deg",
-    "alt_km",
-    "decimal_year",
-    "declination_deg",
-    "inclination_deg",
-    "horizontal_nT",
-    "north_nT",
-    "east_nT",
-    "down_nT",
-    "total_nT",
-    "declination_deg_per_year",
-    "inclination_deg_per_year",
-    "horizontal_nT_per_year",
-    "north_nT_per_year",
-    "east_nT_per_year",
-    "down_nT_per_year",
-    "total_nT_per_year",
-    "declination_uncertainty_deg",
-    "zone",
-    "declination_flag",
-)
+INPUTS = ("lat_deg", "lon_deg", "alt_km", "decimal_year")
+NUMERIC = INPUTS + ELEMENTS + VECTOR
+"""Rows of the one float table the kernels write into (inputs, derived elements, vector)."""
+
+COLUMNS = NUMERIC + ("zone", "declination_flag")
+"""Columns of :func:`field`, in order."""
 
 UNITS = {
     "declination_deg": "degree (east positive)",
@@ -185,20 +168,28 @@ def _prepare(lat, lon, years, alt_km, model, allow_extrapolation):
     return model, flat
 
 
-def _synthesise(model: Model, lat, lon, alt, years) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+def _synthesise(model: Model, lat, lon, alt, years) -> tuple[np.ndarray, np.ndarray]:
+    """One (len(NUMERIC), n) float table: inputs, derived elements and vector, plus zone codes.
+
+    The kernels write straight into row slices of the table, so :func:`field` can wrap it in a
+    DataFrame without copying."""
     k1, k2, diag = _constants(model.nmax)
-    xyz = np.empty((6, lat.size))
-    if lat.size > 1 and years.min() == years.max():
+    n = lat.size
+    table = np.empty((len(NUMERIC), n))
+    table[0], table[1], table[2], table[3] = lat, lon, alt, years
+    lat, lon, alt, years = table[0], table[1], table[2], table[3]
+    derived = table[4 : 4 + len(ELEMENTS)]
+    xyz = table[4 + len(ELEMENTS) :]
+    if n > 1 and years.min() == years.max():
         g, h, g_rate, h_rate = model.coefficients(float(years[0]))
         synthesis.scattered_uniform(lat, lon, alt, g, h, g_rate, h_rate, k1, k2, diag, model.reference_radius_km, xyz)
     else:
         k, dt = model.locate(years)
         synthesis.scattered(lat, lon, alt, k, dt, model.g, model.h, model.g_rate, model.h_rate, k1, k2, diag,
                             model.reference_radius_km, xyz)
-    out = np.empty((len(ELEMENTS), lat.size))
-    zone = np.empty(lat.size, dtype=np.int8)
-    _derive(xyz, out, zone)
-    return xyz, out, zone
+    zone = np.empty(n, dtype=np.int8)
+    _derive(xyz, derived, zone)
+    return table, zone
 
 
 def _derive(xyz: np.ndarray, out: np.ndarray, zone: np.ndarray) -> None:
@@ -264,14 +255,10 @@ def field_arrays(
     years = decimal_year(year) if not isinstance(year, np.ndarray) or year.dtype.kind not in "fi" else year
     model, (lat_f, lon_f, alt_f, years_f) = _prepare(lat, lon, years, alt_km, model, allow_extrapolation)
     with synthesis.threads_for(lat_f.size):
-        xyz, out, zone = _synthesise(model, lat_f, lon_f, alt_f, years_f)
-    result = {"lat_deg": lat_f, "lon_deg": lon_f, "alt_km": alt_f, "decimal_year": years_f}
-    for i, name in enumerate(ELEMENTS):
-        result[name] = out[i]
-    for i, name in enumerate(VECTOR):
-        result[name] = xyz[i]
+        table, zone = _synthesise(model, lat_f, lon_f, alt_f, years_f)
+    result = {name: table[i] for i, name in enumerate(NUMERIC)}
     result["zone_code"] = zone
-    result["declination_flag"] = _undefined_reasons(lat_f, out[2], out[0])
+    result["declination_flag"] = _undefined_reasons(lat_f, result["horizontal_nT"], result["declination_deg"])
     return result
 
 
@@ -310,11 +297,15 @@ def field(
     >>> bool(0 < row.declination_deg < 20), row.zone
     (True, 'normal')
     """
-    arrays = field_arrays(lat, lon, decimal_year(date), alt_km, model, allow_extrapolation)
-    data = {name: arrays[name] for name in COLUMNS if name not in ("zone", "declination_flag")}
-    data["zone"] = pd.Categorical.from_codes(arrays["zone_code"], dtype=ZONE_DTYPE)
-    data["declination_flag"] = arrays["declination_flag"]
-    return pd.DataFrame(data, columns=list(COLUMNS), copy=False)
+    model, (lat_f, lon_f, alt_f, years_f) = _prepare(lat, lon, decimal_year(date), alt_km, model, allow_extrapolation)
+    with synthesis.threads_for(lat_f.size):
+        table, zone = _synthesise(model, lat_f, lon_f, alt_f, years_f)
+    flags = _undefined_reasons(lat_f, table[NUMERIC.index("horizontal_nT")], table[NUMERIC.index("declination_deg")])
+    # table.T is a Fortran-ordered view whose columns are the table's rows: one float block, no copy
+    frame = pd.DataFrame(table.T, columns=list(NUMERIC), copy=False)
+    frame["zone"] = pd.Categorical.from_codes(zone, dtype=ZONE_DTYPE)
+    frame["declination_flag"] = flags
+    return frame
 
 
 def field_grid(
