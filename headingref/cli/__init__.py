@@ -9,7 +9,9 @@ on stderr and exit status 2.
 from __future__ import annotations
 
 import argparse
+import contextlib
 import importlib
+import os
 import sys
 import warnings
 
@@ -60,6 +62,13 @@ def main(argv: list[str] | None = None) -> int:
     except KeyboardInterrupt:
         print("headingref: interrupted", file=sys.stderr)
         return 130
+    except BrokenPipeError:
+        # The reader of our output went away (``headingref field ... --csv | head``): stop quietly.
+        # Python's documentation (signal module, "Note on SIGPIPE"): point stdout at devnull so the
+        # flush at exit does not raise again, and exit with status 1.
+        with contextlib.suppress(AttributeError, OSError, ValueError):
+            os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        return 1
     return int(result or 0)
 
 
