@@ -499,3 +499,20 @@ def test_base_mark_step_denormal():
     code, _, err = run(["base", "--lat=60", "--lon=10", "--surveyed-variation=3E", "--survey-date=2020-01-01",
                         f"--date={DATE}", "--mark-step=1e-320"])
     error_line(code, err, "base")
+
+
+def test_output_piped_into_a_reader_that_stops(tmp_path):
+    # `headingref field --input big.csv --csv | head -1`: the reader closes the pipe early; the
+    # command must stop quietly (Python docs, signal module, 'Note on SIGPIPE'), not print a
+    # BrokenPipeError traceback.
+    places = tmp_path / "many.csv"
+    lat, lon = np.linspace(-80.0, 80.0, 5000), np.linspace(-179.0, 179.0, 5000)
+    places.write_text("lat,lon\n" + "".join(f"{a:.4f},{b:.4f}\n" for a, b in zip(lat, lon, strict=True)), encoding="utf-8")
+    proc = subprocess.Popen(["headingref", "field", "--input", str(places), "--date", DATE, "--csv"],
+                            stdout=subprocess.PIPE, stderr=subprocess.PIPE)
+    first = proc.stdout.readline()
+    proc.stdout.close()  # like head -1
+    _, err = proc.communicate(timeout=120)
+    assert first.startswith(b"name,lat_deg,lon_deg")
+    assert b"Traceback" not in err and b"BrokenPipeError" not in err, err.decode()[-500:]
+    assert proc.returncode in (0, 1)
