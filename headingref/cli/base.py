@@ -75,7 +75,9 @@ def run(args) -> int:
     from ..compass_base import SITE_CAUTION, base_upkeep, setting_out, setting_out_parameters
     from ..headings import format_variation
     from ..io import write_csv
+    from .common import check_outputs
 
+    check_outputs(files=[args.output, args.setting_out], inputs=[args.input, args.model])
     lines = number_list(args.lines, "--lines") if args.lines else None
     distances = number_list(args.distances, "--distances")
     lines, distances, grid = setting_out_parameters(lines, distances, args.grid)  # check before the work

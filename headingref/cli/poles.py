@@ -56,6 +56,9 @@ def run(args) -> int:
     from ..notices import CAUTION
     from ..units import format_dm
     from ..zones import dip_poles, geomagnetic_poles, pole_tracks
+    from .common import check_outputs
+
+    check_outputs(files=[args.output], figures=[args.plot], inputs=[args.model])
 
     if args.years:
         first, last = _years(args.years)

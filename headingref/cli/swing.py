@@ -57,6 +57,9 @@ def register(subparsers) -> None:
 def run(args) -> int:
     from ..io import write_csv
     from ..swing import analyse_swing, read_swing_csv
+    from .common import check_outputs
+
+    check_outputs(files=[args.output, args.card, args.residuals], figures=[args.plot, args.card_plot], inputs=[args.input])
 
     magnetic, compass, rows = read_swing_csv(args.input)
     card_headings = number_list(args.card_headings, "--card-headings") if args.card_headings else None

@@ -86,7 +86,9 @@ def run(args) -> int:
     from ..notices import CAUTION
     from ..units import parse_height_km
     from ..zones import write_geojson, zone_areas, zone_change, zone_geojson, zones
+    from .common import check_outputs
 
+    check_outputs(files=[args.geojson, args.netcdf], figures=[args.png, args.budget_png], inputs=[args.model])
     area = args.cap or args.region
     if args.budget_png:  # check the budget options before anything is computed or written
         _budget_options_checked(args)
