@@ -129,9 +129,9 @@ def _now_year() -> float:
     return float(decimal_year(pd.Timestamp.now(tz="UTC")))
 
 
-def _positive(value: float, what: str, where: str, accepted: str) -> float:
-    if not math.isfinite(value) or value <= 0:
-        raise InputError(f"{where}: {what} {value!r} must be a positive number ({accepted})")
+def _positive(value: float, what: str, where: str, accepted: str, upper: float) -> float:
+    if not math.isfinite(value) or not 0 < value <= upper:
+        raise InputError(f"{where}: {what} {value!r} must be a positive number up to {upper:g} ({accepted})")
     return float(value)
 
 
@@ -169,8 +169,8 @@ def make_site(
             f"{where}: survey date {survey_date} is in the future (today is "
             f"{timestamp_from_decimal_year(now):%Y-%m-%d}); give the date the base was last surveyed"
         )
-    tol = DEFAULT_TOLERANCE_DEG if tolerance_deg is None else _positive(tolerance_deg, "tolerance", where, "degrees, e.g. 0.5")
-    interval = math.nan if resurvey_years is None else _positive(resurvey_years, "resurvey interval", where, "years, e.g. 5")
+    tol = DEFAULT_TOLERANCE_DEG if tolerance_deg is None else _positive(tolerance_deg, "tolerance", where, "degrees, e.g. 0.5", 30.0)
+    interval = math.nan if resurvey_years is None else _positive(resurvey_years, "resurvey interval", where, "years, e.g. 5", 100.0)
     return Site(str(name), lat_deg, lon_deg, variation, survey_year, tol, interval, alt, row or f"site {name!r}")
 
 
@@ -403,8 +403,8 @@ def base_upkeep(
     sites = list(sites)
     if not sites:
         raise InputError("no compass bases given; give at least one site")
-    if not math.isfinite(mark_step_deg) or not 0 < mark_step_deg <= 5:
-        raise InputError(f"mark step {mark_step_deg!r} deg: give a rounding step between 0 and 5 degrees (0.5 or 1)")
+    if not math.isfinite(mark_step_deg) or not 0.01 <= mark_step_deg <= 5:
+        raise InputError(f"mark step {mark_step_deg!r} deg: give a rounding step from 0.01 to 5 degrees (0.5 or 1)")
     swing_year = float(decimal_year(swing_date))
     loaded = load_model(model)
     for site in sites:

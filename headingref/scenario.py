@@ -201,7 +201,11 @@ def _path(value: Any, label: str, spec: Key, where: str, folder: Path) -> Path:
         raise InputError(f"{where}: {label} = {value!r} must be a file name (relative to the scenario's folder); {spec.doc}")
     path = Path(os.path.expanduser(value.strip()))
     path = path if path.is_absolute() else folder / path
-    if not path.is_file():
+    try:
+        exists = path.is_file()
+    except (OSError, ValueError) as exc:  # name too long, NUL character
+        raise InputError(f"{where}: {label} = {value[:60]!r}: not a usable file name ({exc})") from None
+    if not exists:
         raise InputError(f"{where}: {label} = {value!r}: no such file {str(path)!r}")
     return path.resolve()
 

@@ -495,10 +495,9 @@ def test_swing_and_base_options_fuzzed(coefficients, card, limit, lines, distanc
                f"--lines={lines}", f"--distances={distances}"], "base")
 
 
-@pytest.mark.xfail(strict=True, raises=OverflowError, reason="compass_base: rounding to a denormal step overflows")
 def test_base_mark_step_denormal():
-    # Found by the fuzzing above, left to the compass_base author: --mark-step 1e-320 passes the
-    # step check (0 < step <= 5) and then overflows ('cannot convert float infinity to integer').
+    # Found by the fuzzing above: --mark-step 1e-320 once passed the step check and overflowed
+    # ('cannot convert float infinity to integer'); steps below 0.01 deg are now refused.
     code, _, err = run(["base", "--lat=60", "--lon=10", "--surveyed-variation=3E", "--survey-date=2020-01-01",
                         f"--date={DATE}", "--mark-step=1e-320"])
     error_line(code, err, "base")
