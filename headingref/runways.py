@@ -635,9 +635,12 @@ def check_runways(
     frame, labels = _as_cells(table)
     count = len(frame)
     problems = _Problems(count)
-    airport = frame["airport"].fillna("").astype(str).str.strip().to_numpy(dtype=object)
+    # object dtype first: filling a float column (all-numeric designators read by pandas) with '' warns;
+    # a whole float (9.0) is written as the integer it is ('9'), like an int, not '9.0'
+    airport = frame["airport"].astype(object).fillna("").astype(str).str.strip().to_numpy(dtype=object)
     problems.error(airport == "", "airport is empty")
-    published = frame["runway"].fillna("").astype(str).str.strip().str.upper().str.replace(" ", "").to_numpy(dtype=object)
+    runway = frame["runway"].astype(object).map(lambda v: str(int(v)) if isinstance(v, float) and v.is_integer() else v)
+    published = runway.fillna("").astype(str).str.strip().str.upper().str.replace(" ", "").to_numpy(dtype=object)
     numbers, suffixes, designator_ok = _designators(frame, problems)
 
     lat = _numbers(frame, "lat", "lat", problems, ~_blank(frame["lat"]))
