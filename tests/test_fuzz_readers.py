@@ -772,3 +772,21 @@ def test_report_with_a_broken_data_file(tmp_path, section, damage):
     code, _, err = run_cli(["report", str(scenario), "--out", str(tmp_path / "report"), "--no-progress"])
     line = assert_cli_failed_cleanly(code, err, tmp_path, before, "report")
     assert "data.csv" in line
+
+
+def test_runway_table_from_pandas_with_a_float_designator_column():
+    # pandas reads an all-number runway column with a blank as float (9.0, NaN). That used to end the
+    # whole check with "runway designator '9.0' is not understood" (forming the reciprocal of '9.0')
+    # and a pandas warning about filling a float column with ''; now the blank row is the only error.
+    import pandas as pd
+
+    from headingref.runways import check_runways
+
+    frame = pd.DataFrame({"airport": ["INVENTED", "INVENTED"], "runway": [9.0, np.nan], "lat": [60.0, 60.0],
+                          "lon": [10.0, 10.05], "end_lat": [60.0, 60.0], "end_lon": [10.05, 10.0]})
+    holder = {}
+    kind, message = outcome(lambda: holder.setdefault("r", check_runways(frame, TODAY, horizon_years=0)))
+    assert kind == "ok", message
+    table = holder["r"].table
+    assert list(table.runway) == ["9", ""] and list(table.status) == ["warning", "error"]
+    assert "empty" in table.reason.iloc[1]
