@@ -276,6 +276,8 @@ def load_model(path: str | os.PathLike | None = None) -> Model:
         if _DEFAULT is None:
             _DEFAULT = load_model(default_coefficient_file())
         return _DEFAULT
+    if not isinstance(path, (str, os.PathLike)):
+        raise ModelFileError(f"model {path!r} is not understood; give None (IGRF-14), a Model or the path of a .shc or .COF file")
     p = Path(path)
     try:
         if not p.is_file():
