@@ -790,3 +790,12 @@ def test_runway_table_from_pandas_with_a_float_designator_column():
     table = holder["r"].table
     assert list(table.runway) == ["9", ""] and list(table.status) == ["warning", "error"]
     assert "empty" in table.reason.iloc[1]
+
+
+@pytest.mark.parametrize("model", [5, 2.5, ["IGRF14.shc"], b"IGRF14.shc"])
+def test_model_of_the_wrong_type_is_one_error(model):
+    # used to raise TypeError from pathlib (fixed in model.load_model)
+    from headingref import field
+
+    kind, message = outcome(lambda: field(60.0, 10.0, TODAY, model=model))
+    assert kind == "error" and "is not understood" in message
