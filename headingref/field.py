@@ -207,13 +207,15 @@ FLAG_REASONS = (
 FLAG_DTYPE = pd.CategoricalDtype(list(FLAG_REASONS))
 
 
-def _undefined_reasons(lat: np.ndarray, horizontal: np.ndarray, declination: np.ndarray) -> pd.Categorical:
-    """Empty string where D is defined, else why it is not; also blanks D at geographic poles."""
+def _undefined_reasons(lat: np.ndarray, horizontal: np.ndarray, declination: np.ndarray,
+                       declination_rate: np.ndarray) -> pd.Categorical:
+    """Empty string where D is defined, else why it is not; also blanks D and its rate at geographic poles."""
     codes = np.zeros(lat.shape, dtype=np.int8)
     pole = np.abs(lat) == 90.0
     weak = ~pole & ~(horizontal >= H_UNDEFINED_NT)
     if pole.any() or weak.any():
         declination[pole] = np.nan
+        declination_rate[pole] = np.nan  # as field_grid does: no rate for an undefined angle
         codes[pole] = 1
         codes[weak] = 2
         warnings.warn(
@@ -258,7 +260,8 @@ def field_arrays(
         table, zone = _synthesise(model, lat_f, lon_f, alt_f, years_f)
     result = {name: table[i] for i, name in enumerate(NUMERIC)}
     result["zone_code"] = zone
-    result["declination_flag"] = _undefined_reasons(lat_f, result["horizontal_nT"], result["declination_deg"])
+    result["declination_flag"] = _undefined_reasons(lat_f, result["horizontal_nT"], result["declination_deg"],
+                                                    result["declination_deg_per_year"])
     return result
 
 
@@ -300,7 +303,8 @@ def field(
     model, (lat_f, lon_f, alt_f, years_f) = _prepare(lat, lon, decimal_year(date), alt_km, model, allow_extrapolation)
     with synthesis.threads_for(lat_f.size):
         table, zone = _synthesise(model, lat_f, lon_f, alt_f, years_f)
-    flags = _undefined_reasons(lat_f, table[NUMERIC.index("horizontal_nT")], table[NUMERIC.index("declination_deg")])
+    flags = _undefined_reasons(lat_f, table[NUMERIC.index("horizontal_nT")], table[NUMERIC.index("declination_deg")],
+                               table[NUMERIC.index("declination_deg_per_year")])
     # table.T is a Fortran-ordered view whose columns are the table's rows: one float block, no copy
     frame = pd.DataFrame(table.T, columns=list(NUMERIC), copy=False)
     frame["zone"] = pd.Categorical.from_codes(zone, dtype=ZONE_DTYPE)
