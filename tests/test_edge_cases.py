@@ -49,6 +49,8 @@ def test_pole_field_is_the_limit_and_independent_of_longitude(lat):
     with pytest.warns(UndefinedDeclinationWarning):
         f = headingref.field(lat, [0.0, 90.0, -170.0, 180.0], DATE)
     assert f.declination_deg.isna().all()
+    # its rate too, as field_grid already had it (a finite rate of an undefined angle used to be printed)
+    assert f.declination_deg_per_year.isna().all()
     assert (f.declination_flag == "geographic pole: declination undefined").all()
     for name in ("horizontal_nT", "down_nT", "total_nT", "inclination_deg"):
         assert np.ptp(f[name].to_numpy()) < 1e-6, name
