@@ -39,6 +39,23 @@ def register(subparsers) -> None:
     parser.set_defaults(func=run)
 
 
+def _check_row_dates(table, years, model_path, extrapolate: bool) -> None:
+    """Name the first row whose date lies outside the model's validity (the model says only the date)."""
+    import numpy as np
+
+    from ..errors import DateRangeError
+    from ..model import load_model
+
+    model = load_model(model_path)
+    outside = (years < model.valid_from) | (years > model.valid_to)
+    if outside.any() and not extrapolate:
+        line = table.index[int(np.argmax(outside))]
+        raise DateRangeError(
+            f"{table.attrs['source']} line {line}: date {table['date'][line]!r} is outside {model.name}'s validity "
+            f"{model.valid_from:g} to {model.valid_to:g}; give a date inside it, or opt in with --extrapolate"
+        )
+
+
 def _inputs(args):
     from .. import io
     from ..errors import InputError
@@ -59,6 +76,7 @@ def _inputs(args):
                 raise InputError(f"{table.attrs['source']} line {line}: {exc}") from None
         if "date" in table and (table["date"] != "").all():
             years = io.date_column(table, "date")
+            _check_row_dates(table, years, getattr(args, "model", None), getattr(args, "extrapolate", False))
         else:
             if "date" in table and (table["date"] != "").any():
                 raise InputError(f"{table.attrs['source']}: some rows have a date and some do not; fill every date or none")
@@ -77,6 +95,8 @@ def _inputs(args):
 
 
 def run(args) -> int:
+    import numpy as np
+
     from .. import io
     from ..field import field
     from ..notices import CAUTION
@@ -97,12 +117,14 @@ def run(args) -> int:
         r = table.iloc[0]
         when = timestamp_from_decimal_year(r.decimal_year).strftime("%Y-%m-%d")
         rate_min = r.declination_deg_per_year * 60
+        declination = f"{r.declination_deg:9.3f}°" if np.isfinite(r.declination_deg) else f"{'':>10}"
+        change = f"{abs(rate_min):9.1f}′/yr {'E' if rate_min >= 0 else 'W'}" if np.isfinite(rate_min) else f"{'undefined':>9}"
         lines = [
             f"Field at {format_dm(r.lat_deg, 'N', 'S', 1)} {format_dm(r.lon_deg, 'E', 'W', 1)}, "
             f"{r.alt_km:g} km above WGS84, {when} ({r.decimal_year:.3f}), model {model_name}",
-            f"  declination (variation)  {r.declination_deg:9.3f}°   {format_dm(r.declination_deg)}"
+            f"  declination (variation)  {declination}   {format_dm(r.declination_deg)}"
             + (f"   [{r.declination_flag}]" if r.declination_flag else ""),
-            f"  annual change            {abs(rate_min):9.1f}′/yr {'E' if rate_min >= 0 else 'W'}",
+            f"  annual change            {change}",
             f"  uncertainty (WMM model)  {r.declination_uncertainty_deg:9.2f}°   (1 sigma, excludes crustal anomalies)",
             f"  inclination (dip)        {r.inclination_deg:9.3f}°   ({r.inclination_deg_per_year * 60:+.1f}′/yr)",
             f"  horizontal H             {r.horizontal_nT:9.1f} nT ({r.horizontal_nT_per_year:+.1f} nT/yr)   zone: {r.zone}",
