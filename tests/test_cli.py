@@ -527,3 +527,20 @@ def test_poles_plot_prints_no_foreign_warning(tmp_path):
     code, _, err = run(["poles", "--date", DATE, "--plot", tmp_path / "poles.png"])
     assert code == 0
     assert "UserWarning" not in err, err
+
+
+def test_field_input_date_outside_validity_names_the_line(tmp_path):
+    places = tmp_path / "places.csv"
+    places.write_text("name,lat,lon,date\nInvented mast,60,10,2026-12-02\nInvented hut,61,10,2031-06-01\n", encoding="utf-8")
+    code, _, err = run(["field", "--input", places, "--output", tmp_path / "out.csv"])
+    # IGRF-14 is valid 1900.0 to 2030.0 (IAGA V-MOD release); the model alone named only the date
+    assert "places.csv line 3: date '2031-06-01' is outside IGRF-14's validity" in error_line(code, err, "field")
+    assert [p.name for p in tmp_path.iterdir()] == ["places.csv"]
+    code, _, err = run(["field", "--input", places, "--extrapolate", "--output", tmp_path / "out.csv"])
+    assert code == 0 and "headingref: warning:" in err
+
+
+def test_field_at_the_pole_prints_undefined_not_nan():
+    code, out, _ = run(["field", "--lat", "90", "--lon", "0", "--date", DATE])
+    assert code == 0
+    assert "nan" not in out.lower() and out.count("undefined") >= 2
