@@ -146,10 +146,10 @@ def tilt_heading_error_deg(inclination_deg: Any, heading_deg: Any, tilt_pitch_de
     components; the error is apparent minus true, wrapped to [-180, 180). East (clockwise)
     positive. Arguments broadcast.
     """
-    inc = np.radians(np.asarray(inclination_deg, dtype=np.float64))
-    psi = np.radians(np.asarray(heading_deg, dtype=np.float64))
-    th = np.radians(np.asarray(tilt_pitch_deg, dtype=np.float64))
-    ph = np.radians(np.asarray(tilt_roll_deg, dtype=np.float64))
+    inc = np.radians(_finite("inclination", inclination_deg, -90.0, 90.0, "degrees"))
+    psi = np.radians(_finite("heading", heading_deg, None, None, "degrees"))
+    th = np.radians(_finite("pitch tilt", tilt_pitch_deg, -90.0, 90.0, "degrees"))
+    ph = np.radians(_finite("roll tilt", tilt_roll_deg, -90.0, 90.0, "degrees"))
     b_x, b_y = _sensor_components(np.cos(inc), np.sin(inc), psi, th, ph)
     return _wrap180(np.degrees(np.arctan2(-b_y, b_x) - psi))
 
@@ -263,8 +263,8 @@ def heading_from_arm_outputs(outputs_nT: Any, arm_angles_deg: tuple[float, ...] 
 # --------------------------------------------------------------------------- other terms
 def residual_field_error_deg(horizontal_nT: Any, residual_field_nT: Any) -> np.ndarray:
     """Worst heading error from an uncompensated aircraft field: ``asin(dB/H)`` degrees; 180 if dB >= H."""
-    h = np.asarray(horizontal_nT, dtype=np.float64)
-    db = np.abs(np.asarray(residual_field_nT, dtype=np.float64))
+    h = _finite("horizontal field", horizontal_nT, 0.0, None, "nT")
+    db = np.abs(_finite("residual aircraft field", residual_field_nT, None, None, "nT"))
     with np.errstate(divide="ignore", invalid="ignore"):
         ratio = np.where(h > 0, db / np.where(h > 0, h, 1.0), np.inf)
     return np.where(ratio >= 1.0, 180.0, np.degrees(np.arcsin(np.minimum(ratio, 1.0))))
@@ -273,7 +273,7 @@ def residual_field_error_deg(horizontal_nT: Any, residual_field_nT: Any) -> np.n
 def slaving_time_min(error_deg: Any, rate_deg_per_min: float = SLAVING_RATE_DEG_PER_MIN) -> np.ndarray:
     """Minutes the slaving loop needs to work off a heading error at ``rate_deg_per_min``."""
     rate = float(_finite("slaving rate", rate_deg_per_min, 1e-6, None, "deg/min"))
-    return np.abs(np.asarray(error_deg, dtype=np.float64)) / rate
+    return np.abs(_finite("heading error", error_deg, None, None, "degrees")) / rate
 
 
 def slaving_drift_deg(tilt_error_deg: Any, duration_min: Any, rate_deg_per_min: float = SLAVING_RATE_DEG_PER_MIN) -> np.ndarray:

@@ -479,9 +479,11 @@ def analyse_swing(
     if not math.isfinite(limit_deg) or limit_deg <= 0:
         raise InputError(f"limit {limit_deg!r} deg: give a positive number of degrees (10 for a direct-reading compass)")
     for values, what in ((h, "magnetic heading"), (c, "compass reading")):
-        bad = np.flatnonzero(~np.isfinite(values))
+        # the same -360..720 window the CSV reader applies: larger values are typing errors, and
+        # reducing 1e308 modulo 360 would only hide them
+        bad = np.flatnonzero(~(np.isfinite(values) & (values >= -360.0) & (values <= 720.0)))
         if len(bad):
-            raise InputError(f"{labels[bad[0]]}: {what} {values[bad[0]]!r} is not a finite number of degrees")
+            raise InputError(f"{labels[bad[0]]}: {what} {values[bad[0]]!r} is not a number of degrees from -360 to 720")
     h = _wrap360(h)
     c = _wrap360(c)
     dev = deviation_from_readings(h, c)

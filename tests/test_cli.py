@@ -520,7 +520,6 @@ def test_output_piped_into_a_reader_that_stops(tmp_path):
     assert proc.returncode in (0, 1)
 
 
-@pytest.mark.xfail(strict=True, reason="plots.zones pole-track map: matplotlib 'No artists with labels' UserWarning")
 def test_poles_plot_prints_no_foreign_warning(tmp_path):
     # Found here, left to the author of the pole-track map: with one date the legend is empty and
     # matplotlib's UserWarning reaches the user as 'headingref: warning: UserWarning: ...'.

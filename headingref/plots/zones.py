@@ -57,7 +57,8 @@ def _draw_tracks(ax, to_map, tracks, hemisphere: str | None) -> None:
         plot_lonlat(ax, to_map, group.lon, group.lat, color=style["color"], linewidth=1.2, zorder=4,
                     label=f"{kind} pole {group.date.iloc[0][:4]}–{group.date.iloc[-1][:4]}")
         scatter_lonlat(ax, to_map, group.lon.iloc[[-1]], group.lat.iloc[[-1]], color=style["color"],
-                       marker=style["marker"], s=28, zorder=5)
+                       marker=style["marker"], s=28, zorder=5,
+                       label=f"{kind} pole {group.date.iloc[0][:10]}" if len(group) == 1 else None)
         for idx, offset, align in ((0, (-4, -10), "right"), (len(group) - 1, (4, 4), "left")):
             x, y = to_map.transform(group.lon.iloc[idx], group.lat.iloc[idx])
             if np.isfinite(x) and not (idx == 0 and len(group) == 1):
@@ -147,7 +148,8 @@ def plot_pole_tracks(tracks, *, title: str | None = None, figsize: tuple[float, 
         edge = float(np.floor(min(np.abs(part.lat).min() - 5.0, 60.0) / 5.0) * 5.0) if len(part) else 60.0
         ax, to_map = map_axes(hemisphere, edge, ax=ax)
         _draw_tracks(ax, to_map, part, hemisphere)
-        ax.legend(loc="lower left", fontsize=7, framealpha=0.85)
+        if ax.get_legend_handles_labels()[0]:  # nothing labelled (e.g. one date, or no pole in this cap)
+            ax.legend(loc="lower left", fontsize=7, framealpha=0.85)
         ax.set_title(f"{hemisphere.capitalize()} poles", fontsize=9)
     fig.suptitle(title or "Dip poles (H = 0) and geomagnetic (centred-dipole) poles", fontsize=10)
     return fig
