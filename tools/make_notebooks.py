@@ -498,6 +498,7 @@ choice) no verdict is given: authorities differ on ties and the variation itself
 {CAUTION_MD}
 """),
     code(f"""
+%matplotlib inline
 import ipywidgets as widgets
 import numpy as np
 import pandas as pd
