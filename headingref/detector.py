@@ -383,6 +383,12 @@ def heading_error(
     from .field import field_arrays
 
     f = field_arrays(lat, lon, date, alt_km=alt_km, model=model, allow_extrapolation=allow_extrapolation)
+    n = len(f["horizontal_nT"])
+    settings = {"residual_field_nT": residual_field_nT, "bank_deg": bank_deg, "accel_mps2": accel_mps2,
+                "pitch_deg": pitch_deg, "heading_deg": heading_deg, "turn_duration_min": turn_duration_min}
+    for name, value in settings.items():
+        if value is not None and np.size(value) not in (1, n):
+            raise InputError(f"{name} has {np.size(value)} values for {n} place(s); give one value, or one per place")
     terms = _budget(
         f["horizontal_nT"],
         f["inclination_deg"],
@@ -398,8 +404,7 @@ def heading_error(
         limit_deg=limit_deg,
     )
     columns = {name: f[name] for name in ("lat_deg", "lon_deg", "alt_km", "decimal_year", "horizontal_nT", "inclination_deg")}
-    n = len(f["horizontal_nT"])
-    columns.update({name: np.broadcast_to(value, (n,)) for name, value in terms.items()})
+    columns.update({name: np.broadcast_to(np.ravel(value) if np.ndim(value) else value, (n,)) for name, value in terms.items()})
     return pd.DataFrame(columns)
 
 

@@ -516,7 +516,8 @@ def dip_poles(date: Any, model=None, alt_km: float = 0.0, allow_extrapolation: b
 
 
 def pole_tracks(start: Any, end: Any, step_years: float = 1.0, model=None, allow_extrapolation: bool = False) -> pd.DataFrame:
-    """Dip and geomagnetic poles from ``start`` to ``end`` (inclusive) every ``step_years``.
+    """Dip and geomagnetic poles from ``start`` every ``step_years``, and at ``end`` (always included,
+    also when the step does not divide the span).
 
     Columns ``date, pole, kind, lat, lon, decimal_year`` (plus ``horizontal_nT`` for dip poles).
     """
@@ -533,6 +534,8 @@ def pole_tracks(start: Any, end: Any, step_years: float = 1.0, model=None, allow
     if count > 2000:
         raise InputError(f"{count} dates from {start!r} to {end!r}; use a larger step (at most 2000 dates)")
     years = y0 + step * np.arange(count)
+    if y1 - years[-1] > 1e-6:
+        years = np.append(years, y1)
     dip = dip_poles(years, model=model, allow_extrapolation=allow_extrapolation)
     geo = geomagnetic_poles(years, model=model, allow_extrapolation=allow_extrapolation)[["date", "pole", "kind", "lat", "lon", "decimal_year"]]
     table = pd.concat([dip, geo], ignore_index=True)

@@ -234,3 +234,11 @@ def test_bad_inputs():
         slaving_time_min(6.0, rate_deg_per_min=0.0)
     with pytest.raises(InputError):
         heading_error_grid("west", "2026-01-01")
+
+
+def test_manoeuvre_settings_must_match_the_places():
+    # One value, or one per place (common practice for vectorised APIs); anything else is one clear error.
+    with pytest.raises(InputError, match="bank_deg has 3 values for 2 place"):
+        headingref.heading_error([70.0, 71.0], [20.0, 21.0], "2026-12-02", bank_deg=[0.0, 10.0, 20.0])
+    table = headingref.heading_error([70.0, 71.0], [20.0, 21.0], "2026-12-02", bank_deg=[0.0, 10.0])
+    assert len(table) == 2

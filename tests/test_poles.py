@@ -152,3 +152,12 @@ def test_cli_poles_bad_years(capsys):
     assert main(["poles", "--years", "1990-2000"]) == 2
     err = capsys.readouterr().err
     assert "--years" in err and len(err.strip().splitlines()) == 1
+
+
+def test_pole_track_includes_its_end_when_the_step_does_not_divide_the_span():
+    # The docstring's promise: the end date is always on the track.
+    from headingref.units import decimal_year
+    from headingref.zones import pole_tracks
+
+    track = pole_tracks("2016-12-02", "2026-12-02", 2)
+    assert track.decimal_year.max() == pytest.approx(decimal_year("2026-12-02"), abs=1e-9)
