@@ -137,5 +137,9 @@ def runway_bearing_figure(result: RunwayCheck, runways: Sequence[str] | None = N
 
 
 def _wrapped_degrees_text(value: float, _position=None) -> str:
-    """Tick label: azimuth modulo 360 as three digits (the plotted series is unwrapped)."""
-    return f"{value % 360.0:03.0f}"
+    """Tick label: azimuth modulo 360 as three digits, with a decimal where the tick needs one
+    (half-degree ticks would otherwise repeat: 194, 194, 195) (the plotted series is unwrapped)."""
+    wrapped = value % 360.0
+    if abs(wrapped - round(wrapped)) < 1e-6:
+        return f"{round(wrapped) % 360:03d}"
+    return f"{wrapped:05.1f}"
