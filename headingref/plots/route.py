@@ -23,12 +23,11 @@ the matplotlib Figure (write it with ``save_figure``).
 
 from __future__ import annotations
 
-import os
 from typing import Any
 
 import numpy as np
 
-from ..io import atomic_path
+from . import save_figure  # noqa: F401  (re-exported: the plotting modules all offer it)
 
 __all__ = ["plot_route_map", "plot_route_profile", "save_figure", "choose_map"]
 
@@ -226,11 +225,3 @@ def plot_route_profile(result: Any, fig=None):
     fig.tight_layout()
     return fig
 
-
-def save_figure(fig, target: str | os.PathLike, dpi: int = 150) -> None:
-    """Save a figure atomically (format from the file suffix) and close it."""
-    import matplotlib.pyplot as plt
-
-    with atomic_path(target) as tmp:
-        fig.savefig(tmp, dpi=dpi, bbox_inches="tight")
-    plt.close(fig)

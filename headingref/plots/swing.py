@@ -18,12 +18,10 @@
 
 from __future__ import annotations
 
-import os
-
 import numpy as np
 
-from ..io import atomic_path
 from ..swing import SwingAnalysis
+from . import save_figure  # noqa: F401  (re-exported: the plotting modules all offer it)
 
 _EAST_COLOUR = "#1b6f8a"
 _FIT_COLOUR = "#b5462f"
@@ -103,8 +101,3 @@ def card_figure(analysis_or_card, title: str = "Compass correction card", footer
         fig.text(0.5, 0.02, footer, ha="center", fontsize=8)
     return fig
 
-
-def save_figure(fig, path: str | os.PathLike, dpi: int = 150) -> None:
-    """Save a figure atomically; the format follows the suffix (.png, .pdf, .svg)."""
-    with atomic_path(path) as tmp:
-        fig.savefig(tmp, dpi=dpi)
