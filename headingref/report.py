@@ -142,6 +142,10 @@ def _format_cell(column: str, value: Any) -> str:
         for suffix, decimals in _DECIMALS:
             if column.endswith(suffix):
                 return f"{value:,.{decimals}f}"
+        if "km2" in column or abs(value) >= 1e4:  # areas and other large numbers: whole, with separators
+            return f"{value:,.0f}"
+        if "percent" in column:
+            return f"{value:.1f}"
         return f"{value:.4g}"
     return str(value)
 
