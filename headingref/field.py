@@ -194,6 +194,7 @@ def _synthesise(model: Model, lat, lon, alt, years) -> tuple[np.ndarray, np.ndar
 
 def _derive(xyz: np.ndarray, out: np.ndarray, zone: np.ndarray) -> None:
     synthesis.derive(xyz, H_UNDEFINED_NT, UNCERTAINTY_CONST_DEG, UNCERTAINTY_SCALE_NT, BLACKOUT_NT, CAUTION_NT, out, zone)
+    synthesis.angles(xyz, out, H_UNDEFINED_NT)
     # The WMM error model sqrt(0.26^2 + (5417/H)^2) tends to infinity as H -> 0: where the kernel
     # leaves it NaN (H below H_UNDEFINED_NT) the uncertainty is infinite, not unknown.
     out[8][~(out[2] >= H_UNDEFINED_NT)] = np.inf

@@ -281,3 +281,21 @@ def test_other_shc_file_igrf13():
     a = field_arrays(70.0, 25.0, 2015.0, model=igrf13)
     b = field_arrays(70.0, 25.0, 2015.0)
     assert a["declination_deg"][0] == pytest.approx(b["declination_deg"][0], abs=1e-9)
+
+
+def test_sincos_deg_matches_numpy():
+    # numpy's sin/cos as the reference for the kernels' one-call sine-and-cosine (quadrant reduction).
+    import numba
+
+    from headingref.synthesis import sincos_deg
+
+    @numba.njit
+    def both(x, s, c):
+        for i in range(x.size):
+            s[i], c[i] = sincos_deg(x[i])
+
+    x = np.concatenate([np.random.default_rng(3).uniform(-720, 720, 20000), np.arange(-360.0, 360.5, 0.5)])
+    s, c = np.empty_like(x), np.empty_like(x)
+    both(x, s, c)
+    np.testing.assert_allclose(s, np.sin(np.radians(x)), atol=2e-15, rtol=0)
+    np.testing.assert_allclose(c, np.cos(np.radians(x)), atol=2e-15, rtol=0)
