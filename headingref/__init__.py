@@ -6,7 +6,7 @@ heading-reference error budget, compass base upkeep and swing analysis, runway d
 
 >>> import headingref
 >>> row = headingref.field(61.2, -149.9, "2026-12-02").iloc[0]
->>> round(row.declination_deg, 1)  # east positive
+>>> round(float(row.declination_deg), 1)  # east positive
 13.9
 """
 

@@ -19,7 +19,7 @@ else ``normal``. Declination is undefined at the geographic poles and where H = 
 where H is below 0.01 nT the declination uncertainty is infinite (the error model's limit).
 
 >>> import headingref
->>> df = headingref.field([60.0, 78.2], [25.0, 15.6], "2026-12-02")
+>>> df = headingref.field([60.0, 82.5], [25.0, -62.3], "2026-12-02")
 >>> list(df.zone)
 ['normal', 'caution']
 """
