@@ -341,13 +341,8 @@ def _job_routes(run: _Run, sec: Section) -> None:
         run.route_results.append((name, result))
         legs, samples = result.legs.copy(), result.samples.copy()
         lat, lon, alt = (samples[c].to_numpy() for c in ("lat_deg", "lon_deg", "alt_km"))
-        common = dict(
-            residual_field_nT=budget["residual_field_nT"], gimbal_limit_deg=budget["joint_limit_deg"], slaving_rate_deg_per_min=budget["slaving_rate_deg_per_min"],
-            turn_duration_min=budget["turn_duration_s"] / 60.0, limit_deg=budget["limit_deg"], **run.common,
-        )
-        steady = heading_error(lat, lon, run.date, alt_km=alt, bank_deg=0.0, accel_mps2=0.0, **common)
-        turning = heading_error(lat, lon, run.date, alt_km=alt, bank_deg=budget["bank_angle_deg"],
-                                accel_mps2=budget["acceleration_mps2"], **common)
+        steady = heading_error(lat, lon, run.date, alt_km=alt, **run.sc.heading_error_options(manoeuvre=False), **run.common)
+        turning = heading_error(lat, lon, run.date, alt_km=alt, **run.sc.heading_error_options(), **run.common)
         samples["budget_steady_deg"] = steady["budget_rss_deg"].to_numpy()
         samples["budget_turn_deg"] = turning["budget_rss_deg"].to_numpy()
         samples["tilt_error_turn_deg"] = turning["tilt_error_deg"].to_numpy()
@@ -573,11 +568,9 @@ def _job_budget_map(run: _Run, sec: Section) -> None:
     z = run.sc.zones or {"cap": "north", "edge_lat_deg": 55.0, "step_deg": 0.5}
     area = _zone_area(run) if run.sc.zones else (55.0, 90.0, -180.0, 180.0)
     alt = run.sc.routes["alt"] if run.sc.routes else 0.0
-    options = dict(resolution_deg=z["step_deg"], alt_km=alt, residual_field_nT=b["residual_field_nT"], gimbal_limit_deg=b["joint_limit_deg"],
-                   slaving_rate_deg_per_min=b["slaving_rate_deg_per_min"], turn_duration_min=b["turn_duration_s"] / 60.0,
-                   limit_deg=b["limit_deg"], model=run.model)
-    grids = {"steady": heading_error_grid(area, run.date, bank_deg=0.0, accel_mps2=0.0, **options),
-             "turn": heading_error_grid(area, run.date, bank_deg=b["bank_angle_deg"], accel_mps2=b["acceleration_mps2"], **options)}
+    options = dict(resolution_deg=z["step_deg"], alt_km=alt, model=run.model)
+    grids = {"steady": heading_error_grid(area, run.date, **run.sc.heading_error_options(manoeuvre=False), **options),
+             "turn": heading_error_grid(area, run.date, **run.sc.heading_error_options(), **options)}
     rows = [{"case": "steady level flight" if k == "steady" else f"{_manoeuvre(b)}, {b['turn_duration_s']:g} s",
              "limit_deg": b["limit_deg"], "area_exceeding_limit_km2": g.attrs.get("area_exceeding_limit_km2", float("nan")),
              "combination": g.attrs.get("combination", "")} for k, g in grids.items()]

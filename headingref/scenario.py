@@ -160,6 +160,24 @@ class Scenario:
     def model_name(self) -> str:
         return "IGRF-14" if self.model is None else self.model.name
 
+    def heading_error_options(self, manoeuvre: bool = True) -> dict:
+        """The ``[error_budget]`` section as keyword arguments of :func:`headingref.heading_error`
+        and :func:`headingref.detector.heading_error_grid` (defaults when the section is absent).
+
+        ``manoeuvre=False`` gives steady level flight (no bank, no acceleration) with the same
+        detector settings.
+        """
+        budget = self.error_budget or {key: spec.default for key, spec in SCHEMA["error_budget"].items()}
+        return {
+            "residual_field_nT": budget["residual_field_nT"],
+            "gimbal_limit_deg": budget["joint_limit_deg"],
+            "slaving_rate_deg_per_min": budget["slaving_rate_deg_per_min"],
+            "turn_duration_min": budget["turn_duration_s"] / 60.0,
+            "limit_deg": budget["limit_deg"],
+            "bank_deg": budget["bank_angle_deg"] if manoeuvre else 0.0,
+            "accel_mps2": budget["acceleration_mps2"] if manoeuvre else 0.0,
+        }
+
 
 def _label(section: str, key: str) -> str:
     return f"[{section}] {key}" if section else key

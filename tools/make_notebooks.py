@@ -210,10 +210,8 @@ THRESHOLDS = (ZONE_SETTINGS["blackout_nT"], ZONE_SETTINGS["caution_nT"])
 STEP = ZONE_SETTINGS["step_deg"]  # 0.5 degree grid
 BUDGET = scenario.error_budget
 ALT_KM = scenario.routes["alt"]  # cruise level of the demo routes (FL350), km
-BUDGET_OPTIONS = dict(residual_field_nT=BUDGET["residual_field_nT"], accel_mps2=BUDGET["acceleration_mps2"],
-                      gimbal_limit_deg=BUDGET["joint_limit_deg"],
-                      slaving_rate_deg_per_min=BUDGET["slaving_rate_deg_per_min"],
-                      turn_duration_min=BUDGET["turn_duration_s"] / 60.0, limit_deg=BUDGET["limit_deg"])
+BUDGET_OPTIONS = scenario.heading_error_options()  # the section as heading_error's keyword arguments
+BUDGET_OPTIONS.pop("bank_deg")  # the bank angle is the slider below
 BUDGET
 """),
     md("""
