@@ -228,6 +228,19 @@ def _undefined_reasons(lat: np.ndarray, horizontal: np.ndarray, declination: np.
     return pd.Categorical.from_codes(codes, dtype=FLAG_DTYPE)
 
 
+def _evaluate(lat, lon, date, alt_km, model, allow_extrapolation) -> tuple[np.ndarray, np.ndarray, pd.Categorical]:
+    """Validate the inputs, synthesise, and flag undefined declinations: the pipeline shared by
+    :func:`field` and :func:`field_arrays` (float table in :data:`NUMERIC` row order, zone codes, flags)."""
+    years = date if isinstance(date, np.ndarray) and date.dtype.kind in "fi" else decimal_year(date)
+    model, (lat_f, lon_f, alt_f, years_f) = _prepare(lat, lon, years, alt_km, model, allow_extrapolation)
+    with synthesis.threads_for(lat_f.size):
+        table, zone = _synthesise(model, lat_f, lon_f, alt_f, years_f)
+    row = NUMERIC.index
+    flags = _undefined_reasons(lat_f, table[row("horizontal_nT")], table[row("declination_deg")],
+                               table[row("declination_deg_per_year")])
+    return table, zone, flags
+
+
 def field_arrays(
     lat: Any,
     lon: Any,
@@ -255,14 +268,10 @@ def field_arrays(
         0 normal, 1 caution, 2 blackout) and ``declination_flag`` (a pandas Categorical of reasons, ''
         where the declination is defined).
     """
-    years = decimal_year(year) if not isinstance(year, np.ndarray) or year.dtype.kind not in "fi" else year
-    model, (lat_f, lon_f, alt_f, years_f) = _prepare(lat, lon, years, alt_km, model, allow_extrapolation)
-    with synthesis.threads_for(lat_f.size):
-        table, zone = _synthesise(model, lat_f, lon_f, alt_f, years_f)
+    table, zone, flags = _evaluate(lat, lon, year, alt_km, model, allow_extrapolation)
     result = {name: table[i] for i, name in enumerate(NUMERIC)}
     result["zone_code"] = zone
-    result["declination_flag"] = _undefined_reasons(lat_f, result["horizontal_nT"], result["declination_deg"],
-                                                    result["declination_deg_per_year"])
+    result["declination_flag"] = flags
     return result
 
 
@@ -301,11 +310,7 @@ def field(
     >>> bool(0 < row.declination_deg < 20), row.zone
     (True, 'normal')
     """
-    model, (lat_f, lon_f, alt_f, years_f) = _prepare(lat, lon, decimal_year(date), alt_km, model, allow_extrapolation)
-    with synthesis.threads_for(lat_f.size):
-        table, zone = _synthesise(model, lat_f, lon_f, alt_f, years_f)
-    flags = _undefined_reasons(lat_f, table[NUMERIC.index("horizontal_nT")], table[NUMERIC.index("declination_deg")],
-                               table[NUMERIC.index("declination_deg_per_year")])
+    table, zone, flags = _evaluate(lat, lon, date, alt_km, model, allow_extrapolation)
     # table.T is a Fortran-ordered view whose columns are the table's rows: one float block, no copy
     frame = pd.DataFrame(table.T, columns=list(NUMERIC), copy=False)
     frame["zone"] = pd.Categorical.from_codes(zone, dtype=ZONE_DTYPE)
