@@ -16,7 +16,8 @@ Error terms (all in degrees of heading, magnetic heading measured clockwise from
   resulting vector); 180 when ``dB >= H`` (no heading left).
 - **Tilt** (:func:`detector_tilt`): in a coordinated turn at bank ``phi`` the detector hangs along
   the aircraft's normal axis, tilted by ``phi`` in roll; a longitudinal acceleration ``a`` tilts it
-  in pitch by ``atan(a/g)`` (nose up when speeding up); in steady flight it hangs level unless the
+  in pitch by ``atan(a/g)``, nose DOWN when speeding up (it hangs along the apparent gravity
+  ``g * down - a * forward``, so its lower end swings aft); in steady flight it hangs level unless the
   aircraft's pitch attitude exceeds the joint's limit, beyond which it rests on the stop and is
   tilted by the excess. The apparent heading comes from rotating the field vector
   ``(H, 0, Z)`` (magnetic north, east, down) into the detector frame (pitch ``theta`` then roll
@@ -119,19 +120,26 @@ def detector_tilt(
     ----------
     bank_deg : bank angle of a coordinated turn, degrees (right wing down positive). The detector
         hangs along the aircraft's normal axis, so its roll tilt equals the bank.
-    accel_mps2 : longitudinal acceleration, m/s^2 (speeding up positive). The apparent vertical
-        leans back by ``atan(a/g)``: the detector's pitch tilt, nose up positive.
+    accel_mps2 : longitudinal acceleration, m/s^2 (speeding up positive). A pendulous detector
+        hangs along the apparent gravity ``g * down - a * forward``: its lower end swings aft, so
+        speeding up tilts it nose DOWN by ``atan(a/g)`` (pitch tilt ``-atan(a/g)``, nose up
+        positive). Hence the acceleration error of pendulous and direct-reading compasses: on an
+        east or west heading in the northern hemisphere, accelerating shows a turn toward north
+        (common practice; FAA Pilot's Handbook of Aeronautical Knowledge, magnetic compass
+        acceleration error, "ANDS": accelerate north, decelerate south).
     pitch_deg : the aircraft's pitch attitude, degrees (nose up positive). The joint lets the
         detector hang where it wants within ``gimbal_limit_deg`` of the airframe; beyond that it
-        rests on the stop: ``tilt = pitch + clip(atan(a/g) - pitch, -limit, limit)``. In steady
-        flight (``a = 0``) this is the excess of the attitude over the limit.
+        rests on the stop: the angle the joint must take is the physical tilt between airframe
+        and apparent vertical, ``-(pitch + atan(a/g))``, clipped to the limit:
+        ``tilt = pitch + clip(-atan(a/g) - pitch, -limit, limit)``. In steady flight (``a = 0``)
+        this is the excess of the attitude over the limit.
     gimbal_limit_deg : the joint's travel each way, degrees (default 25, common practice).
     """
     bank = _finite("bank_deg", bank_deg, -89.0, 89.0, "degrees")
     accel = _finite("accel_mps2", accel_mps2, -50.0, 50.0, "m/s^2")
     pitch = _finite("pitch_deg", pitch_deg, -89.0, 89.0, "degrees")
     limit = float(_finite("gimbal_limit_deg", gimbal_limit_deg, 0.0, 89.0, "degrees"))
-    wanted = np.degrees(np.arctan2(accel, STANDARD_GRAVITY_MPS2))
+    wanted = -np.degrees(np.arctan2(accel, STANDARD_GRAVITY_MPS2))  # apparent vertical: nose down when speeding up
     tilt_pitch = pitch + np.clip(wanted - pitch, -limit, limit)
     return np.asarray(tilt_pitch, dtype=np.float64), np.asarray(bank, dtype=np.float64)
 

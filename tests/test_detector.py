@@ -139,16 +139,69 @@ def test_three_arm_detector_recovers_every_heading(heading, horizontal_nT):
 
 
 def test_detector_tilt_model():
-    # coordinated turn: roll tilt = bank; acceleration g*tan(5 deg): pitch tilt 5 deg
+    # coordinated turn: roll tilt = bank; acceleration g*tan(5 deg): the apparent gravity
+    # g*down - a*forward leans 5 deg aft, so the pendulous detector pitches 5 deg nose DOWN
     pitch, roll = detector_tilt(bank_deg=20.0)
     assert (float(pitch), float(roll)) == (0.0, 20.0)
     pitch, _ = detector_tilt(accel_mps2=9.80665 * math.tan(math.radians(5.0)))
-    assert float(pitch) == pytest.approx(5.0, abs=1e-9)
+    assert float(pitch) == pytest.approx(-5.0, abs=1e-9)
+    # the joint clips the physical tilt pitch + atan(a/g): nose 20 deg up while accelerating at
+    # g*tan(10 deg) asks the joint for 30 deg; on its 25 deg stop the detector lies 20 - 25 = -5 deg
+    # (5 deg nose down) instead of the -10 deg of the apparent vertical
+    pitch, _ = detector_tilt(accel_mps2=9.80665 * math.tan(math.radians(10.0)), pitch_deg=20.0)
+    assert float(pitch) == pytest.approx(-5.0, abs=1e-9)
+    pitch, _ = detector_tilt(accel_mps2=9.80665 * math.tan(math.radians(10.0)), pitch_deg=10.0)
+    assert float(pitch) == pytest.approx(-10.0, abs=1e-9)  # 20 deg asked: within the joint's travel
     # steady flight: level within the joint's travel (common practice: about 25 deg), excess beyond
     assert GIMBAL_LIMIT_DEG == 25.0
     assert float(detector_tilt(pitch_deg=20.0)[0]) == pytest.approx(0.0, abs=1e-12)
     assert float(detector_tilt(pitch_deg=30.0)[0]) == pytest.approx(5.0, abs=1e-12)
     assert float(detector_tilt(pitch_deg=-32.0)[0]) == pytest.approx(-7.0, abs=1e-12)
+
+
+def _pendulum_heading_error_deg(inc_deg, heading_deg, accel_mps2, g=9.80665):
+    """First principles, written apart from the module: the detector hangs along the apparent
+    gravity g*down - a*forward (specific force of a pendulum in an accelerating frame; any
+    mechanics text); its plane is normal to that direction. The field (cos I, 0, sin I) in
+    north-east-down is projected on the plane and the heading read off against the nose's
+    projection, clockwise positive."""
+    psi, inc = math.radians(heading_deg), math.radians(inc_deg)
+    forward = np.array([math.cos(psi), math.sin(psi), 0.0])
+    down = np.array([0.0, 0.0, 1.0])
+    normal = g * down - accel_mps2 * forward
+    normal /= np.linalg.norm(normal)
+    x_axis = forward - normal * (forward @ normal)  # the nose, projected into the detector plane
+    x_axis /= np.linalg.norm(x_axis)
+    y_axis = np.cross(normal, x_axis)  # right wing: z cross x = y in a right-handed frame
+    b = np.array([math.cos(inc), 0.0, math.sin(inc)])
+    apparent = math.degrees(math.atan2(-(b @ y_axis), b @ x_axis))  # heading of the nose from the field
+    return (apparent - heading_deg + 180.0) % 360.0 - 180.0
+
+
+@pytest.mark.parametrize("heading", [90.0, 270.0, 45.0, 135.0, 0.0])
+@pytest.mark.parametrize("accel", [1.5, -2.0])
+def test_acceleration_error_matches_a_pendulum_in_apparent_gravity(heading, accel):
+    # first-principles rotation (helper above) against the detector model, 65 N 20 W
+    row = headingref.heading_error(65.0, -20.0, "2026-12-02", accel_mps2=accel, heading_deg=heading).iloc[0]
+    expected = _pendulum_heading_error_deg(row.inclination_deg, heading, accel)
+    assert row.tilt_error_deg == pytest.approx(expected, abs=1e-9)
+
+
+def test_acceleration_error_follows_the_textbook_rule():
+    # FAA Pilot's Handbook of Aeronautical Knowledge, magnetic compass acceleration error ("ANDS",
+    # common practice for pendulous and direct-reading compasses): on east or west headings in
+    # the northern hemisphere accelerating shows a turn toward north, decelerating toward south;
+    # reversed in the southern hemisphere; none on north or south headings.
+    east = headingref.heading_error(65.0, -20.0, "2026-12-02", accel_mps2=1.5, heading_deg=90.0).iloc[0]
+    assert east.tilt_error_deg == pytest.approx(-31.0, abs=1.0)  # the issue's example: about -31 deg
+    west = headingref.heading_error(65.0, -20.0, "2026-12-02", accel_mps2=1.5, heading_deg=270.0).iloc[0]
+    assert west.tilt_error_deg > 10.0  # 270 reads toward 360: toward north
+    slower = headingref.heading_error(65.0, -20.0, "2026-12-02", accel_mps2=-1.5, heading_deg=90.0).iloc[0]
+    assert slower.tilt_error_deg > 10.0  # decelerate: toward south (090 reads toward 180)
+    south = headingref.heading_error(-65.0, 140.0, "2026-12-02", accel_mps2=1.5, heading_deg=90.0).iloc[0]
+    assert south.inclination_deg < 0 and south.tilt_error_deg > 10.0  # southern hemisphere: toward south
+    along = headingref.heading_error([65.0, 65.0], [-20.0, -20.0], "2026-12-02", accel_mps2=1.5, heading_deg=[0.0, 180.0])
+    assert np.allclose(along.tilt_error_deg, 0.0, atol=1e-9)
 
 
 def test_residual_field_error():
