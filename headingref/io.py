@@ -12,12 +12,18 @@
 from __future__ import annotations
 
 import contextlib
+import contextvars
 import csv
 import io as _io
 import math
 import os
+import re
+import shutil
+import stat
+import tempfile
 from collections.abc import Iterator, Sequence
 from pathlib import Path
+from typing import IO, Any
 
 import numpy as np
 import pandas as pd
@@ -175,49 +181,289 @@ def date_column(table: pd.DataFrame, column: str) -> np.ndarray:
     return out
 
 
-@contextlib.contextmanager
-def atomic_path(target: str | os.PathLike) -> Iterator[Path]:
-    """Yield a temporary path beside ``target``; on success rename it onto ``target``.
+# --------------------------------------------------------------------------- writing outputs
+#
+# Every output is first written to a temporary file that ``tempfile.mkstemp`` creates beside the
+# target (O_CREAT | O_EXCL with a random name, so a link planted in a shared folder is never
+# followed), then renamed onto the target with ``os.replace`` (an atomic rename on POSIX: readers
+# see the old file or the new one, never half of one). A target that is itself a symbolic link is
+# refused (writing through it would let whoever made the link choose the file overwritten; replacing
+# it would silently turn the user's link into a file); the one exception is a link under /dev or
+# /proc (/dev/stdout -> /proc/self/fd/1), which like /dev/null and pipes is written directly: a
+# device or stream cannot be replaced by a rename.
 
-    The temporary name keeps the target's suffix (matplotlib picks the format from
-    it). On any exception the temporary file is removed and ``target`` is untouched.
+_ACTIVE: contextvars.ContextVar[OutputSet | None] = contextvars.ContextVar("headingref_outputs", default=None)
+
+
+def _umask() -> int:
+    mask = os.umask(0o022)
+    os.umask(mask)
+    return mask
+
+
+def _target_kind(target: Path) -> str:
+    """'file' (absent or regular: written through a temporary) or 'special' (written directly).
+
+    Raises InputError for an unusable name, a missing folder, a folder, or a symbolic link.
     """
-    target = Path(target)
+    text = str(target)
+    if "\x00" in text:
+        raise InputError(f"cannot write {text!r}: a file name cannot hold a NUL character")
+    if not text.strip():
+        raise InputError(f"cannot write {text!r}: the file name is empty")
     parent = target.parent if str(target.parent) else Path(".")
-    if "\x00" in str(target):
-        raise InputError(f"cannot write {str(target)!r}: a file name cannot hold a NUL character")
-    if not parent.is_dir():
-        raise InputError(f"cannot write {str(target)!r}: folder {str(parent)!r} does not exist")
     try:
-        kind = "folder" if target.is_dir() else "special" if target.exists() and not target.is_file() else "file"
-    except OSError as exc:  # name too long
-        raise InputError(f"cannot write {str(target)!r}: {exc.strerror or exc}") from None
-    if kind == "folder":
-        raise InputError(f"cannot write {str(target)!r}: it is a folder; give a file name")
-    # A device or pipe (/dev/null, /dev/stdout) is written directly: renaming a file onto it would
-    # replace the device itself (as root) instead of writing through it.
-    tmp = target if kind == "special" else parent / f".{target.stem[:100]}.tmp{os.getpid()}{target.suffix}"
+        if not parent.is_dir():
+            raise InputError(f"cannot write {text!r}: folder {str(parent)!r} does not exist")
+        link = target.is_symlink()
+        if target.is_dir():
+            raise InputError(f"cannot write {text!r}: it is a folder; give a file name")
+        special = target.exists() and not target.is_file()
+    except OSError as exc:  # name too long, no permission to look
+        raise InputError(f"cannot write {text!r}: {exc.strerror or exc}") from None
+    if link and os.path.abspath(text).startswith(("/dev/", "/proc/")):
+        return "special"  # /dev/stdout, /dev/fd/1: the stream the user named, written directly
+    if link:
+        raise InputError(
+            f"cannot write {text!r}: it is a symbolic link; give the real file name or remove the link "
+            "(outputs never write through links)"
+        )
+    return "special" if special else "file"
+
+
+def _new_temporary(target: Path) -> tuple[int, Path]:
+    """Create an empty temporary file beside ``target`` (mkstemp: exclusive, random name).
+
+    The name keeps the target's suffix (matplotlib picks the format from it). Its permissions are
+    those a new file would get (0666 less the umask), not mkstemp's 0600.
+    """
+    parent = target.parent if str(target.parent) else Path(".")
     try:
-        yield tmp
-        if tmp != target:
-            os.replace(tmp, target)
-    except OSError as exc:  # name too long, disk full, no permission
+        fd, name = tempfile.mkstemp(prefix=f".{target.stem[:60]}.", suffix=f".tmp{target.suffix[:20]}", dir=parent)
+    except OSError as exc:  # no permission, read-only file system, disk full
         raise InputError(f"cannot write {str(target)!r}: {exc.strerror or exc}") from None
+    with contextlib.suppress(OSError):
+        os.fchmod(fd, 0o666 & ~_umask())
+    return fd, Path(name)
+
+
+def _same_file(fd: int, path: Path) -> bool:
+    """True when ``path`` is still the regular file opened as ``fd`` (not swapped for a link)."""
+    try:
+        here, there = os.fstat(fd), os.lstat(path)
+    except OSError:
+        return False
+    return stat.S_ISREG(there.st_mode) and (here.st_dev, here.st_ino) == (there.st_dev, there.st_ino)
+
+
+def _cannot_write(target: Path, exc: BaseException) -> InputError:
+    reason = getattr(exc, "strerror", None) or str(exc) or type(exc).__name__
+    return InputError(f"cannot write {str(target)!r}: {reason}")
+
+
+@contextlib.contextmanager
+def _atomic(target: str | os.PathLike) -> Iterator[tuple[Path, int | None]]:
+    """The machinery of :func:`atomic_path`: yields (path to write, mkstemp's descriptor or None for a device)."""
+    target = Path(target)
+    if _target_kind(target) == "special":
+        try:
+            yield target, None
+        except OSError as exc:
+            raise _cannot_write(target, exc) from None
+        return
+    fd, tmp = _new_temporary(target)
+    keep = False
+    try:
+        try:
+            yield tmp, fd
+            if not _same_file(fd, tmp):
+                raise InputError(f"cannot write {str(target)!r}: its temporary file {tmp.name!r} was replaced while writing")
+        except OSError as exc:  # disk full, no permission, I/O error
+            raise _cannot_write(target, exc) from None
+        group = _ACTIVE.get()
+        if group is not None:
+            group._add(tmp, target)
+        else:
+            try:
+                os.replace(tmp, target)
+            except OSError as exc:
+                raise _cannot_write(target, exc) from None
+        keep = True
     finally:
-        if tmp != target:
+        os.close(fd)
+        if not keep:
             with contextlib.suppress(OSError):
                 tmp.unlink()
 
 
+@contextlib.contextmanager
+def atomic_path(target: str | os.PathLike) -> Iterator[Path]:
+    """Yield a temporary path beside ``target``; on success rename it onto ``target``.
+
+    The temporary is created by ``tempfile.mkstemp`` (exclusive, random name) and keeps the
+    target's suffix. On any exception the temporary file is removed and ``target`` is untouched.
+    Inside :func:`all_or_nothing` the rename waits until every output of the block is written.
+    A device or pipe (/dev/null, /dev/stdout) is written directly. A symbolic link as target is
+    refused (see the comment above). Write errors (no permission, disk full) are InputError.
+    Prefer :func:`atomic_file` where the writer takes an open file.
+    """
+    with _atomic(target) as (path, _fd):
+        yield path
+
+
+@contextlib.contextmanager
+def atomic_file(target: str | os.PathLike, mode: str = "w", **open_args) -> Iterator[IO]:
+    """Yield an open file for ``target`` (text ``'w'`` or binary ``'wb'``); renamed into place on success.
+
+    Like :func:`atomic_path`, but the data go through the descriptor ``mkstemp`` returned, so not
+    even a race on the temporary's name can redirect them. Closing (the last flush) is part of the
+    write: a full disk is an InputError, never a silently short file.
+    """
+    if mode not in ("w", "wb"):
+        raise ValueError("mode must be 'w' or 'wb'")
+    if mode == "w":
+        open_args.setdefault("encoding", "utf-8")
+        open_args.setdefault("newline", "")
+    with _atomic(target) as (path, fd):
+        handle = open(path, mode, **open_args) if fd is None else os.fdopen(os.dup(fd), mode, **open_args)  # noqa: SIM115
+        try:
+            yield handle
+        except BaseException:
+            with contextlib.suppress(OSError):
+                handle.close()
+            raise
+        handle.close()
+
+
+class OutputSet:
+    """The outputs of one :func:`all_or_nothing` block: temporaries waiting to replace their targets."""
+
+    def __init__(self) -> None:
+        self._pending: list[tuple[Path, Path]] = []
+
+    def _add(self, tmp: Path, target: Path) -> None:
+        self._pending.append((tmp, target))
+
+    def _discard(self) -> None:
+        for tmp, _ in self._pending:
+            with contextlib.suppress(OSError):
+                tmp.unlink()
+        self._pending.clear()
+
+    def _commit(self) -> None:
+        """Rename every temporary onto its target; if one rename fails, put the earlier ones back.
+
+        Each existing target is first hard-linked (or, where links are refused, copied) to a backup
+        beside it, so a failed rename (an immutable file, a folder turned read-only) restores the old
+        files and removes the new ones: all outputs change, or none does.
+        """
+        backups: list[tuple[Path, Path | None]] = []  # (target, backup or None when it did not exist)
+        done: list[tuple[Path, Path | None]] = []
+        try:
+            for _tmp, target in self._pending:
+                backup = None
+                if target.exists():
+                    fd, backup = _new_temporary(target)
+                    os.close(fd)
+                    try:
+                        backup.unlink()
+                        os.link(target, backup)
+                    except OSError:
+                        shutil.copy2(target, backup)
+                backups.append((target, backup))
+            for (tmp, target), (_, backup) in zip(self._pending, backups, strict=True):
+                os.replace(tmp, target)
+                done.append((target, backup))
+        except (OSError, InputError) as exc:
+            failed = self._pending[len(done)][1] if len(done) < len(self._pending) else self._pending[-1][1]
+            for target, backup in reversed(done):
+                with contextlib.suppress(OSError):
+                    if backup is None:
+                        target.unlink()
+                    else:
+                        os.replace(backup, target)
+            self._discard()
+            if isinstance(exc, InputError):
+                raise
+            raise InputError(f"{_cannot_write(failed, exc)}; no output of this run was changed") from None
+        finally:
+            for _, backup in backups:
+                if backup is not None:
+                    with contextlib.suppress(OSError):
+                        backup.unlink()
+        self._pending.clear()
+
+
+@contextlib.contextmanager
+def all_or_nothing() -> Iterator[OutputSet]:
+    """Make every output written in the block (by :func:`atomic_path` and the ``write_*`` helpers)
+    appear together when the block ends, or none of them if anything in it fails.
+
+    A command with several outputs (``route --output --plot``) wraps its writing in this, so an
+    unwritable folder or a full disk half-way leaves the old files as they were. Devices are still
+    written directly. Nested blocks join the outermost one.
+    """
+    if _ACTIVE.get() is not None:
+        yield _ACTIVE.get()
+        return
+    group = OutputSet()
+    token = _ACTIVE.set(group)
+    try:
+        yield group
+    except BaseException:
+        _ACTIVE.reset(token)
+        group._discard()
+        raise
+    _ACTIVE.reset(token)
+    group._commit()
+
+
+# OWASP "CSV Injection": a spreadsheet reads a cell that starts with = + - @ (or a tab or carriage
+# return before one) as a formula. Such text cells get a leading apostrophe, which spreadsheets show
+# as text and which pandas/csv readers keep visibly. Numbers, and text that is a plain number
+# ("-12.5"), are left as they are.
+_FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
+_PLAIN_NUMBER = re.compile(r"^[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?$|^-+$")
+
+
+def spreadsheet_safe_text(value: Any) -> Any:
+    """A text cell made inert for spreadsheets (OWASP CSV injection); other values unchanged."""
+    if isinstance(value, str) and value.startswith(_FORMULA_START) and not _PLAIN_NUMBER.match(value):
+        return "'" + value
+    return value
+
+
+def spreadsheet_safe(frame: pd.DataFrame) -> pd.DataFrame:
+    """A copy of ``frame`` whose text cells and column names cannot run as spreadsheet formulas.
+
+    Only object, string and categorical columns are touched; numeric columns (negative numbers
+    included) are written as numbers.
+    """
+    out = frame.copy(deep=False)
+    for i in range(frame.shape[1]):
+        series = frame.iloc[:, i]
+        kind = series.dtype
+        if isinstance(kind, pd.CategoricalDtype):
+            series = series.astype(object)
+        elif not pd.api.types.is_string_dtype(kind):
+            continue
+        if series.map(lambda v: spreadsheet_safe_text(v) is not v).any():
+            out.isetitem(i, series.map(spreadsheet_safe_text))
+    out.columns = [spreadsheet_safe_text(c) for c in frame.columns]
+    if pd.api.types.is_string_dtype(frame.index.dtype):
+        out.index = frame.index.map(spreadsheet_safe_text)
+    return out
+
+
 def write_text(target: str | os.PathLike, text: str) -> Path:
     """Write text (UTF-8) atomically."""
-    with atomic_path(target) as tmp:
-        tmp.write_text(text, encoding="utf-8")
+    with atomic_file(target, "w", newline=None) as handle:
+        handle.write(text)
     return Path(target)
 
 
 def write_csv(target: str | os.PathLike, frame: pd.DataFrame, index: bool = False, float_format: str | None = None) -> Path:
-    """Write a DataFrame as CSV atomically."""
-    with atomic_path(target) as tmp:
-        frame.to_csv(tmp, index=index, float_format=float_format)
+    """Write a DataFrame as CSV atomically, text cells made safe for spreadsheets (:func:`spreadsheet_safe`)."""
+    with atomic_file(target, "w") as handle:
+        spreadsheet_safe(frame).to_csv(handle, index=index, float_format=float_format)
     return Path(target)

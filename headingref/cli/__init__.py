@@ -48,28 +48,59 @@ def _show_warning(message, category, filename, lineno, file=None, line=None):
 
 
 def main(argv: list[str] | None = None) -> int:
+    from .common import ConsoleText, Terminated, empty_option, sigterm_as_interrupt
+
     parser = build_parser()
     args = parser.parse_args(argv)
     if not getattr(args, "func", None):
         parser.print_help()
         return 2
+    empty = empty_option(parser, args)
+    if empty:
+        print(f"headingref {args.command}: error: {empty} is empty; give a value (or leave the option out)", file=sys.stderr)
+        return 2
     warnings.showwarning = _show_warning
+    stdout, stderr = sys.stdout, sys.stderr
+    sys.stdout, sys.stderr = ConsoleText(stdout), ConsoleText(stderr)
     try:
-        result = args.func(args)
+        with sigterm_as_interrupt():
+            result = args.func(args)
+            sys.stdout.flush()  # a full disk or closed stream behind stdout shows here, not at exit
     except HeadingrefError as exc:
         print(f"headingref {args.command}: error: {exc}", file=sys.stderr)
         return 2
-    except KeyboardInterrupt:
-        print("headingref: interrupted", file=sys.stderr)
-        return 130
+    except KeyboardInterrupt as exc:
+        terminated = isinstance(exc, Terminated)
+        print(f"headingref: {'terminated' if terminated else 'interrupted'}", file=sys.stderr)
+        return 143 if terminated else 130
     except BrokenPipeError:
         # The reader of our output went away (``headingref field ... --csv | head``): stop quietly.
         # Python's documentation (signal module, "Note on SIGPIPE"): point stdout at devnull so the
         # flush at exit does not raise again, and exit with status 1.
-        with contextlib.suppress(AttributeError, OSError, ValueError):
-            os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        _silence(stdout)
         return 1
+    except OSError as exc:
+        # Standard output on a full disk (``field --csv > /dev/full``) or another system error the
+        # command did not turn into an InputError: one line, and no second error at exit.
+        where = f" {exc.filename}:" if exc.filename else ""
+        try:
+            stdout.flush()
+        except (OSError, ValueError):
+            where = " writing to standard output:"
+            _silence(stdout)
+        print(f"headingref {args.command}: error:{where} {exc.strerror or exc}", file=sys.stderr)
+        return 2
+    finally:
+        sys.stdout, sys.stderr = stdout, stderr
     return int(result or 0)
+
+
+def _silence(stream) -> None:
+    """Point ``stream``'s descriptor at devnull and drop what it still buffers (it cannot be written)."""
+    with contextlib.suppress(AttributeError, OSError, ValueError):
+        os.dup2(os.open(os.devnull, os.O_WRONLY), stream.fileno())
+    with contextlib.suppress(AttributeError, OSError, ValueError):
+        stream.flush()
 
 
 if __name__ == "__main__":  # pragma: no cover

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import argparse
+import contextlib
 
 from ..notices import CAUTION
 
@@ -71,3 +72,87 @@ def check_outputs(files=(), figures=(), inputs=()) -> None:
                 raise InputError(
                     f"cannot draw {target!r}: matplotlib writes no '.{suffix}' files; give a name ending in .png, .pdf or .svg"
                 )
+
+
+# --------------------------------------------------------------------------- the shell around every command
+_CONTROL = __import__("re").compile(r"[\x00-\x08\x0b-\x1f\x7f-\x9f]")
+
+
+def strip_controls(text: str) -> str:
+    """``text`` without terminal control characters (C0 but tab and newline, DEL, C1).
+
+    A name read from a user's file can hold an escape sequence that, echoed to a terminal, moves
+    the cursor, rewrites earlier lines or retitles the window (OWASP, "Log Injection"; ECMA-48
+    defines the sequences). Everything the CLI prints passes through :class:`ConsoleText`.
+    """
+    return _CONTROL.sub("", text)
+
+
+class ConsoleText:
+    """A text stream (stdout or stderr) that drops terminal control characters from what is written."""
+
+    def __init__(self, stream) -> None:
+        self._stream = stream
+
+    def write(self, text: str) -> int:
+        self._stream.write(strip_controls(text))
+        return len(text)
+
+    def writelines(self, lines) -> None:
+        for line in lines:
+            self.write(line)
+
+    def __getattr__(self, name):
+        return getattr(self._stream, name)
+
+
+def empty_option(parser: argparse.ArgumentParser, args: argparse.Namespace) -> str | None:
+    """The first option or argument given as an empty (or blank) string, as ``--name`` or ``NAME``; else None.
+
+    An empty value is never what a user meant: ``--date ''`` would otherwise fall back to today and
+    ``--out ''`` to the current folder. Checked for every command after argparse has parsed.
+    """
+    parsers = [parser]
+    command = getattr(args, "command", None)
+    for action in parser._actions:
+        if isinstance(action, argparse._SubParsersAction) and command in action.choices:
+            parsers.append(action.choices[command])
+    for each in parsers:
+        for action in each._actions:
+            value = getattr(args, action.dest, None)
+            values = value if isinstance(value, list) else [value]
+            if value is action.default:
+                continue
+            if any(isinstance(v, str) and not v.strip() for v in values):
+                return max(action.option_strings, key=len) if action.option_strings else (action.metavar or action.dest)
+    return None
+
+
+@contextlib.contextmanager
+def sigterm_as_interrupt():
+    """While the block runs, SIGTERM raises :class:`Terminated` (a KeyboardInterrupt), as SIGINT does.
+
+    Python's default SIGTERM action ends the process at once, so ``finally`` blocks never run and
+    the temporaries of an atomic write (``.name.*.tmp``) or a report's staging folder stay behind.
+    Raising an exception instead unwinds the stack through every clean-up. Only in the main thread
+    (the signal module allows handlers nowhere else); the previous handler is restored afterwards.
+    """
+    import signal
+    import threading
+
+    if threading.current_thread() is not threading.main_thread():
+        yield
+        return
+
+    def handler(signum, frame):
+        raise Terminated()
+
+    previous = signal.signal(signal.SIGTERM, handler)
+    try:
+        yield
+    finally:
+        signal.signal(signal.SIGTERM, previous)
+
+
+class Terminated(KeyboardInterrupt):
+    """The process received SIGTERM (raised by :func:`sigterm_as_interrupt`)."""
