@@ -1,0 +1,54 @@
+"""The workbench helpers: explorers redraw from their controls, tables print in the trade's forms."""
+
+from __future__ import annotations
+
+import base64
+
+import ipywidgets as widgets
+import pandas as pd
+from matplotlib.figure import Figure
+
+from headingref.workbench import date_picker, explorer, render, status_line, styled
+
+
+def test_figure_renders_as_png():
+    fig = Figure(figsize=(2, 2))
+    fig.add_subplot().plot([0, 1], [0, 1])
+    data = base64.b64decode(render(fig)["image/png"])
+    assert data[:8] == b"\x89PNG\r\n\x1a\n"  # PNG signature (RFC 2083, section 3.1)
+
+
+def test_explorer_redraws_when_a_control_changes():
+    slider = widgets.IntSlider(value=3, min=0, max=10)
+    box = explorer(lambda n: f"n squared is {n * n}", {"n": slider})
+    output = box.children[-1]
+    assert output.outputs[0]["data"]["text/plain"] == "n squared is 9"
+    slider.value = 4
+    assert output.outputs[0]["data"]["text/plain"] == "n squared is 16"
+    assert "headingref-explorer" in box._dom_classes
+
+
+def test_explorer_shows_an_error_as_a_status_line_instead_of_losing_it():
+    slider = widgets.IntSlider(value=0)
+    box = explorer(lambda n: 1 / n, {"n": slider})
+    assert "ZeroDivisionError" in box.children[-1].outputs[0]["data"]["text/plain"]
+
+
+def test_styled_table_uses_trade_formats():
+    table = pd.DataFrame({"true_course_deg": [5.0, 359.0], "variation_deg": [-14.65, 0.5], "zone": ["caution", "normal"],
+                          "decimal_year": [2024.0 + 183 / 366, 2026.0]})
+    html = styled(table).to_html()
+    # headings as three digits (common practice); 14.65 deg = 14 deg 39 min (60 min to the degree), west negative
+    assert ">005<" in html and ">359<" in html
+    assert "14°39′ W" in html and "0°30′ E" in html
+    assert "2024-07-02" in html  # 2024 + 183/366 is 2 July of the leap year 2024 (Gregorian calendar)
+    assert html.index("zone") < html.index("true_course_deg")  # safety column first
+    assert "#fce8b2" in html  # caution shaded
+
+
+def test_date_picker_starts_on_the_given_day():
+    assert str(date_picker(2024.0 + 183 / 366, "swing date").value) == "2024-07-02"
+
+
+def test_status_line_escapes_user_text():
+    assert "&lt;b&gt;" in status_line("<b>base</b>")["text/html"]
