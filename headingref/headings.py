@@ -23,7 +23,9 @@ Grids are written as text: ``polar`` / ``polar:LON`` (north polar stereographic,
 reference meridian LON, default 0 = Greenwich), ``polar-south[:LON]``,
 ``lcc:LAT1,LAT2,LON0`` (Lambert conformal conic), ``utm:ZONE[N|S]``, ``tm:LON0``
 (transverse Mercator), ``EPSG:NNNN`` or any projected CRS pyproj understands
-(a ``+proj=`` string, WKT, a ``pyproj.CRS``). All on WGS84.
+(a ``+proj=`` string, WKT, a ``pyproj.CRS``). All on WGS84. ``auto`` (where places are known:
+routes, bases, scenarios) is the polar grid on Greenwich of the nearest pole; a polar grid used more
+than 60° of latitude from its pole draws a warning (:data:`POLAR_GRID_MAX_POLE_DISTANCE_DEG`).
 
 Public API
 ----------
@@ -33,7 +35,8 @@ Conversions (vectorised, results in ``[0, 360)``): :func:`normalize_heading`,
 :func:`compass_to_true`, :func:`true_to_grid`, :func:`grid_to_true`,
 :func:`grid_to_magnetic`, :func:`magnetic_to_grid`, :func:`grivation_deg`,
 :func:`model_variation_deg`.
-Grids: :class:`Grid`, :func:`parse_grid`, :func:`convergence_deg`.
+Grids: :class:`Grid`, :func:`parse_grid`, :func:`convergence_deg`, :func:`resolve_grid`
+(``auto``: the polar grid of the nearest pole, :func:`polar_grid_for`), :func:`warn_if_far_from_pole`.
 Text: :func:`parse_heading`, :func:`parse_variation`, :func:`format_heading`,
 :func:`format_variation`.
 
@@ -52,6 +55,7 @@ from __future__ import annotations
 
 import math
 import re
+import warnings
 from collections.abc import Callable
 from dataclasses import dataclass, field
 from typing import Any
@@ -59,10 +63,12 @@ from typing import Any
 import numpy as np
 import pyproj
 
-from .errors import InputError
+from .errors import DataQualityWarning, InputError
 from .units import decimal_year, format_dm, parse_coordinate
 
 __all__ = [
+    "AUTO_GRID",
+    "POLAR_GRID_MAX_POLE_DISTANCE_DEG",
     "Grid",
     "compass_to_magnetic",
     "compass_to_true",
@@ -77,6 +83,9 @@ __all__ = [
     "magnetic_to_true",
     "normalize_heading",
     "parse_grid",
+    "polar_grid_for",
+    "resolve_grid",
+    "warn_if_far_from_pole",
     "parse_heading",
     "parse_variation",
     "true_to_compass",
@@ -297,7 +306,7 @@ def magnetic_to_grid(magnetic_deg: Any, grivation: Any) -> Any:
 
 
 _GRID_HELP = (
-    "polar, polar:LON, polar-south, polar-south:LON, lcc:LAT1,LAT2,LON0, utm:ZONE[N|S], tm:LON0, "
+    "auto (polar grid of the nearest pole), polar, polar:LON, polar-south, polar-south:LON, lcc:LAT1,LAT2,LON0, utm:ZONE[N|S], tm:LON0, "
     "EPSG:NNNN (a projected CRS) or a +proj= string"
 )
 
@@ -317,6 +326,8 @@ class Grid:
     name: str
     crs: pyproj.CRS
     _proj: pyproj.Proj = field(repr=False, compare=False, hash=False)
+    pole: int = 0
+    """+1 (north) or -1 (south) for a polar stereographic grid, 0 for any other grid."""
 
     def convergence_deg(self, lat: Any, lon: Any) -> Any:
         """Meridian convergence in degrees, in (-180, 180]: true north to grid north, east positive.
@@ -357,7 +368,72 @@ def _make_grid(name: str, crs_input: Any, spec: Any) -> Grid:
         raise InputError(f"grid {spec!r} is not a coordinate reference system pyproj knows; give {_GRID_HELP}") from None
     if not crs.is_projected:
         raise InputError(f"grid {spec!r} is not a projected CRS (it has no grid north); give {_GRID_HELP}")
-    return Grid(name, crs, pyproj.Proj(crs))
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # to_dict warns that a PROJ string loses metadata; only two keys are read
+        params = crs.to_dict()
+    pole = 0
+    if params.get("proj") == "stere" and abs(abs(float(params.get("lat_0", 0.0))) - 90.0) < 1e-9:
+        pole = 1 if float(params["lat_0"]) > 0 else -1
+    elif params.get("proj") == "ups":
+        pole = -1 if params.get("south") else 1
+    return Grid(name, crs, pyproj.Proj(crs), pole)
+
+
+AUTO_GRID = "auto"
+"""Grid spec for the polar stereographic grid on Greenwich of the pole nearest the points."""
+
+POLAR_GRID_MAX_POLE_DISTANCE_DEG = 60.0
+"""A polar grid used more than this many degrees of latitude from its pole (equatorward of 30° in its
+own hemisphere, or in the other hemisphere) draws a :class:`~headingref.errors.DataQualityWarning`.
+There the grid's scale exceeds 4/3 (polar stereographic on the sphere ``k = 2 / (1 + sin|lat|)``,
+Snyder 1987, USGS PP 1395, eq. 21-4 with phi1 = 90°) and grid courses are no longer what a crew on a
+polar grid expects; the convergence itself stays exact. The limit lets a route leave a mid-latitude
+airfield (Hobart, 43° S) on the southern grid without a warning, and catches the wrong cap."""
+
+
+def polar_grid_for(lat_deg: Any) -> Grid:
+    """The polar stereographic grid on Greenwich of the pole nearest the points (``polar`` or ``polar-south``).
+
+    The pole is that of the point farthest from the equator (ties go north): a route from Hobart
+    to the Antarctic coast gets ``polar-south:0``, one from Tromsø to Svalbard ``polar:0``.
+    """
+    lat = np.asarray(lat_deg, dtype=np.float64).ravel()
+    lat = lat[np.isfinite(lat)]
+    if lat.size == 0:
+        raise InputError("no finite latitude to choose a polar grid from")
+    return parse_grid("polar" if lat.max() >= -lat.min() else "polar-south")
+
+
+def resolve_grid(spec: Any, lat_deg: Any) -> Grid:
+    """:func:`parse_grid`, with None or ``"auto"`` giving :func:`polar_grid_for` the points."""
+    if spec is None or (isinstance(spec, str) and spec.strip().lower() == AUTO_GRID):
+        return polar_grid_for(lat_deg)
+    return parse_grid(spec)
+
+
+def warn_if_far_from_pole(grid: Grid, lat_deg: Any, what: str = "the points") -> bool:
+    """Warn (:class:`DataQualityWarning`) when a polar grid is used far from its pole; True if it warned.
+
+    The limit is :data:`POLAR_GRID_MAX_POLE_DISTANCE_DEG`. Non-polar grids never warn here.
+    """
+    if not grid.pole:
+        return False
+    lat = np.asarray(lat_deg, dtype=np.float64).ravel()
+    lat = lat[np.isfinite(lat)]
+    if lat.size == 0:
+        return False
+    distance = 90.0 - grid.pole * lat
+    worst = int(np.argmax(distance))
+    if distance[worst] <= POLAR_GRID_MAX_POLE_DISTANCE_DEG:
+        return False
+    other = "polar-south" if grid.pole > 0 else "polar"
+    warnings.warn(
+        f"grid {grid.name} is used {distance[worst]:.0f}° of latitude from its pole (latitude {lat[worst]:.1f} in "
+        f"{what}; limit {POLAR_GRID_MAX_POLE_DISTANCE_DEG:g}°): check the cap (grid {other} or auto?)",
+        DataQualityWarning,
+        stacklevel=3,
+    )
+    return True
 
 
 def parse_grid(spec: Any) -> Grid:
@@ -374,6 +450,8 @@ def parse_grid(spec: Any) -> Grid:
     text = spec.strip()
     lower = text.lower()
     kind, _, rest = lower.partition(":")
+    if lower == AUTO_GRID:
+        raise InputError("grid 'auto' depends on the places; resolve it with headingref.headings.resolve_grid(spec, lat_deg)")
     if kind in ("polar", "polar-north", "polar-south"):
         lon0 = _check_range(_number(rest, "reference meridian", text), -180, 180, "reference meridian", text) if rest else 0.0
         south = kind == "polar-south"

@@ -45,11 +45,11 @@ import pandas as pd
 import pyproj
 
 from .errors import InputError
-from .headings import grivation_deg, normalize_heading, parse_grid, wrap_angle
+from .headings import grivation_deg, normalize_heading, resolve_grid, warn_if_far_from_pole, wrap_angle
 from .io import coordinate_column, read_table
-from .units import NAUTICAL_MILE_M, decimal_year, parse_coordinate, parse_height_km
+from .units import NAUTICAL_MILE_M, ROUTE_HEIGHT_MAX_KM, decimal_year, height_column, parse_coordinate, parse_height_km
 
-__all__ = ["RouteResult", "meridian_distance_m", "read_waypoints", "rhumb_inverse", "route", "route_geojson"]
+__all__ = ["LEG_COLUMNS", "SAMPLE_COLUMNS", "RouteResult", "meridian_distance_m", "read_waypoints", "rhumb_inverse", "route", "route_geojson"]
 
 GEOD = pyproj.Geod(ellps="WGS84")
 _A = GEOD.a  # WGS84 semi-major axis, m
@@ -57,7 +57,6 @@ _F = GEOD.f  # WGS84 flattening
 _E2 = _F * (2.0 - _F)
 _E = math.sqrt(_E2)
 _N = _F / (2.0 - _F)  # third flattening
-ZONE_NAMES = np.array(["normal", "caution", "blackout"])
 POLE_NUDGE_M = 1.0
 MIN_LEG_M = 1.0
 MAX_SAMPLES = 2_000_000  # ~ a round-the-world route every 0.01 NM; more would exhaust memory, not add accuracy
@@ -76,61 +75,87 @@ class RouteResult(NamedTuple):
 # --------------------------------------------------------------------------- waypoints
 
 
+def _waypoint_records(waypoints: Any) -> list:
+    if isinstance(waypoints, pd.DataFrame):
+        return waypoints.to_dict("records")
+    try:
+        return list(waypoints)
+    except TypeError:
+        raise InputError(
+            f"waypoints of type {type(waypoints).__name__} are not understood; give a CSV path, "
+            "a DataFrame or a list of dicts with name, lat, lon and optional alt (with a unit), alt_ft, alt_m or alt_km"
+        ) from None
+
+
+def _blank(value: Any) -> bool:
+    return value is None or (isinstance(value, float) and math.isnan(value)) or (isinstance(value, str) and not value.strip())
+
+
+def _waypoints_from_records(waypoints: Any) -> tuple[list, np.ndarray, np.ndarray, list, list, list]:
+    """Names, lat, lon, (height cell, unit) pairs and row labels from a DataFrame or a list."""
+    names, lat_list, lon_list, heights, units, where = [], [], [], [], [], []
+    for i, rec in enumerate(_waypoint_records(waypoints)):
+        label = f"waypoint {i + 1}"
+        unit: str | None = "km"
+        if isinstance(rec, dict):
+            rec = {str(k).strip().lower(): v for k, v in rec.items()}
+            if "lat" not in rec or "lon" not in rec:
+                raise InputError(f"{label}: needs lat and lon (found {', '.join(rec) or 'nothing'})")
+            try:
+                column, unit = height_column(rec, "alt")
+            except InputError as exc:
+                raise InputError(f"{label}: {exc}") from None
+            name, la, lo, al = rec.get("name"), rec["lat"], rec["lon"], rec.get(column) if column else None
+        elif isinstance(rec, (tuple, list)) and len(rec) in (3, 4):
+            name, la, lo, al = (*rec, None) if len(rec) == 3 else rec  # a 4th item: km, or text with a unit
+        else:
+            raise InputError(f"{label}: {rec!r} is not understood; give a dict with name, lat, lon[, alt]")
+        name = f"WP{i + 1}" if _blank(name) else str(name)
+        label = f"waypoint {i + 1} ({name})"
+        try:
+            lat_list.append(parse_coordinate(la, "lat"))
+            lon_list.append(parse_coordinate(lo, "lon"))
+        except InputError as exc:
+            raise InputError(f"{label}: {exc}") from None
+        names.append(name)
+        heights.append("" if _blank(al) else al)
+        units.append(unit)
+        where.append(label)
+    return names, np.array(lat_list, dtype=np.float64), np.array(lon_list, dtype=np.float64), heights, units, where
+
+
 def read_waypoints(waypoints: Any, alt_km: float = 0.0) -> pd.DataFrame:
     """Waypoints as a DataFrame ``name, lat_deg, lon_deg, alt_km, where``.
 
-    ``waypoints`` is a CSV path (columns ``name, lat, lon`` and optional ``alt``), a
-    DataFrame, or a list of dicts/tuples ``(name, lat, lon[, alt])``. Coordinates take
-    any form :func:`headingref.units.parse_coordinate` accepts; an altitude any form
-    :func:`headingref.units.parse_height_km` accepts (plain numbers are km); a missing
-    altitude takes ``alt_km``. ``where`` names the row for error messages.
+    ``waypoints`` is a CSV path (columns ``name, lat, lon`` and an optional height column),
+    a DataFrame, or a list of dicts/tuples ``(name, lat, lon[, alt_km])``. Coordinates take
+    any form :func:`headingref.units.parse_coordinate` accepts. A height carries its unit:
+    in the column name (``alt_ft``, ``alt_m``, ``alt_km``: plain numbers in that unit) or in
+    every value of a plain ``alt`` column (``35000 ft``, ``FL350``, ``120 m``, ``3.2 km``;
+    a bare number there is refused). Heights above 30 km
+    (:data:`headingref.units.ROUTE_HEIGHT_MAX_KM`) are refused as unit slips. A missing
+    height takes ``alt_km``. ``where`` names the row for error messages.
     """
     if isinstance(waypoints, (str, os.PathLike)):
-        table = read_table(Path(waypoints), required=["name", "lat", "lon"], optional=["alt"], what="route")
+        table = read_table(Path(waypoints), required=["name", "lat", "lon"], optional=["alt", "alt_ft", "alt_m", "alt_km"],
+                           what="route")
         source = table.attrs["source"]
         lat = coordinate_column(table, "lat", "lat")
         lon = coordinate_column(table, "lon", "lon")
         where = [f"{source} line {line}" for line in table.index]
         names = [n or f"WP{i + 1}" for i, n in enumerate(table["name"])]
-        alt_cells = table["alt"].tolist() if "alt" in table else [""] * len(table)
-    else:
-        if isinstance(waypoints, pd.DataFrame):
-            records = waypoints.to_dict("records")
-        else:
-            try:
-                records = list(waypoints)
-            except TypeError:
-                raise InputError(
-                    f"waypoints of type {type(waypoints).__name__} are not understood; give a CSV path, "
-                    "a DataFrame or a list of dicts with name, lat, lon and optional alt"
-                ) from None
-        names, lat_list, lon_list, alt_cells, where = [], [], [], [], []
-        for i, rec in enumerate(records):
-            label = f"waypoint {i + 1}"
-            if isinstance(rec, dict):
-                rec = {str(k).strip().lower(): v for k, v in rec.items()}
-                if "lat" not in rec or "lon" not in rec:
-                    raise InputError(f"{label}: needs lat and lon (found {', '.join(rec) or 'nothing'})")
-                name, la, lo, al = rec.get("name"), rec["lat"], rec["lon"], rec.get("alt")
-            elif isinstance(rec, (tuple, list)) and len(rec) in (3, 4):
-                name, la, lo, al = (*rec, None) if len(rec) == 3 else rec
-            else:
-                raise InputError(f"{label}: {rec!r} is not understood; give a dict with name, lat, lon[, alt]")
-            name = f"WP{i + 1}" if name is None or (isinstance(name, float) and math.isnan(name)) else str(name)
-            label = f"waypoint {i + 1} ({name})"
-            try:
-                lat_list.append(parse_coordinate(la, "lat"))
-                lon_list.append(parse_coordinate(lo, "lon"))
-            except InputError as exc:
-                raise InputError(f"{label}: {exc}") from None
-            names.append(name)
-            alt_cells.append("" if al is None or (isinstance(al, float) and math.isnan(al)) else al)
-            where.append(label)
-        lat, lon = np.array(lat_list, dtype=np.float64), np.array(lon_list, dtype=np.float64)
-    alts = np.empty(len(names), dtype=np.float64)
-    for i, cell in enumerate(alt_cells):
         try:
-            alts[i] = alt_km if (isinstance(cell, str) and cell.strip() == "") else parse_height_km(cell)
+            column, unit = height_column(table.columns, "alt")
+        except InputError as exc:
+            raise InputError(f"{source}: {exc}") from None
+        heights = table[column].tolist() if column else [""] * len(table)
+        units = [unit] * len(table)
+    else:
+        names, lat, lon, heights, units, where = _waypoints_from_records(waypoints)
+    alts = np.empty(len(names), dtype=np.float64)
+    for i, (cell, unit) in enumerate(zip(heights, units, strict=True)):
+        try:
+            alts[i] = alt_km if _blank(cell) else parse_height_km(cell, default_unit=unit, max_km=ROUTE_HEIGHT_MAX_KM)
         except InputError as exc:
             raise InputError(f"{where[i]}: {exc}") from None
     if len(names) < 2:
@@ -228,6 +253,24 @@ def _rhumb_points(lat1, lon1, psi1, dpsi, dlon, m1, m2, small, fraction):
 
 # --------------------------------------------------------------------------- route
 
+LEG_COLUMNS: tuple[str, ...] = (
+    "from", "to", "from_lat_deg", "from_lon_deg", "to_lat_deg", "to_lon_deg", "distance_nm", "distance_km",
+    "true_course_deg", "true_course_deg_mid", "true_course_deg_end",
+    "magnetic_course_deg", "magnetic_course_deg_mid", "magnetic_course_deg_end",
+    "grid_course_deg", "grid_course_deg_end",
+    "variation_deg", "variation_deg_mid", "variation_deg_end",
+    "grivation_deg", "grivation_deg_mid", "grivation_deg_end",
+    "min_horizontal_nT", "max_declination_uncertainty_deg", "zone", "caution_stretches_nm", "blackout_stretches_nm",
+)
+"""Columns of :attr:`RouteResult.legs`, in order (see :func:`route`)."""
+
+SAMPLE_COLUMNS: tuple[str, ...] = (
+    "leg", "from", "to", "distance_along_leg_nm", "distance_along_route_nm", "lat_deg", "lon_deg", "alt_km",
+    "true_course_deg", "variation_deg", "magnetic_course_deg", "convergence_deg", "grid_course_deg",
+    "grivation_deg", "horizontal_nT", "declination_uncertainty_deg", "zone",
+)
+"""Columns of :attr:`RouteResult.samples`, in order (see :func:`route`)."""
+
 
 def _stretches(dist_nm: np.ndarray, h_nT: np.ndarray, threshold: float) -> str:
     """Stretches of one leg where H < threshold, as 'from-to' NM; ends by linear interpolation."""
@@ -246,10 +289,251 @@ def _stretches(dist_nm: np.ndarray, h_nT: np.ndarray, threshold: float) -> str:
     return "; ".join(parts)
 
 
+class _Legs(NamedTuple):
+    """Geometry of every leg: ends, length, and what the path needs to place points along it."""
+
+    wps: pd.DataFrame
+    path: str
+    lat1: np.ndarray
+    lon1: np.ndarray
+    lat2: np.ndarray
+    lon2: np.ndarray
+    dist_m: np.ndarray
+    az12: np.ndarray | None  # geodesic: initial azimuth
+    rhumb: tuple | None  # rhumb: (course, dlon, psi1, dpsi, m1, m2, small, lon_base)
+
+    def positions(self, s_m: np.ndarray, legs: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """Latitude, longitude and true course at distance ``s_m`` along each leg ``legs``."""
+        if self.path == "geodesic":
+            lo, la, back = GEOD.fwd(self.lon1[legs], self.lat1[legs], self.az12[legs], s_m)
+            return np.asarray(la), np.asarray(lo), normalize_heading(np.asarray(back) + 180.0)
+        course, dlon, psi1, dpsi, m1, m2, small, lon_base = (v[legs] for v in self.rhumb)
+        la, lo = _rhumb_points(self.lat1[legs], lon_base, psi1, dpsi, dlon, m1, m2, small, s_m / self.dist_m[legs])
+        return la, lo, course
+
+
+class _Track(NamedTuple):
+    """Sample points of all legs, then one extra point at the middle of each leg (the last ``n_legs``)."""
+
+    leg: np.ndarray
+    fraction: np.ndarray
+    lat: np.ndarray
+    lon: np.ndarray
+    course: np.ndarray
+    alt: np.ndarray
+    n_samples: int
+    start: np.ndarray  # index of each leg's first sample
+    end: np.ndarray  # index of each leg's last sample
+
+
+class _References(NamedTuple):
+    """The field and the courses in every reference at every track point."""
+
+    variation: np.ndarray
+    h_nT: np.ndarray
+    uncertainty: np.ndarray
+    zone_code: np.ndarray
+    magnetic: np.ndarray
+    convergence: np.ndarray
+    grid_course: np.ndarray
+    grivation: np.ndarray
+
+
+def _check_options(path: str, spacing_nm: Any) -> float:
+    """Validate the path kind and the sample spacing (NM > 0)."""
+    if path not in ("geodesic", "rhumb"):
+        raise InputError(f"path {path!r} is not understood; give 'geodesic' or 'rhumb'")
+    try:
+        spacing = float(spacing_nm)
+    except (TypeError, ValueError):
+        raise InputError(f"spacing {spacing_nm!r} is not a number; give NM > 0") from None
+    if not math.isfinite(spacing) or spacing <= 0.0:
+        raise InputError(f"spacing {spacing_nm!r} NM is not usable; give a positive number of NM")
+    return spacing
+
+
+def _leg_geometry(wps: pd.DataFrame, path: str) -> _Legs:
+    """Length and direction of each leg along the geodesic or rhumb line; repeated waypoints refused."""
+    lat, lon = wps.lat_deg.to_numpy(), wps.lon_deg.to_numpy()
+    lat1, lat2, lon1, lon2 = lat[:-1], lat[1:], lon[:-1], lon[1:]
+    az12 = rhumb = None
+    if path == "geodesic":
+        az12, _, dist_m = GEOD.inv(lon1, lat1, lon2, lat2)
+        az12, dist_m = np.asarray(az12, dtype=np.float64), np.asarray(dist_m, dtype=np.float64)
+    else:
+        course, dist_m, dlon, psi1, dpsi, m1, m2, small, lon_base = _rhumb_parts(lat1, lon1, lat2, lon2)
+        rhumb = (course, dlon, psi1, dpsi, m1, m2, small, lon_base)
+    short = np.flatnonzero(~(dist_m >= MIN_LEG_M))
+    if short.size:
+        i = int(short[0])
+        raise InputError(
+            f"{wps['where'].iloc[i + 1]} repeats {wps['where'].iloc[i]} ({wps.name.iloc[i]} to {wps.name.iloc[i + 1]} "
+            f"is {dist_m[i]:.3g} m long); consecutive waypoints must differ"
+        )
+    return _Legs(wps, path, lat1, lon1, lat2, lon2, dist_m, az12, rhumb)
+
+
+def _sample_track(legs: _Legs, spacing: float) -> _Track:
+    """Points every ``spacing`` NM or less along each leg (ends exact), plus each leg's middle.
+
+    A point at a geographic pole is moved :data:`POLE_NUDGE_M` along its leg; the altitude
+    changes linearly with distance along a leg.
+    """
+    n_legs = legs.dist_m.size
+    dist_nm = legs.dist_m / NAUTICAL_MILE_M
+    with np.errstate(over="ignore"):
+        n_wanted = np.ceil(dist_nm / spacing - 1e-9)
+    if n_wanted.sum() + n_legs > MAX_SAMPLES:
+        raise InputError(
+            f"spacing {spacing:g} NM gives {n_wanted.sum() + n_legs:.3g} samples along the route's {dist_nm.sum():,.1f} NM "
+            f"(at most {MAX_SAMPLES:,}); give a larger spacing"
+        )
+    n_seg = np.maximum(1, n_wanted.astype(np.int64))
+    counts = n_seg + 1
+    leg_of = np.repeat(np.arange(n_legs), counts)
+    k = np.arange(counts.sum()) - np.repeat(np.cumsum(counts) - counts, counts)
+    leg_all = np.concatenate([leg_of, np.arange(n_legs)])
+    frac_all = np.concatenate([k / n_seg[leg_of], np.full(n_legs, 0.5)])
+    s_all = frac_all * legs.dist_m[leg_all]
+    n_samples = leg_of.size
+
+    lat, lon, course = legs.positions(s_all, leg_all)
+    first = frac_all == 0.0
+    last = (frac_all == 1.0) & (np.arange(frac_all.size) < n_samples)
+    lat = np.where(first, legs.lat1[leg_all], np.where(last, legs.lat2[leg_all], lat))
+    lon = np.where(first, legs.lon1[leg_all], np.where(last, legs.lon2[leg_all], lon))
+    polar = np.flatnonzero(np.abs(lat) > 90.0 - 1e-6)
+    if polar.size:
+        step = np.where(frac_all[polar] < 0.5, POLE_NUDGE_M, -POLE_NUDGE_M)
+        lat[polar], lon[polar], course[polar] = legs.positions(s_all[polar] + step, leg_all[polar])
+    alt = legs.wps.alt_km.to_numpy()
+    s_alt = alt[:-1][leg_all] + frac_all * (alt[1:][leg_all] - alt[:-1][leg_all])
+    ends = np.cumsum(counts)
+    return _Track(leg_all, frac_all, lat, lon, course, s_alt, n_samples, ends - counts, ends - 1)
+
+
+def _route_grid(grid: Any, track: _Track) -> Any:
+    """The grid of the route (``None``/``auto``: the polar grid of the nearest pole).
+
+    A polar grid given explicitly and used far from its pole warns (the wrong cap is the usual slip);
+    the automatic choice does not (a low-latitude route has no better polar grid).
+    """
+    grid_obj = resolve_grid(grid, track.lat)
+    if grid is not None and not (isinstance(grid, str) and grid.strip().lower() == "auto"):
+        warn_if_far_from_pole(grid_obj, track.lat, "the route")  # the nearest pole's grid is the user's to judge
+    return grid_obj
+
+
+def _references(track: _Track, wps: pd.DataFrame, grid_obj: Any, year: float, model: Any,
+                allow_extrapolation: bool) -> _References:
+    """Field along the track and the courses in the magnetic and grid references."""
+    from .field import field_arrays
+
+    fld = field_arrays(track.lat, track.lon, year, track.alt, model=model, allow_extrapolation=allow_extrapolation)
+    variation = np.asarray(fld["declination_deg"], dtype=np.float64)
+
+    def check_finite(values: np.ndarray, problem: str, advice: str) -> None:
+        bad = np.flatnonzero(~np.isfinite(values))
+        if bad.size:
+            i, leg = int(bad[0]), int(track.leg[bad[0]])
+            raise InputError(
+                f"{problem} at lat {track.lat[i]:.5f}, lon {track.lon[i]:.5f} on leg {leg + 1} "
+                f"({wps.name.iloc[leg]} to {wps.name.iloc[leg + 1]}); {advice}"
+            )
+
+    check_finite(variation, "variation is undefined", "the route passes through a dip pole")
+    convergence = grid_obj.convergence_deg(track.lat, track.lon)
+    check_finite(convergence, f"grid {grid_obj.name} does not cover the route", "choose another grid")
+    return _References(
+        variation=variation,
+        h_nT=np.asarray(fld["horizontal_nT"], dtype=np.float64),
+        uncertainty=np.asarray(fld["declination_uncertainty_deg"], dtype=np.float64),
+        zone_code=np.asarray(fld["zone_code"], dtype=np.int8),
+        magnetic=normalize_heading(track.course - variation),
+        convergence=convergence,
+        grid_course=normalize_heading(track.course - convergence),
+        grivation=grivation_deg(variation, convergence),
+    )
+
+
+def _zones(codes: np.ndarray) -> pd.Categorical:
+    from .field import ZONE_DTYPE
+
+    return pd.Categorical.from_codes(codes, dtype=ZONE_DTYPE)
+
+
+def _samples_table(track: _Track, refs: _References, legs: _Legs) -> pd.DataFrame:
+    """One row per sample point (:data:`SAMPLE_COLUMNS`)."""
+    n = track.n_samples
+    leg = track.leg[:n]
+    names = legs.wps.name.to_numpy(dtype=object)
+    dist_nm = legs.dist_m / NAUTICAL_MILE_M
+    along_leg_nm = track.fraction[:n] * dist_nm[leg]
+    route_start_nm = np.concatenate([[0.0], np.cumsum(dist_nm)[:-1]])
+    columns = {
+        "leg": leg + 1,
+        "from": names[leg],
+        "to": names[leg + 1],
+        "distance_along_leg_nm": along_leg_nm,
+        "distance_along_route_nm": route_start_nm[leg] + along_leg_nm,
+        "lat_deg": track.lat[:n],
+        "lon_deg": track.lon[:n],
+        "alt_km": track.alt[:n],
+        "true_course_deg": track.course[:n],
+        "variation_deg": refs.variation[:n],
+        "magnetic_course_deg": refs.magnetic[:n],
+        "convergence_deg": refs.convergence[:n],
+        "grid_course_deg": refs.grid_course[:n],
+        "grivation_deg": refs.grivation[:n],
+        "horizontal_nT": refs.h_nT[:n],
+        "declination_uncertainty_deg": refs.uncertainty[:n],
+        "zone": _zones(refs.zone_code[:n]),
+    }
+    return pd.DataFrame({name: columns[name] for name in SAMPLE_COLUMNS})
+
+
+def _legs_table(track: _Track, refs: _References, legs: _Legs, along_leg_nm: np.ndarray) -> pd.DataFrame:
+    """One row per leg (:data:`LEG_COLUMNS`): courses and references at start, middle and end, weak-field stretches."""
+    from .field import BLACKOUT_NT, CAUTION_NT
+
+    n = track.n_samples
+    start, end = track.start, track.end
+    mid = n + np.arange(legs.dist_m.size)
+    zone_max = np.maximum.reduceat(refs.zone_code[:n], start)
+    caution, blackout = [], []
+    for i, worst in enumerate(zone_max):
+        part = slice(start[i], end[i] + 1)
+        caution.append(_stretches(along_leg_nm[part], refs.h_nT[part], CAUTION_NT) if worst else "")
+        blackout.append(_stretches(along_leg_nm[part], refs.h_nT[part], BLACKOUT_NT) if worst else "")
+    names = legs.wps.name.to_numpy(dtype=object)
+    columns = {
+        "from": names[:-1],
+        "to": names[1:],
+        "from_lat_deg": legs.lat1,
+        "from_lon_deg": legs.lon1,
+        "to_lat_deg": legs.lat2,
+        "to_lon_deg": legs.lon2,
+        "distance_nm": legs.dist_m / NAUTICAL_MILE_M,
+        "distance_km": legs.dist_m / 1000.0,
+        "min_horizontal_nT": np.minimum.reduceat(refs.h_nT[:n], start),
+        "max_declination_uncertainty_deg": np.maximum.reduceat(refs.uncertainty[:n], start),
+        "zone": _zones(zone_max),
+        "caution_stretches_nm": caution,
+        "blackout_stretches_nm": blackout,
+    }
+    at = {"": start, "_mid": mid, "_end": end}
+    for name, values in (("true_course_deg", track.course), ("magnetic_course_deg", refs.magnetic),
+                         ("grid_course_deg", refs.grid_course), ("variation_deg", refs.variation),
+                         ("grivation_deg", refs.grivation)):
+        for suffix, idx in at.items():
+            columns[name + suffix] = values[idx]
+    return pd.DataFrame({name: columns[name] for name in LEG_COLUMNS})
+
+
 def route(
     waypoints: Any,
     date: Any,
-    alt_km: float = 0.0,
+    alt_km: Any = 0.0,
     grid: Any = None,
     spacing_nm: float = 10.0,
     path: str = "geodesic",
@@ -264,13 +548,17 @@ def route(
         See :func:`read_waypoints`. At least two; consecutive waypoints must differ.
     date : date-like or decimal year
         One date for the whole route.
-    alt_km : float
-        Altitude above the WGS84 ellipsoid (km) of waypoints that give none. Along a
-        leg the altitude changes linearly with distance.
+    alt_km : float or str
+        Altitude above the WGS84 ellipsoid (km, or text with a unit: ``FL350``, ``35000 ft``)
+        of waypoints that give none, at most :data:`headingref.units.ROUTE_HEIGHT_MAX_KM`.
+        Along a leg the altitude changes linearly with distance.
     grid : str, pyproj.CRS, Grid or None
         Grid for grid courses and grivation (see :func:`headingref.headings.parse_grid`).
-        None takes the polar stereographic grid on Greenwich of the hemisphere holding
-        most of the route (``polar`` or ``polar-south``).
+        None or ``"auto"`` takes the polar stereographic grid on Greenwich of the pole the
+        route comes nearest to (``polar`` or ``polar-south``,
+        :func:`headingref.headings.polar_grid_for`). A polar grid given explicitly and used
+        more than 60° of latitude from its pole draws a
+        :class:`~headingref.errors.DataQualityWarning`.
     spacing_nm : float
         Greatest distance between samples along a leg, NM (> 0).
     path : ``"geodesic"`` or ``"rhumb"``
@@ -280,190 +568,32 @@ def route(
     Returns
     -------
     RouteResult
-        ``legs``: ``from, to``, their ``from_lat_deg, from_lon_deg, to_lat_deg,
-        to_lon_deg``, ``distance_nm, distance_km``, true/magnetic course at
-        start, ``_mid`` and ``_end`` (``true_course_deg`` ...), ``grid_course_deg`` and
-        ``grid_course_deg_end``, ``variation_deg`` and ``grivation_deg`` (+ ``_mid``,
+        ``legs`` (columns :data:`LEG_COLUMNS`): ``from, to``, their ``from_lat_deg,
+        from_lon_deg, to_lat_deg, to_lon_deg``, ``distance_nm, distance_km``, true/magnetic
+        course at start, ``_mid`` and ``_end`` (``true_course_deg`` ...), ``grid_course_deg``
+        and ``grid_course_deg_end``, ``variation_deg`` and ``grivation_deg`` (+ ``_mid``,
         ``_end``), ``min_horizontal_nT``, ``max_declination_uncertainty_deg``, ``zone``
         (worst on the leg), ``caution_stretches_nm`` (H below the caution threshold,
         blackout included), ``blackout_stretches_nm``.
-        ``samples``: ``leg, from, to, distance_along_leg_nm, distance_along_route_nm,
-        lat_deg, lon_deg, alt_km, true_course_deg, variation_deg, magnetic_course_deg,
-        convergence_deg, grid_course_deg, grivation_deg, horizontal_nT,
-        declination_uncertainty_deg, zone``.
+        ``samples`` (columns :data:`SAMPLE_COLUMNS`): ``leg, from, to,
+        distance_along_leg_nm, distance_along_route_nm, lat_deg, lon_deg, alt_km,
+        true_course_deg, variation_deg, magnetic_course_deg, convergence_deg,
+        grid_course_deg, grivation_deg, horizontal_nT, declination_uncertainty_deg, zone``.
+        ``zone`` is the ordered categorical of :data:`headingref.field.ZONE_DTYPE`
+        (normal < caution < blackout) in both tables.
     """
-    from .field import BLACKOUT_NT, CAUTION_NT, field_arrays
-
-    if path not in ("geodesic", "rhumb"):
-        raise InputError(f"path {path!r} is not understood; give 'geodesic' or 'rhumb'")
-    try:
-        spacing = float(spacing_nm)
-    except (TypeError, ValueError):
-        raise InputError(f"spacing {spacing_nm!r} is not a number; give NM > 0") from None
-    if not math.isfinite(spacing) or spacing <= 0.0:
-        raise InputError(f"spacing {spacing_nm!r} NM is not usable; give a positive number of NM")
-    wps = read_waypoints(waypoints, alt_km=parse_height_km(alt_km))
+    spacing = _check_options(path, spacing_nm)
+    wps = read_waypoints(waypoints, alt_km=parse_height_km(alt_km, max_km=ROUTE_HEIGHT_MAX_KM))
     year = decimal_year(date)
-    if grid is None:
-        grid = "polar" if np.mean(wps.lat_deg.to_numpy()) >= 0 else "polar-south"
-    grid_obj = parse_grid(grid)
-
-    lat = wps.lat_deg.to_numpy()
-    lon = wps.lon_deg.to_numpy()
-    alt = wps.alt_km.to_numpy()
-    lat1, lat2, lon1, lon2 = lat[:-1], lat[1:], lon[:-1], lon[1:]
-    n_legs = len(lat1)
-    if path == "geodesic":
-        az12, _, dist_m = GEOD.inv(lon1, lat1, lon2, lat2)
-        az12, dist_m = np.asarray(az12, dtype=np.float64), np.asarray(dist_m, dtype=np.float64)
-    else:
-        rhumb_course, dist_m, dlon, psi1, dpsi, m1, m2, small, lon_base = _rhumb_parts(lat1, lon1, lat2, lon2)
-    short = np.flatnonzero(~(dist_m >= MIN_LEG_M))
-    if short.size:
-        i = int(short[0])
-        raise InputError(
-            f"{wps['where'].iloc[i + 1]} repeats {wps['where'].iloc[i]} ({wps.name.iloc[i]} to {wps.name.iloc[i + 1]} "
-            f"is {dist_m[i]:.3g} m long); consecutive waypoints must differ"
-        )
-
-    dist_nm = dist_m / NAUTICAL_MILE_M
-    with np.errstate(over="ignore"):
-        n_wanted = np.ceil(dist_nm / spacing - 1e-9)
-    if n_wanted.sum() + n_legs > MAX_SAMPLES:
-        raise InputError(
-            f"spacing {spacing:g} NM gives {n_wanted.sum() + n_legs:.3g} samples along the route's {dist_nm.sum():,.1f} NM "
-            f"(at most {MAX_SAMPLES:,}); give a larger spacing"
-        )
-    n_seg = np.maximum(1, n_wanted.astype(np.int64))
-    counts = n_seg + 1
-    leg_of = np.repeat(np.arange(n_legs), counts)
-    k = np.arange(counts.sum()) - np.repeat(np.cumsum(counts) - counts, counts)
-    fraction = k / n_seg[leg_of]
-    # one extra point per leg at its middle
-    leg_all = np.concatenate([leg_of, np.arange(n_legs)])
-    frac_all = np.concatenate([fraction, np.full(n_legs, 0.5)])
-    s_all = frac_all * dist_m[leg_all]
-    n_samples = leg_of.size
-
-    def positions(s: np.ndarray, legs: np.ndarray):
-        if path == "geodesic":
-            lo, la, back = GEOD.fwd(lon1[legs], lat1[legs], az12[legs], s)
-            return np.asarray(la), np.asarray(lo), normalize_heading(np.asarray(back) + 180.0)
-        f = s / dist_m[legs]
-        la, lo = _rhumb_points(lat1[legs], lon_base[legs], psi1[legs], dpsi[legs], dlon[legs], m1[legs], m2[legs], small[legs], f)
-        return la, lo, rhumb_course[legs]
-
-    s_lat, s_lon, s_course = positions(s_all, leg_all)
-    # exact waypoint coordinates at leg ends
-    first = frac_all == 0.0
-    last = (frac_all == 1.0) & (np.arange(frac_all.size) < n_samples)
-    s_lat = np.where(first, lat1[leg_all], np.where(last, lat2[leg_all], s_lat))
-    s_lon = np.where(first, lon1[leg_all], np.where(last, lon2[leg_all], s_lon))
-    polar = np.abs(s_lat) > 90.0 - 1e-6
-    if polar.any():
-        idx = np.flatnonzero(polar)
-        step = np.where(frac_all[idx] < 0.5, POLE_NUDGE_M, -POLE_NUDGE_M)
-        la, lo, co = positions(s_all[idx] + step, leg_all[idx])
-        s_lat[idx], s_lon[idx], s_course[idx] = la, lo, co
-    s_alt = alt[:-1][leg_all] + frac_all * (alt[1:][leg_all] - alt[:-1][leg_all])
-
-    fld = field_arrays(s_lat, s_lon, year, s_alt, model=model, allow_extrapolation=allow_extrapolation)
-    variation = np.asarray(fld["declination_deg"], dtype=np.float64)
-    h_nT = np.asarray(fld["horizontal_nT"], dtype=np.float64)
-    unc = np.asarray(fld["declination_uncertainty_deg"], dtype=np.float64)
-
-    def check_finite(values: np.ndarray, problem: str, advice: str) -> None:
-        bad = np.flatnonzero(~np.isfinite(values))
-        if bad.size:
-            i, leg = int(bad[0]), int(leg_all[bad[0]])
-            raise InputError(
-                f"{problem} at lat {s_lat[i]:.5f}, lon {s_lon[i]:.5f} on leg {leg + 1} "
-                f"({wps.name.iloc[leg]} to {wps.name.iloc[leg + 1]}); {advice}"
-            )
-
-    check_finite(variation, "variation is undefined", "the route passes through a dip pole")
-    convergence = grid_obj.convergence_deg(s_lat, s_lon)
-    check_finite(convergence, f"grid {grid_obj.name} does not cover the route", "choose another grid")
-    magnetic = normalize_heading(s_course - variation)
-    grid_course = normalize_heading(s_course - convergence)
-    grivation = grivation_deg(variation, convergence)
-    zone_code = np.where(h_nT < BLACKOUT_NT, 2, np.where(h_nT < CAUTION_NT, 1, 0))
-
-    names = wps.name.to_numpy(dtype=object)
-    along_leg_nm = frac_all[:n_samples] * dist_nm[leg_of]
-    route_start_nm = np.concatenate([[0.0], np.cumsum(dist_nm)[:-1]])
-    samples = pd.DataFrame(
-        {
-            "leg": leg_of + 1,
-            "from": names[leg_of],
-            "to": names[leg_of + 1],
-            "distance_along_leg_nm": along_leg_nm,
-            "distance_along_route_nm": route_start_nm[leg_of] + along_leg_nm,
-            "lat_deg": s_lat[:n_samples],
-            "lon_deg": s_lon[:n_samples],
-            "alt_km": s_alt[:n_samples],
-            "true_course_deg": s_course[:n_samples],
-            "variation_deg": variation[:n_samples],
-            "magnetic_course_deg": magnetic[:n_samples],
-            "convergence_deg": convergence[:n_samples],
-            "grid_course_deg": grid_course[:n_samples],
-            "grivation_deg": grivation[:n_samples],
-            "horizontal_nT": h_nT[:n_samples],
-            "declination_uncertainty_deg": unc[:n_samples],
-            "zone": ZONE_NAMES[zone_code[:n_samples]],
-        }
-    )
-
-    start_idx = np.cumsum(counts) - counts
-    end_idx = np.cumsum(counts) - 1
-    mid_idx = n_samples + np.arange(n_legs)
-    h_min = np.minimum.reduceat(h_nT[:n_samples], start_idx)
-    unc_max = np.maximum.reduceat(unc[:n_samples], start_idx)
-    zone_max = np.maximum.reduceat(zone_code[:n_samples], start_idx)
-    caution, blackout = [], []
-    for leg in range(n_legs):
-        sl = slice(start_idx[leg], end_idx[leg] + 1)
-        if zone_max[leg] == 0:
-            caution.append("")
-            blackout.append("")
-            continue
-        caution.append(_stretches(along_leg_nm[sl], h_nT[sl], CAUTION_NT))
-        blackout.append(_stretches(along_leg_nm[sl], h_nT[sl], BLACKOUT_NT))
-
-    legs = pd.DataFrame(
-        {
-            "from": names[:-1],
-            "to": names[1:],
-            "from_lat_deg": lat1,
-            "from_lon_deg": lon1,
-            "to_lat_deg": lat2,
-            "to_lon_deg": lon2,
-            "distance_nm": dist_nm,
-            "distance_km": dist_m / 1000.0,
-            "true_course_deg": s_course[start_idx],
-            "true_course_deg_mid": s_course[mid_idx],
-            "true_course_deg_end": s_course[end_idx],
-            "magnetic_course_deg": magnetic[start_idx],
-            "magnetic_course_deg_mid": magnetic[mid_idx],
-            "magnetic_course_deg_end": magnetic[end_idx],
-            "grid_course_deg": grid_course[start_idx],
-            "grid_course_deg_end": grid_course[end_idx],
-            "variation_deg": variation[start_idx],
-            "variation_deg_mid": variation[mid_idx],
-            "variation_deg_end": variation[end_idx],
-            "grivation_deg": grivation[start_idx],
-            "grivation_deg_mid": grivation[mid_idx],
-            "grivation_deg_end": grivation[end_idx],
-            "min_horizontal_nT": h_min,
-            "max_declination_uncertainty_deg": unc_max,
-            "zone": ZONE_NAMES[zone_max],
-            "caution_stretches_nm": caution,
-            "blackout_stretches_nm": blackout,
-        }
-    )
-    legs.attrs.update(grid=grid_obj.name, path=path, decimal_year=float(year), spacing_nm=spacing)
-    samples.attrs.update(legs.attrs)
-    return RouteResult(legs, samples)
+    legs = _leg_geometry(wps, path)
+    track = _sample_track(legs, spacing)
+    grid_obj = _route_grid(grid, track)
+    refs = _references(track, wps, grid_obj, year, model, allow_extrapolation)
+    samples = _samples_table(track, refs, legs)
+    legs_table = _legs_table(track, refs, legs, samples.distance_along_leg_nm.to_numpy())
+    legs_table.attrs.update(grid=grid_obj.name, path=path, decimal_year=float(year), spacing_nm=spacing)
+    samples.attrs.update(legs_table.attrs)
+    return RouteResult(legs_table, samples)
 
 
 # --------------------------------------------------------------------------- GeoJSON

@@ -10,15 +10,23 @@ Conventions
   leap years respected (366 days). 2024-07-02 00:00 is 2024 + 183/366. Naive times
   are taken as UTC; aware ones are converted to UTC.
 - Heights are above the WGS84 ellipsoid in km. 1 ft = 0.3048 m exactly
-  (international foot, 1959 agreement). A flight level ``FLnnn`` is taken as
-  ``nnn * 100 ft`` of height above the ellipsoid: a pressure altitude is not a
-  geometric height, but the few hundred metres between them change the main field
-  by well under 10 nT and the declination by far less than the model's own
-  uncertainty.
+  (international foot, 1959 agreement). In a CSV a height carries its unit, in every
+  value (``450 m``, ``35000 ft``, ``FL350``) or in the column name (``alt_m``,
+  ``alt_ft``, ``alt_km``); a bare number in a column named only ``alt`` is refused
+  (:func:`height_column`), and a waypoint or base above 30 km is refused as a unit slip.
+- A flight level ``FLnnn`` is a pressure altitude, ``nnn * 100 ft`` in the ICAO
+  Standard Atmosphere; plain ``FL350`` is taken as 35,000 ft of height. That is an
+  approximation: in a cold column (ISA-35, low QNH) FL350 can lie about 1.5 km below
+  10.67 km, which changes the total field by about 35 nT at high latitude (the radial
+  gradient of F is about -3F/r, some -27 nT/km for F = 57,000 nT) and the declination by
+  far less than the model's own uncertainty. ``FL350 ISA-20`` gives the temperature
+  deviation of the column and is converted hypsometrically
+  (:func:`pressure_altitude_height_km`, ICAO Doc 7488/3).
 
 Public API: :func:`decimal_year`, :func:`timestamp_from_decimal_year`,
-:func:`parse_coordinate`, :func:`parse_height_km`, :func:`format_dm`,
-:data:`FOOT_M`.
+:func:`parse_coordinate`, :func:`format_coordinate_compact`, :func:`parse_height_km`,
+:func:`height_column`, :func:`isa_pressure_pa`, :func:`pressure_altitude_height_km`,
+:func:`format_dm`, :data:`FOOT_M`.
 
 >>> round(float(decimal_year("2024-07-02")), 6)
 2024.5
@@ -165,24 +173,97 @@ def _plain_number(text: str) -> float | None:
         return None
 
 
+_COMPACT_RE = re.compile(r"^\s*(?P<pre>[NSEWnsew])?(?P<digits>\d{4,7})(?P<frac>[.,]\d+)?(?P<post>[NSEWnsew])?\s*$")
+
+
+def _coordinate_accepted(kind: str) -> str:
+    if kind == "lat":
+        return ("decimal degrees (61.175, -61.175), degrees/minutes/seconds with N or S (N61°10.5′, 61 10 30 S), "
+                "or the compact trade form DDMM[.m] or DDMMSS with N or S (6110N, N6110.5, 611030S)")
+    return ("decimal degrees (-149.9), degrees/minutes/seconds with E or W (149 54 30 W, W149°54.5′), "
+            "or the compact trade form DDDMM[.m] or DDDMMSS with E or W (14954W, W14954.5, 1495430W)")
+
+
+def _parse_compact(raw: str, kind: str) -> float | None:
+    """The compact trade form (``7443N``, ``N7443.0``, ``09458W``, ``744330N``), or None if not that form.
+
+    Latitude: 4 digits DDMM or 6 digits DDMMSS; longitude: 5 digits DDDMM or 7 digits DDDMMSS;
+    a decimal fraction belongs to the last unit; a hemisphere letter before or after is required
+    (common practice: the ICAO flight-plan position forms, ICAO Doc 4444 Appendix 2, from memory).
+    """
+    match = _COMPACT_RE.match(raw)
+    if not match or bool(match["pre"]) == bool(match["post"]):
+        return None
+    digits = match["digits"]
+    lengths = (4, 6) if kind == "lat" else (5, 7)
+    if len(digits) not in lengths:
+        return None
+    d = 2 if kind == "lat" else 3
+    deg, minutes = int(digits[:d]), int(digits[d : d + 2])
+    seconds = int(digits[d + 2 :]) if len(digits) == lengths[1] else 0
+    frac = float("0" + match["frac"].replace(",", ".")) if match["frac"] else 0.0
+    if len(digits) == lengths[1]:
+        seconds += frac
+    else:
+        minutes += frac
+    if minutes >= 60.0 or seconds >= 60.0:
+        raise InputError(f"{'latitude' if kind == 'lat' else 'longitude'} {raw!r} has minutes or seconds of 60 or more")
+    value = deg + minutes / 60.0 + seconds / 3600.0
+    hemi = (match["pre"] or match["post"]).upper()
+    if hemi not in ("NS" if kind == "lat" else "EW"):
+        return None
+    return -value if hemi in "SW" else value
+
+
+def format_coordinate_compact(value_deg: float, kind: str, seconds: bool = False, decimals: int = 0,
+                              letter_first: bool = False) -> str:
+    """Format a latitude or longitude in the compact trade form ``7443N`` / ``W09458.0`` / ``744330N``.
+
+    Minutes (or seconds with ``seconds=True``) get ``decimals`` decimals; rounding carries into
+    the degrees. The inverse of the compact form :func:`parse_coordinate` accepts.
+    """
+    if kind not in ("lat", "lon"):
+        raise ValueError("kind must be 'lat' or 'lon'")
+    if not math.isfinite(value_deg) or abs(value_deg) > (90.0 if kind == "lat" else 180.0):
+        raise InputError(f"{kind} {value_deg!r} cannot be formatted; give finite degrees within range")
+    unit = 3600.0 if seconds else 60.0
+    scale = 10**decimals
+    total = round(abs(value_deg) * unit * scale) / scale
+    deg = int(total // unit)
+    rest = total - deg * unit
+    if seconds:
+        mins = int(rest // 60)
+        last = rest - 60 * mins
+        body = f"{deg:0{2 if kind == 'lat' else 3}d}{mins:02d}"
+    else:
+        last = rest
+        body = f"{deg:0{2 if kind == 'lat' else 3}d}"
+    width = 2 + (decimals + 1 if decimals else 0)
+    body += f"{last:0{width}.{decimals}f}"
+    letter = ("N" if value_deg >= 0 or total == 0 else "S") if kind == "lat" else ("E" if value_deg >= 0 or total == 0 else "W")
+    return letter + body if letter_first else body + letter
+
+
 def parse_coordinate(text: Any, kind: str) -> float:
     """Parse a latitude (``kind='lat'``) or longitude (``kind='lon'``) in decimal degrees.
 
     Accepted forms: decimal degrees with a sign (``61.175``, ``-149.9``); degrees and
     minutes, or degrees, minutes and seconds, separated by spaces, ``°``, ``′``/``'``,
     ``″``/``"`` or ``:``, with a hemisphere letter before or after (``N61°10.5′``,
-    ``149 54 30 W``, ``61:10:30N``). Minutes and seconds must be below 60. North and
-    east are positive. Raises :class:`InputError` naming the text otherwise.
+    ``149 54 30 W``, ``61:10:30N``); the compact trade form without separators and with a
+    hemisphere letter (``7443N``, ``N7443.0``, ``09458W``, ``W09458.0``, ``744330N``;
+    :func:`format_coordinate_compact`). Minutes and seconds must be below 60. North and
+    east are positive. Raises :class:`InputError` naming the text and listing the forms otherwise.
+
+    >>> parse_coordinate("7443N", "lat"), parse_coordinate("W09458.0", "lon")
+    (74.71666666666667, -94.96666666666667)
     """
     if kind not in ("lat", "lon"):
         raise ValueError("kind must be 'lat' or 'lon'")
     name = "latitude" if kind == "lat" else "longitude"
     limit = 90.0 if kind == "lat" else 180.0
     letters = "NS" if kind == "lat" else "EW"
-    accepted = (
-        f"decimal degrees (e.g. {'61.175' if kind == 'lat' else '-149.9'}) or degrees/minutes/seconds with "
-        f"{'N or S' if kind == 'lat' else 'E or W'} (e.g. {'N61°10.5′' if kind == 'lat' else '149 54 30 W'})"
-    )
+    accepted = _coordinate_accepted(kind)
     if isinstance(text, (bool, np.bool_)):
         raise InputError(f"{name} {text!r} is not a number; give {accepted}")
     if isinstance(text, (int, float, np.integer, np.floating)):
@@ -193,71 +274,183 @@ def parse_coordinate(text: Any, kind: str) -> float:
         raw = str(text)
         match = _COORD_RE.match(raw)
         plain = _plain_number(raw)
+        compact = None if plain is not None else _parse_compact(raw, kind)
         if plain is not None:
-            return parse_coordinate(plain, kind)
-        if not match or (match["pre"] and match["post"]):
+            if not math.isfinite(plain):
+                raise InputError(f"{name} {raw!r} is not a finite number; give {accepted}")
+            value = plain
+        elif compact is not None:
+            value = compact
+        elif not match or (match["pre"] and match["post"]):
             raise InputError(f"{name} {raw!r} is not understood; give {accepted}")
-        hemi = (match["pre"] or match["post"] or "").upper()
-        if hemi and hemi not in letters:
-            raise InputError(f"{name} {raw!r} has hemisphere letter {hemi!r}; a {name} takes {letters[0]} or {letters[1]}")
-        if hemi and match["sign"]:
-            raise InputError(f"{name} {raw!r} has both a sign and a hemisphere letter; give one of them")
-
-        def num(part: str | None) -> float:
-            return float(part.replace(",", ".")) if part else 0.0
-
-        deg, minutes, seconds = num(match["deg"]), num(match["min"]), num(match["sec"])
-        if match["min"] and "." in match["deg"].replace(",", "."):
-            raise InputError(f"{name} {raw!r} has decimal degrees followed by minutes; give one form")
-        if minutes >= 60.0 or seconds >= 60.0:
-            raise InputError(f"{name} {raw!r} has minutes or seconds of 60 or more")
-        value = deg + minutes / 60.0 + seconds / 3600.0
-        if match["sign"] in ("-", "−") or hemi in ("S", "W"):
-            value = -value
+        else:
+            value = _parse_coordinate_match(match, raw, name, letters)
     if abs(value) > limit:
-        raise InputError(f"{name} {text!r} is outside -{limit:g} to {limit:g} degrees")
+        raise InputError(f"{name} {text!r} is outside -{limit:g} to {limit:g} degrees; give {accepted}")
     return value
 
 
+def _parse_coordinate_match(match: re.Match, raw: str, name: str, letters: str) -> float:
+    """Degrees from a match of the separated degrees/minutes/seconds form."""
+    hemi = (match["pre"] or match["post"] or "").upper()
+    if hemi and hemi not in letters:
+        raise InputError(f"{name} {raw!r} has hemisphere letter {hemi!r}; a {name} takes {letters[0]} or {letters[1]}")
+    if hemi and match["sign"]:
+        raise InputError(f"{name} {raw!r} has both a sign and a hemisphere letter; give one of them")
+
+    def num(part: str | None) -> float:
+        return float(part.replace(",", ".")) if part else 0.0
+
+    deg, minutes, seconds = num(match["deg"]), num(match["min"]), num(match["sec"])
+    if match["min"] and "." in match["deg"].replace(",", "."):
+        raise InputError(f"{name} {raw!r} has decimal degrees followed by minutes; give one form")
+    if minutes >= 60.0 or seconds >= 60.0:
+        raise InputError(f"{name} {raw!r} has minutes or seconds of 60 or more")
+    value = deg + minutes / 60.0 + seconds / 3600.0
+    return -value if match["sign"] in ("-", "−") or hemi in ("S", "W") else value
+
+
 _HEIGHT_RE = re.compile(
-    r"^\s*(?:(?P<fl>FL)\s*(?P<flnum>\d{1,3})|(?P<num>[-+]?\d+(?:\.\d*)?(?:[eE][-+]?\d+)?|[-+]?\.\d+)\s*(?P<unit>km|m|ft|feet|')?)\s*$",
+    r"^\s*(?:(?P<fl>FL)\s*(?P<flnum>\d{1,3})(?:\s+ISA\s*(?P<dt>[-+−]\s*\d+(?:\.\d*)?)\s*(?:K|C|°C)?)?"
+    r"|(?P<num>[-+]?\d+(?:\.\d*)?(?:[eE][-+]?\d+)?|[-+]?\.\d+)\s*(?P<unit>km|m|ft|feet|')?)\s*$",
     re.IGNORECASE,
 )
 
 HEIGHT_MIN_KM = -1.0
 HEIGHT_MAX_KM = 1000.0
+ROUTE_HEIGHT_MAX_KM = 30.0
+"""Highest height (km) accepted for a waypoint or a compass base: a cell above it is refused as a likely
+unit slip (``350`` meant as FL350), not read as 350 km."""
+
+HEIGHT_UNITS = {"km": 1.0, "m": 1e-3, "ft": FOOT_M * 1e-3, "feet": FOOT_M * 1e-3, "'": FOOT_M * 1e-3}
+"""Factors to km of the height units accepted in text and in column names (``alt_ft``)."""
+
+# ICAO Standard Atmosphere (ICAO Doc 7488/3, 1993; identical to the U.S. Standard Atmosphere 1976 below
+# 32 km): sea-level temperature and pressure, tropospheric lapse rate, tropopause, gas constant of dry air,
+# standard gravity, and the Earth radius of the geopotential-to-geometric height conversion.
+ISA_T0_K = 288.15
+ISA_P0_PA = 101325.0
+ISA_LAPSE_K_PER_M = 0.0065
+ISA_TROPOPAUSE_M = 11000.0
+ISA_R_J_PER_KG_K = 287.05287
+ISA_G0_MPS2 = 9.80665
+ISA_EARTH_RADIUS_M = 6356766.0
+_ISA_T11_K = ISA_T0_K - ISA_LAPSE_K_PER_M * ISA_TROPOPAUSE_M  # 216.65 K
+_ISA_EXP = ISA_G0_MPS2 / (ISA_R_J_PER_KG_K * ISA_LAPSE_K_PER_M)  # 5.25588
+_ISA_P11_PA = ISA_P0_PA * (_ISA_T11_K / ISA_T0_K) ** _ISA_EXP  # 22632 Pa
 
 
-def parse_height_km(text: Any, default_unit: str = "km") -> float:
+def isa_pressure_pa(geopotential_m: Any) -> Any:
+    """Pressure (Pa) of the ICAO Standard Atmosphere at a geopotential height (m), 0 to 20 km.
+
+    Troposphere ``p = p0 (T/T0)^(g0/(R L))`` with ``T = T0 - L H``; isothermal layer above
+    11 km ``p = p11 exp(-g0 (H - 11000) / (R T11))`` (ICAO Doc 7488/3, 1993, eqs. for the
+    hydrostatic ISA layers).
+    """
+    h = np.asarray(geopotential_m, dtype=np.float64)
+    if np.any(~np.isfinite(h)) or np.any(h < -5000.0) or np.any(h > 20000.0):
+        raise InputError(f"geopotential height {geopotential_m!r} m is outside -5,000 to 20,000 m of this ISA model")
+    trop = ISA_P0_PA * ((ISA_T0_K - ISA_LAPSE_K_PER_M * h) / ISA_T0_K) ** _ISA_EXP
+    strat = _ISA_P11_PA * np.exp(-ISA_G0_MPS2 * (h - ISA_TROPOPAUSE_M) / (ISA_R_J_PER_KG_K * _ISA_T11_K))
+    out = np.where(h <= ISA_TROPOPAUSE_M, trop, strat)
+    return float(out) if np.ndim(out) == 0 else out
+
+
+def pressure_altitude_height_km(pressure_altitude_m: float, isa_deviation_K: float = 0.0) -> float:
+    """Geometric height (km above mean sea level) of a pressure altitude in a column ISA + dT.
+
+    The hypsometric equation ``dz = (T / T_ISA) dH`` integrated from standard sea-level pressure
+    up to the pressure surface, with the column temperature ``T = T_ISA(H) + dT`` at every level:
+    ``Z = H + dT * integral dH / T_ISA(H)`` (geopotential metres), then geometric height
+    ``z = r Z / (r - Z)`` with ``r = 6356766 m`` (ICAO Doc 7488/3, 1993). Assumes the standard
+    sea-level pressure (QNH 1013.25 hPa); a low QNH lowers the surface further. Mean sea level is
+    taken as the ellipsoid (the geoid lies within about 100 m of it).
+    """
+    h = float(pressure_altitude_m)
+    if not -5000.0 <= h <= 20000.0 or not math.isfinite(isa_deviation_K) or abs(isa_deviation_K) > 60.0:
+        raise InputError(
+            f"pressure altitude {h:g} m with ISA{isa_deviation_K:+g} is outside -5,000 to 20,000 m and ISA-60 to ISA+60"
+        )
+    trop_top = min(h, ISA_TROPOPAUSE_M)
+    integral = -math.log((ISA_T0_K - ISA_LAPSE_K_PER_M * trop_top) / ISA_T0_K) / ISA_LAPSE_K_PER_M
+    if h > ISA_TROPOPAUSE_M:
+        integral += (h - ISA_TROPOPAUSE_M) / _ISA_T11_K
+    z_geopotential = h + isa_deviation_K * integral
+    return ISA_EARTH_RADIUS_M * z_geopotential / (ISA_EARTH_RADIUS_M - z_geopotential) / 1000.0
+
+
+def _height_accepted(default_unit: str | None) -> str:
+    if default_unit is None:
+        return "a value with a unit (450 m, 35000 ft, 3.2 km) or a flight level (FL350, FL350 ISA-20)"
+    return f"a number of {default_unit}, or a value with a unit (450 m, 35000 ft, 3.2 km), or a flight level (FL350)"
+
+
+def parse_height_km(text: Any, default_unit: str | None = "km", max_km: float = HEIGHT_MAX_KM) -> float:
     """Parse a height above the WGS84 ellipsoid and return it in km.
 
-    Accepted: a number in ``default_unit`` (``km``, ``m`` or ``ft``), or a number
-    with a unit (``3.2km``, ``450 m``, ``35000 ft``), or a flight level (``FL350``,
-    taken as 35,000 ft; see the module docstring). Heights must lie between
-    -1 km and 1,000 km.
+    Accepted: a number in ``default_unit`` (``km``, ``m`` or ``ft``; ``None`` refuses a number
+    without a unit), or a number with a unit (``3.2km``, ``450 m``, ``35000 ft``), or a flight
+    level (``FL350``, taken as 35,000 ft; see the module docstring), optionally with the column's
+    temperature deviation from ISA (``FL350 ISA-20``: geometric height by
+    :func:`pressure_altitude_height_km`). Heights must lie between -1 km and ``max_km``
+    (1,000 km; :data:`ROUTE_HEIGHT_MAX_KM` for waypoints and bases, where a larger number is
+    refused as a likely unit slip with a suggestion).
     """
-    factors = {"km": 1.0, "m": 1e-3, "ft": FOOT_M * 1e-3, "feet": FOOT_M * 1e-3, "'": FOOT_M * 1e-3}
-    if default_unit not in factors:
-        raise ValueError("default_unit must be km, m or ft")
-    accepted = "a number of km, or a value with a unit (450 m, 35000 ft, 3.2 km), or a flight level (FL350)"
+    if default_unit is not None and default_unit not in HEIGHT_UNITS:
+        raise ValueError("default_unit must be km, m, ft or None")
+    accepted = _height_accepted(default_unit)
     if isinstance(text, (bool, np.bool_)):
         raise InputError(f"height {text!r} is not understood; give {accepted}")
     if isinstance(text, (int, float, np.integer, np.floating)):
-        value_km = float(text) * factors[default_unit]
+        if default_unit is None and text != 0:  # zero is zero in every unit
+            raise InputError(f"height {text!r} has no unit; give {accepted}, or name the column with its unit (alt_ft, alt_m, alt_km)")
+        value_km = float(text) * HEIGHT_UNITS[default_unit]
     else:
         match = _HEIGHT_RE.match(str(text))
         if not match:
             raise InputError(f"height {text!r} is not understood; give {accepted}")
         if match["fl"]:
-            value_km = int(match["flnum"]) * 100 * FOOT_M * 1e-3
+            feet = int(match["flnum"]) * 100
+            if match["dt"]:
+                deviation = float(re.sub(r"\s", "", match["dt"]).replace("−", "-"))
+                value_km = pressure_altitude_height_km(feet * FOOT_M, deviation)
+            else:
+                value_km = feet * FOOT_M * 1e-3
         else:
-            unit = (match["unit"] or default_unit).lower()
-            value_km = float(match["num"]) * factors[unit]
+            if match["unit"] is None and default_unit is None and float(match["num"]) != 0.0:
+                raise InputError(
+                    f"height {text!r} has no unit; give {accepted}, or name the column with its unit (alt_ft, alt_m, alt_km)"
+                )
+            unit = (match["unit"] or default_unit or "km").lower()
+            value_km = float(match["num"]) * HEIGHT_UNITS[unit]
     if not math.isfinite(value_km):
         raise InputError(f"height {text!r} is not a finite number")
-    if not HEIGHT_MIN_KM <= value_km <= HEIGHT_MAX_KM:
-        raise InputError(f"height {text!r} ({value_km:g} km) is outside -1 km to 1000 km above the ellipsoid")
+    if value_km > max_km and max_km < HEIGHT_MAX_KM and value_km <= HEIGHT_MAX_KM:
+        raise InputError(
+            f"height {text!r} is {value_km:g} km, above the {max_km:g} km a waypoint or base can have; "
+            "for a flight level or feet write FL350 or 35000 ft"
+        )
+    if not HEIGHT_MIN_KM <= value_km <= min(max_km, HEIGHT_MAX_KM):
+        raise InputError(
+            f"height {text!r} ({value_km:g} km) is outside -1 km to {min(max_km, HEIGHT_MAX_KM):g} km above the ellipsoid"
+        )
     return value_km
+
+
+def height_column(columns: Any, base: str = "alt") -> tuple[str | None, str | None]:
+    """Find the height column of a table: ``base`` (unit in each value) or ``base_km/_m/_ft``.
+
+    Returns ``(column name, unit)``; the unit is None for the plain ``base`` column (each value
+    must then carry its unit, :func:`parse_height_km` with ``default_unit=None``; a bare 0 is
+    accepted, zero in every unit), and
+    ``(None, None)`` when the table has no height column. Two height columns are refused.
+    """
+    names = [str(c) for c in columns]
+    found = [(c, None) for c in names if c == base]
+    found += [(c, u) for c in names for u in ("km", "m", "ft") if c == f"{base}_{u}"]
+    if len(found) > 1:
+        raise InputError(f"columns {', '.join(c for c, _ in found)} all give the height; keep one")
+    return found[0] if found else (None, None)
 
 
 def format_dm(angle_deg: float, positive: str = "E", negative: str = "W", decimals: int = 0) -> str:

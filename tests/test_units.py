@@ -14,10 +14,15 @@ from headingref import io
 from headingref.errors import InputError
 from headingref.units import (
     FOOT_M,
+    ROUTE_HEIGHT_MAX_KM,
     decimal_year,
+    format_coordinate_compact,
     format_dm,
+    height_column,
+    isa_pressure_pa,
     parse_coordinate,
     parse_height_km,
+    pressure_altitude_height_km,
     timestamp_from_decimal_year,
 )
 
@@ -168,3 +173,144 @@ def test_atomic_write_leaves_nothing_on_failure(tmp_path):
 def test_calendar_dates_come_back_exact(day):
     # A date must not come back as 23:59:59.999 of the day before (it would print the wrong day).
     assert timestamp_from_decimal_year(decimal_year(day.isoformat())) == pd.Timestamp(day)
+
+
+# --------------------------------------------------------------------------- heights: units, flight levels, ISA
+
+
+def test_height_needs_a_unit_where_the_column_has_none():
+    # A plain number in a unit-less height column is refused (our documented rule, README "Units");
+    # a bare zero is zero in every unit.
+    with pytest.raises(InputError, match="no unit"):
+        parse_height_km("350", default_unit=None)
+    with pytest.raises(InputError, match="no unit"):
+        parse_height_km(350.0, default_unit=None)
+    assert parse_height_km("0", default_unit=None) == 0.0
+    assert parse_height_km("120 m", default_unit=None) == pytest.approx(0.12)
+    assert parse_height_km("FL350", default_unit=None) == pytest.approx(10.668)  # 35,000 ft x 0.3048 m (1959)
+
+
+def test_route_height_above_30_km_suggests_flight_level():
+    with pytest.raises(InputError, match=r"350 km.*FL350 or 35000 ft"):
+        parse_height_km(350, max_km=ROUTE_HEIGHT_MAX_KM)
+    with pytest.raises(InputError, match="FL350"):
+        parse_height_km("350", default_unit="km", max_km=ROUTE_HEIGHT_MAX_KM)
+    assert parse_height_km("29 km", max_km=ROUTE_HEIGHT_MAX_KM) == 29.0
+
+
+@pytest.mark.parametrize(
+    "columns,expected",
+    [(["name", "lat", "lon"], (None, None)), (["name", "alt"], ("alt", None)), (["alt_ft"], ("alt_ft", "ft")),
+     (["x", "alt_m"], ("alt_m", "m")), (["alt_km"], ("alt_km", "km"))],
+)
+def test_height_column_names_carry_the_unit(columns, expected):
+    assert height_column(columns) == expected
+
+
+def test_two_height_columns_refused():
+    with pytest.raises(InputError, match="alt, alt_ft"):
+        height_column(["alt", "alt_ft"])
+
+
+@pytest.mark.parametrize(
+    "geopotential_m,pressure_pa,tol",
+    [
+        (0.0, 101325.0, 1e-9),  # ICAO Doc 7488/3 (1993), sea level
+        (11000.0, 22632.06, 0.05),  # ICAO Doc 7488/3 = U.S. Standard Atmosphere 1976 Table 4, tropopause (from memory)
+        (20000.0, 5474.89, 0.05),  # U.S. Standard Atmosphere 1976 Table 4, base of the 20 km layer (from memory)
+        (1000.0, 89874.6, 0.1),  # U.S. Standard Atmosphere 1976, H = 1 km geopotential (from memory)
+    ],
+)
+def test_isa_pressure_matches_standard_tables(geopotential_m, pressure_pa, tol):
+    assert isa_pressure_pa(geopotential_m) == pytest.approx(pressure_pa, abs=tol)
+
+
+def test_isa_column_gives_geopotential_to_geometric_only():
+    # With no temperature deviation the pressure altitude is the geopotential height; geometric height
+    # z = r H / (r - H), r = 6356766 m (ICAO Doc 7488/3; U.S. Standard Atmosphere 1976 eq. 18).
+    h = 35000 * FOOT_M
+    assert pressure_altitude_height_km(h, 0.0) == pytest.approx(6356766.0 * h / (6356766.0 - h) / 1000.0, abs=1e-12)
+    assert parse_height_km("FL350 ISA+0") == pytest.approx(10.6859, abs=1e-4)
+
+
+@pytest.mark.parametrize("deviation", [-35.0, -10.0, 15.0])
+def test_hypsometric_height_matches_numerical_integration(deviation):
+    # First principles: hydrostatic balance dZ = -(R T / g0) dp / p (hypsometric equation) integrated
+    # numerically over pressure, with the column at ISA + dT at every pressure level (scipy quad),
+    # against the closed form used in units.pressure_altitude_height_km.
+    from scipy.integrate import quad
+
+    r_air, g0, t0, lapse, p0 = 287.05287, 9.80665, 288.15, 0.0065, 101325.0  # ICAO Doc 7488/3 constants
+    expo = g0 / (r_air * lapse)
+
+    def std_height(p):  # ISA geopotential height of a pressure, troposphere (FL350 stays below 11 km)
+        return t0 / lapse * (1.0 - (p / p0) ** (1.0 / expo))
+
+    p_top = isa_pressure_pa(35000 * FOOT_M)
+    z, _ = quad(lambda p: r_air * (t0 - lapse * std_height(p) + deviation) / (g0 * p), p_top, p0)
+    geometric = 6356766.0 * z / (6356766.0 - z) / 1000.0
+    assert parse_height_km(f"FL350 ISA{deviation:+g}") == pytest.approx(geometric, abs=1e-6)
+
+
+def test_cold_column_flight_level_lies_far_below_its_nominal_height():
+    # README claim: in a cold column FL350 can lie ~1.5 km below 10.67 km. ISA-35 at standard QNH:
+    below_km = 10.668 - parse_height_km("FL350 ISA-35")
+    assert 1.3 < below_km < 1.6
+
+
+@pytest.mark.parametrize("text", ["FL350 ISA-99", "FL350 ISA", "FL350 ISA+x"])
+def test_bad_isa_deviation(text):
+    with pytest.raises(InputError):
+        parse_height_km(text)
+
+
+# --------------------------------------------------------------------------- compact trade coordinates
+
+
+@pytest.mark.parametrize(
+    "text,kind,value",
+    [
+        ("7443N", "lat", 74 + 43 / 60),  # DDMM with a letter (ICAO flight-plan position form, Doc 4444 App. 2; from memory)
+        ("N7443.0", "lat", 74 + 43 / 60),
+        ("09458W", "lon", -(94 + 58 / 60)),  # DDDMM
+        ("W09458.0", "lon", -(94 + 58 / 60)),
+        ("7443.5S", "lat", -(74 + 43.5 / 60)),
+        ("744330N", "lat", 74 + 43 / 60 + 30 / 3600),  # DDMMSS
+        ("0945830E", "lon", 94 + 58 / 60 + 30 / 3600),  # DDDMMSS
+        ("18000W", "lon", -180.0),
+    ],
+)
+def test_compact_trade_coordinates(text, kind, value):
+    assert parse_coordinate(text, kind) == pytest.approx(value, abs=1e-12)
+
+
+@pytest.mark.parametrize(
+    "text,kind",
+    [("7443", "lat"), ("7443W", "lat"), ("09458N", "lon"), ("7463N", "lat"), ("9100N", "lat"), ("N7443N", "lat"),
+     ("07443N", "lat"), ("9458W", "lon"), ("18100E", "lon")],
+)
+def test_bad_compact_coordinates_list_the_forms(text, kind):
+    with pytest.raises(InputError) as info:
+        parse_coordinate(text, kind)
+    message = str(info.value)
+    assert text in message and "\n" not in message  # one line naming the value
+
+
+def test_unknown_coordinate_lists_compact_form():
+    with pytest.raises(InputError, match=r"compact trade form DDDMM\[\.m\]"):
+        parse_coordinate("W9458", "lon")
+
+
+@given(st.floats(-90.0, 90.0), st.booleans(), st.integers(0, 3), st.booleans())
+def test_compact_latitude_round_trip(lat, seconds, decimals, letter_first):
+    text = format_coordinate_compact(lat, "lat", seconds=seconds, decimals=decimals, letter_first=letter_first)
+    unit = 3600.0 if seconds else 60.0
+    assert abs(parse_coordinate(text, "lat") - lat) <= 0.5 / unit / 10**decimals + 1e-12
+
+
+@given(st.floats(-180.0, 180.0), st.booleans(), st.integers(0, 3), st.booleans())
+def test_compact_longitude_round_trip(lon, seconds, decimals, letter_first):
+    text = format_coordinate_compact(lon, "lon", seconds=seconds, decimals=decimals, letter_first=letter_first)
+    unit = 3600.0 if seconds else 60.0
+    back = parse_coordinate(text, "lon")
+    assert abs(back - lon) <= 0.5 / unit / 10**decimals + 1e-12
