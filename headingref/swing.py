@@ -42,12 +42,40 @@ compass reads ``c``) needs the root of ``h - dev(h) = c``, solved by Newton's me
 :meth:`DeviationCurve.magnetic_from_compass_deg` (unique while ``|d dev/dh| < 1``, i.e. for any
 curve with coefficients summing well under about 57 degrees).
 
+Verdict: as measured and after compensation
+--------------------------------------------
+Two deviations are judged, each against its limit (both 10 degrees by default, 14 CFR 23.1327(a)(2),
+25.1327(b), 29.1327(b): "the compensated installation may not have a deviation, in level flight,
+greater than 10 degrees on any heading"):
+
+- *as measured*: the deviation observed on each reading, ``magnetic - compass``: what the compass
+  shows today. This is the installation's deviation when the swing is a check swing.
+- *after compensation*: the deviation left once the compensator removes B and C, ``observed -
+  (B sin h + C cos h)`` on each reading, i.e. the A, D and E terms (which a direct-reading
+  compensator cannot remove) plus the reading noise. A *prediction*: a check swing after adjusting
+  the compensator must confirm it (AC 43.13-1B CHG 1, para. 12-37: the swing compares the
+  deviations with those on the deviation card).
+
+``verdict`` uses the basis named by ``verdict_on`` (default ``'as_measured'``: a swing with B = 12
+degrees fails until the compass is compensated and swung again); both verdicts are always given.
+
+Methods
+-------
+``method='least_squares'`` (default) fits any number of readings. ``method='handbook'`` uses the
+approximate-coefficient formulas of the Handbook of Magnetic Compass Adjustment (NGA 2004, formerly
+Pub. 226, art. 501) on the eight principal headings, ``A = (N+NE+E+SE+S+SW+W+NW)/8``,
+``B = (E - W)/2``, ``C = (N - S)/2``, ``D = (NE + SW - SE - NW)/4``, ``E = (N + S - E - W)/4``, or,
+with readings on the four cardinal headings only, the same with ``A = (N+E+S+W)/4`` and no D. Both
+results are computed whenever the readings include those headings and are shown side by side
+(:attr:`SwingAnalysis.comparison`).
+
 Public API
 ----------
 :func:`deviation_from_readings`, :func:`fit_deviation`, :func:`eight_point_coefficients`,
-:func:`analyse_swing`, :func:`read_swing_csv`, :func:`correction_card`,
-:class:`DeviationCurve`, :class:`DeviationFit`, :class:`SwingAnalysis`, :data:`DEFAULT_LIMIT_DEG`,
-:data:`COEFFICIENT_MEANINGS`.
+:func:`four_point_coefficients`, :func:`handbook_coefficients`, :func:`analyse_swing`,
+:func:`read_swing_csv`, :func:`correction_card`, :func:`card_html`, :func:`base_link`,
+:class:`DeviationCurve`, :class:`DeviationFit`, :class:`SwingAnalysis`, :class:`CardDetails`,
+:data:`DEFAULT_LIMIT_DEG`, :data:`COEFFICIENT_MEANINGS`, :data:`COMPASS_POINTS_DEG`.
 
 >>> import numpy as np
 >>> from headingref.swing import analyse_swing
@@ -56,8 +84,8 @@ Public API
 >>> result = analyse_swing(headings, headings - curve_dev)
 >>> round(result.curve.A_deg, 6), round(result.curve.B_deg, 6)
 (1.0, 2.0)
->>> result.verdict
-'pass'
+>>> result.verdict, result.verdict_basis
+('pass', 'as_measured')
 >>> result.card.steer_compass.iloc[3]  # for magnetic 090 steer compass 087
 '087'
 """
@@ -66,6 +94,7 @@ from __future__ import annotations
 
 import math
 import os
+import re
 import warnings
 from collections.abc import Sequence
 from dataclasses import dataclass, field
@@ -78,15 +107,21 @@ from .headings import format_heading, normalize_heading, wrap_angle
 
 __all__ = [
     "COEFFICIENT_MEANINGS",
+    "COMPASS_POINTS_DEG",
     "DEFAULT_LIMIT_DEG",
+    "CardDetails",
     "DeviationCurve",
     "DeviationFit",
     "SwingAnalysis",
     "analyse_swing",
+    "base_link",
+    "card_html",
     "correction_card",
     "deviation_from_readings",
     "eight_point_coefficients",
     "fit_deviation",
+    "four_point_coefficients",
+    "handbook_coefficients",
     "read_swing_csv",
 ]
 
@@ -107,6 +142,30 @@ INFLATION_WARN = 2.0
 swing of the same size (our threshold: the coefficient then carries four times the variance)."""
 
 DEFAULT_CARD_HEADINGS_DEG = tuple(float(h) for h in range(0, 360, 30))
+"""Card headings every 30 degrees: 14 CFR 23.1547(d) asks for calibration readings in magnetic
+headings "in not more than 30 degree increments" (25.1547(d): 45 degrees)."""
+
+VERDICT_BASES = ("as_measured", "after_compensation")
+"""What the verdict judges: the deviation as measured, or the residual once B and C are removed."""
+
+METHODS = ("least_squares", "handbook")
+"""How the coefficients are found: least squares on any readings, or the handbook's formulas."""
+
+COMPASS_POINTS_DEG = {
+    name: 22.5 * i
+    for i, name in enumerate(
+        ("N", "NNE", "NE", "ENE", "E", "ESE", "SE", "SSE", "S", "SSW", "SW", "WSW", "W", "WNW", "NW", "NNW")
+    )
+}
+"""The sixteen compass points as magnetic headings, degrees (N 000, NNE 022.5, ..., NNW 337.5)."""
+
+HANDBOOK_MATCH_DEG = 0.5
+"""A reading counts as 'on' a principal heading for the handbook formulas within this, degrees
+(the aircraft is placed on the base's lines; our threshold)."""
+
+METHODS_DIFFER_DEG = 0.05
+"""Least-squares and handbook coefficients 'differ' (both shown) by more than this, degrees: half
+the 0.1 degree a card or worksheet prints (our threshold)."""
 
 COEFFICIENT_NAMES = ("A", "B", "C", "D", "E")
 
@@ -224,6 +283,33 @@ def deviation_from_readings(magnetic_heading_deg, compass_reading_deg) -> np.nda
     return _wrap180(np.asarray(magnetic_heading_deg, dtype=np.float64) - np.asarray(compass_reading_deg, dtype=np.float64))
 
 
+def _degrees(values, name: str) -> np.ndarray:
+    """``values`` as a 1-D float array, or InputError naming the argument (never a numpy error)."""
+    if isinstance(values, (str, bytes)):
+        raise InputError(f"{name} {values!r}: give a sequence of numbers of degrees, not text")
+    try:
+        arr = np.asarray(values, dtype=np.float64).ravel()
+    except (TypeError, ValueError):
+        shown = repr(values)
+        raise InputError(f"{name} {shown[:60]}: give a sequence of numbers of degrees") from None
+    return arr
+
+
+def _finite_number(value, name: str) -> float:
+    """A real finite number or InputError naming the argument (NaN would switch a check off)."""
+    if isinstance(value, (bool, np.bool_)) or not isinstance(value, (int, float, np.integer, np.floating)):
+        raise InputError(f"{name} {value!r}: give a number of degrees")
+    if not math.isfinite(float(value)):
+        raise InputError(f"{name} {value!r}: give a finite number of degrees (NaN or infinity would switch the check off)")
+    return float(value)
+
+
+def _choice(value, name: str, choices: Sequence[str]) -> str:
+    if not isinstance(value, str) or value not in choices:
+        raise InputError(f"{name} {value!r}: give one of {', '.join(choices)}")
+    return value
+
+
 def eight_point_coefficients(deviations_deg: Sequence[float]) -> dict[str, float]:
     """The classic approximate coefficients from deviations on the eight principal headings.
 
@@ -238,7 +324,7 @@ def eight_point_coefficients(deviations_deg: Sequence[float]) -> dict[str, float
     (NGA 2004, formerly Pub. 226), art. 501: A = mean of the eight; B = (E - W)/2;
     C = (N - S)/2; D = (NE + SW - SE - NW)/4; E = (N + S - E - W)/4.
     """
-    d = np.asarray(deviations_deg, dtype=np.float64)
+    d = _degrees(deviations_deg, "deviations_deg")
     if d.shape != (8,) or not np.all(np.isfinite(d)):
         raise InputError("eight-point coefficients need 8 finite deviations on N, NE, E, SE, S, SW, W, NW")
     n, ne, e, se, s, sw, w, nw = d
@@ -249,6 +335,48 @@ def eight_point_coefficients(deviations_deg: Sequence[float]) -> dict[str, float
         "D": float((ne + sw - se - nw) / 4.0),
         "E": float((n + s - e - w) / 4.0),
     }
+
+
+def four_point_coefficients(deviations_deg: Sequence[float]) -> dict[str, float]:
+    """The approximate coefficients from deviations on the four cardinal headings N, E, S, W.
+
+    The eight-point formulas of :func:`eight_point_coefficients` (NGA 2004, formerly Pub. 226,
+    art. 501) with only the cardinal headings: ``A = (N + E + S + W)/4``, ``B = (E - W)/2``, ``C = (N - S)/2``, ``E = (N + S - E - W)/4``;
+    D cannot be found (sin 2h is zero on every cardinal heading) and is returned as 0.
+    """
+    d = _degrees(deviations_deg, "deviations_deg")
+    if d.shape != (4,) or not np.all(np.isfinite(d)):
+        raise InputError("four-point coefficients need 4 finite deviations on N, E, S, W")
+    n, e, s_, w = d
+    return {
+        "A": float(d.sum() / 4.0),
+        "B": float((e - w) / 2.0),
+        "C": float((n - s_) / 2.0),
+        "D": 0.0,
+        "E": float((n + s_ - e - w) / 4.0),
+    }
+
+
+def handbook_coefficients(magnetic_heading_deg, deviation_deg) -> tuple[dict[str, float], str] | None:
+    """The handbook's approximate coefficients from readings on the principal headings.
+
+    Uses :func:`eight_point_coefficients` when every one of N, NE, ..., NW carries a reading
+    (within :data:`HANDBOOK_MATCH_DEG`), else :func:`four_point_coefficients` when N, E, S and W do;
+    several readings on one heading are averaged. Readings on other headings are not used.
+    Returns ``(coefficients, 'eight-point' or 'four-point')`` or None when neither set is complete.
+    """
+    h = _wrap360(_degrees(magnetic_heading_deg, "magnetic_heading_deg"))
+    d = _degrees(deviation_deg, "deviation_deg")
+    means = {}
+    for k in range(8):
+        near = np.abs(_wrap180(h - 45.0 * k)) <= HANDBOOK_MATCH_DEG
+        if near.any():
+            means[k] = float(np.mean(d[near]))
+    if len(means) == 8:
+        return eight_point_coefficients([means[k] for k in range(8)]), "eight-point"
+    if all(k in means for k in (0, 2, 4, 6)):
+        return four_point_coefficients([means[k] for k in (0, 2, 4, 6)]), "four-point"
+    return None
 
 
 @dataclass
@@ -265,8 +393,8 @@ class DeviationFit:
 def _labels(n: int, rows: Sequence[str] | None) -> list[str]:
     if rows is None:
         return [f"reading {i + 1}" for i in range(n)]
-    if len(rows) != n:
-        raise ValueError("rows must have one label per reading")
+    if isinstance(rows, (str, bytes)) or not hasattr(rows, "__len__") or len(rows) != n:
+        raise InputError(f"rows: give one label per reading ({n} labels)")
     return [str(r) for r in rows]
 
 
@@ -294,11 +422,13 @@ def fit_deviation(
     Warns :class:`DataQualityWarning` when headings are bunched (inflation above
     :data:`INFLATION_WARN`) or there is no redundancy to estimate standard errors.
     """
+    if not isinstance(coefficients, str):
+        raise InputError(f"coefficients {coefficients!r}: give letters from ABCDE, e.g. 'ABCDE' or 'ABCE'")
     names = [c for c in "ABCDE" if c in coefficients.upper()]
     if not names or len(set(coefficients.upper()) - set("ABCDE")):
         raise InputError(f"coefficients {coefficients!r}: give letters from ABCDE, e.g. 'ABCDE' or 'ABCE'")
-    h = np.asarray(magnetic_heading_deg, dtype=np.float64).ravel()
-    d = np.asarray(deviation_deg, dtype=np.float64).ravel()
+    h = _degrees(magnetic_heading_deg, "magnetic_heading_deg")
+    d = _degrees(deviation_deg, "deviation_deg")
     if h.shape != d.shape or not (np.all(np.isfinite(h)) and np.all(np.isfinite(d))):
         raise InputError("fit needs one finite magnetic heading per finite deviation, in degrees")
     p = len(names)
@@ -373,8 +503,8 @@ def correction_card(curve: DeviationCurve, magnetic_headings_deg: Sequence[float
     Returns a DataFrame with ``for_magnetic`` and ``steer_compass`` (three-digit strings as printed
     on a card), ``magnetic_heading_deg``, ``deviation_deg`` and ``compass_heading_deg``.
     """
-    wanted = np.asarray(DEFAULT_CARD_HEADINGS_DEG if magnetic_headings_deg is None else magnetic_headings_deg, dtype=np.float64)
-    if wanted.ndim != 1 or len(wanted) == 0 or not np.all(np.isfinite(wanted)):
+    wanted = _degrees(DEFAULT_CARD_HEADINGS_DEG if magnetic_headings_deg is None else magnetic_headings_deg, "card headings")
+    if len(wanted) == 0 or not np.all(np.isfinite(wanted)):
         raise InputError("card headings: give a list of finite magnetic headings in degrees, e.g. 0,30,60,...,330")
     wanted = _wrap360(wanted)
     deviation = np.asarray(curve.deviation_deg(wanted))
@@ -392,7 +522,13 @@ def correction_card(curve: DeviationCurve, magnetic_headings_deg: Sequence[float
 
 @dataclass
 class SwingAnalysis:
-    """Everything a swing yields; see :func:`analyse_swing`."""
+    """Everything a swing yields; see :func:`analyse_swing`.
+
+    Both verdicts are kept: ``verdict_as_measured`` (largest |observed deviation|,
+    ``max_deviation_deg``, against ``limit_deg``) and ``verdict_after_compensation`` (largest
+    |residual after B and C|, ``max_residual_deg``, against ``compensated_limit_deg``);
+    ``verdict`` is the one named by ``verdict_basis``.
+    """
 
     curve: DeviationCurve
     coefficients: pd.DataFrame
@@ -407,15 +543,67 @@ class SwingAnalysis:
     verdict: str
     max_curve_residual_deg: float = math.nan
     notes: list[str] = field(default_factory=list)
+    max_deviation_deg: float = math.nan
+    max_deviation_heading_deg: float = math.nan
+    max_deviation_row: str = ""
+    compensated_limit_deg: float = DEFAULT_LIMIT_DEG
+    verdict_as_measured: str = ""
+    verdict_after_compensation: str = ""
+    verdict_basis: str = "as_measured"
+    method: str = "least_squares"
+    handbook_formula: str = ""
+    comparison: pd.DataFrame | None = None
+    card_after_compensation: bool = False
+
+    @property
+    def methods_differ(self) -> bool:
+        """True when least-squares and handbook coefficients differ by more than METHODS_DIFFER_DEG."""
+        if self.comparison is None:
+            return False
+        return bool(np.nanmax(np.abs(self.comparison.difference_deg.to_numpy())) > METHODS_DIFFER_DEG)
+
+    def verdict_text(self) -> str:
+        """Two lines stating both deviations, their limits and which one the verdict uses."""
+        used = "as measured" if self.verdict_basis == "as_measured" else "after compensation"
+        return (
+            f"deviation as measured: largest {self.max_deviation_deg:.1f}° on {_three_digits(self.max_deviation_heading_deg)} "
+            f"(limit {self.limit_deg:g}°): {self.verdict_as_measured.upper()}\n"
+            f"after compensation (B and C removed; A, D, E kept): largest {self.max_residual_deg:.1f}° on "
+            f"{_three_digits(self.max_residual_heading_deg)} (limit {self.compensated_limit_deg:g}°): "
+            f"{self.verdict_after_compensation.upper()}\n"
+            f"verdict ({used}): {self.verdict.upper()}"
+        )
+
+    def card_terms(self) -> str:
+        """The terms the card's curve holds, e.g. 'A +1.0°, D +5.0°, E +1.5° (B and C removed)'."""
+        c = self.curve.coefficients()
+        kept = "ADE" if self.card_after_compensation else "ABCDE"
+        text = ", ".join(f"{n} {c[n]:+.1f}°" for n in kept)
+        if self.card_after_compensation:
+            return text + " (B and C removed by the compensator: a prediction until a check swing confirms it)"
+        return text + " (as swung)"
 
     def summary_row(self) -> pd.DataFrame:
-        """One-row table: A_deg..E_deg, max_residual_deg, verdict, then standard errors and more."""
+        """One-row table: A_deg..E_deg, verdict, its basis and both deviations, then standard errors and more."""
         row = {f"{n}_deg": self.curve.coefficients()[n] for n in COEFFICIENT_NAMES}
-        row.update({"max_residual_deg": self.max_residual_deg, "verdict": self.verdict, "limit_deg": self.limit_deg})
+        row.update(
+            {
+                "verdict": self.verdict,
+                "verdict_basis": self.verdict_basis,
+                "max_deviation_deg": self.max_deviation_deg,
+                "limit_deg": self.limit_deg,
+                "verdict_as_measured": self.verdict_as_measured,
+                "max_residual_deg": self.max_residual_deg,
+                "compensated_limit_deg": self.compensated_limit_deg,
+                "verdict_after_compensation": self.verdict_after_compensation,
+                "method": self.method,
+            }
+        )
         for n, se in zip(COEFFICIENT_NAMES, self.coefficients.standard_error_deg, strict=True):
             row[f"{n}_standard_error_deg"] = se
         row.update(
             {
+                "max_deviation_heading_deg": self.max_deviation_heading_deg,
                 "max_residual_heading_deg": self.max_residual_heading_deg,
                 "max_curve_residual_deg": self.max_curve_residual_deg,
                 "rms_fit_residual_deg": self.rms_fit_residual_deg,
@@ -426,74 +614,26 @@ class SwingAnalysis:
         return pd.DataFrame([row])
 
 
-def analyse_swing(
-    magnetic_heading_deg,
-    compass_reading_deg,
-    *,
-    limit_deg: float = DEFAULT_LIMIT_DEG,
-    card_headings_deg: Sequence[float] | None = None,
-    coefficients: str = "ABCDE",
-    card_after_compensation: bool = False,
-    max_plausible_deviation_deg: float = MAX_PLAUSIBLE_DEVIATION_DEG,
-    rows: Sequence[str] | None = None,
-) -> SwingAnalysis:
-    """Analyse a compass swing: deviations, coefficients, residuals after B and C, verdict, card.
-
-    Parameters
-    ----------
-    magnetic_heading_deg : array-like
-        The aircraft's magnetic heading on each reading (from the compass base), degrees.
-    compass_reading_deg : array-like
-        What the compass read, degrees.
-    limit_deg : float
-        Verdict limit on the largest residual deviation after B and C are removed, degrees
-        (default :data:`DEFAULT_LIMIT_DEG`, 10 degrees; tighter for remote-indicating systems).
-    card_headings_deg : sequence, optional
-        Wanted magnetic headings on the card (default 000, 030, ..., 330).
-    coefficients : str
-        Coefficients to fit (default all five).
-    card_after_compensation : bool
-        Make the card from the curve with B and C removed (after the compensator is adjusted)
-        instead of the curve as swung.
-    max_plausible_deviation_deg : float
-        A reading further than this from its heading is refused as a likely typing error (30).
-    rows : sequence of str, optional
-        Labels naming each reading in messages.
-
-    Returns
-    -------
-    SwingAnalysis
-        ``readings`` holds per reading: ``row, magnetic_heading_deg, compass_reading_deg,
-        deviation_deg, fitted_deg, fit_residual_deg, residual_after_bc_deg`` where the last is the
-        observed deviation minus the fitted B and C terms (what remains once the compensator has
-        removed them). ``max_residual_deg`` is its largest absolute value and ``verdict`` is
-        ``'pass'`` when that is within ``limit_deg``, else ``'fail'``. ``max_curve_residual_deg`` is
-        the largest |A + D sin 2h + E cos 2h| of the fitted curve over the whole circle (between the
-        swung headings), for information.
-    """
-    h = np.asarray(magnetic_heading_deg, dtype=np.float64).ravel()
-    c = np.asarray(compass_reading_deg, dtype=np.float64).ravel()
-    if h.shape != c.shape:
-        raise InputError(f"{len(h)} magnetic headings but {len(c)} compass readings; give one pair per reading")
-    labels = _labels(len(h), rows)
-    if not math.isfinite(limit_deg) or limit_deg <= 0:
-        raise InputError(f"limit {limit_deg!r} deg: give a positive number of degrees (10 for a direct-reading compass)")
+def _check_readings(h: np.ndarray, c: np.ndarray, labels: list[str], max_plausible: float) -> np.ndarray:
+    """Bounds and plausibility of the readings; returns the deviations (east positive)."""
     for values, what in ((h, "magnetic heading"), (c, "compass reading")):
         # the same -360..720 window the CSV reader applies: larger values are typing errors, and
         # reducing 1e308 modulo 360 would only hide them
         bad = np.flatnonzero(~(np.isfinite(values) & (values >= -360.0) & (values <= 720.0)))
         if len(bad):
             raise InputError(f"{labels[bad[0]]}: {what} {values[bad[0]]!r} is not a number of degrees from -360 to 720")
-    h = _wrap360(h)
-    c = _wrap360(c)
-    dev = deviation_from_readings(h, c)
-    far = np.flatnonzero(np.abs(dev) > max_plausible_deviation_deg)
+    dev = deviation_from_readings(_wrap360(h), _wrap360(c))
+    far = np.flatnonzero(np.abs(dev) > max_plausible)
     if len(far):
         i = far[0]
         raise InputError(
-            f"{labels[i]}: compass reading {c[i]:g} is {abs(dev[i]):.1f} deg from magnetic heading {h[i]:g} "
-            f"(more than {max_plausible_deviation_deg:g} deg), likely a typing error; correct it or raise the plausibility limit"
+            f"{labels[i]}: compass reading {_wrap360(c)[i]:g} is {abs(dev[i]):.1f} deg from magnetic heading {_wrap360(h)[i]:g} "
+            f"(more than {max_plausible:g} deg), likely a typing error; correct it or raise the plausibility limit"
         )
+    return dev
+
+
+def _duplicate_notes(h: np.ndarray, dev: np.ndarray, labels: list[str]) -> list[str]:
     notes: list[str] = []
     key = np.round(h, 1)
     for value in np.unique(key):
@@ -505,15 +645,134 @@ def analyse_swing(
                 f"(deviations differ by {spread:.2f} deg); both kept in the fit"
             )
             notes.append(message)
-            warnings.warn(message, DataQualityWarning, stacklevel=2)
+            warnings.warn(message, DataQualityWarning, stacklevel=3)
+    return notes
+
+
+def _coefficients(h: np.ndarray, dev: np.ndarray, coefficients: str, method: str):
+    """(curve used, least-squares fit, handbook coefficients or None, handbook formula name, comparison)."""
+    handbook = handbook_coefficients(h, dev)
+    if method == "handbook" and handbook is None:
+        raise InputError(
+            "method 'handbook' needs readings on the eight principal headings N, NE, E, SE, S, SW, W, NW "
+            "(or the four cardinal headings N, E, S, W); these readings have neither set"
+        )
+    if method == "handbook" and handbook[1] == "four-point" and coefficients.upper() == "ABCDE":
+        coefficients = "ABCE"  # the least-squares comparison on four cardinals cannot find D either
     fit = fit_deviation(h, dev, coefficients=coefficients)
-    curve = fit.curve
+    if handbook is None:
+        return fit.curve, fit, None, "", None
+    values, formula = handbook
+    lsq = fit.curve.coefficients()
+    comparison = pd.DataFrame(
+        {
+            "coefficient": list(COEFFICIENT_NAMES),
+            "least_squares_deg": [lsq[n] for n in COEFFICIENT_NAMES],
+            "handbook_deg": [values[n] if (n != "D" or formula == "eight-point") else np.nan for n in COEFFICIENT_NAMES],
+        }
+    )
+    comparison["difference_deg"] = comparison.handbook_deg - comparison.least_squares_deg
+    curve = DeviationCurve(*(values[n] for n in COEFFICIENT_NAMES)) if method == "handbook" else fit.curve
+    return curve, fit, values, formula, comparison
+
+
+def analyse_swing(
+    magnetic_heading_deg,
+    compass_reading_deg,
+    *,
+    limit_deg: float = DEFAULT_LIMIT_DEG,
+    compensated_limit_deg: float | None = None,
+    verdict_on: str = "as_measured",
+    method: str = "least_squares",
+    card_headings_deg: Sequence[float] | None = None,
+    coefficients: str = "ABCDE",
+    card_after_compensation: bool = False,
+    max_plausible_deviation_deg: float = MAX_PLAUSIBLE_DEVIATION_DEG,
+    rows: Sequence[str] | None = None,
+) -> SwingAnalysis:
+    """Analyse a compass swing: deviations, coefficients, both verdicts, correction card.
+
+    Parameters
+    ----------
+    magnetic_heading_deg : array-like
+        The aircraft's magnetic heading on each reading (from the compass base), degrees.
+    compass_reading_deg : array-like
+        What the compass read, degrees.
+    limit_deg : float
+        Limit on the largest deviation *as measured*, degrees (default :data:`DEFAULT_LIMIT_DEG`,
+        10, 14 CFR 23.1327(a)(2); tighter for remote-indicating systems).
+    compensated_limit_deg : float, optional
+        Limit on the largest residual *after compensation* (B and C removed), degrees (default:
+        ``limit_deg``; the same 14 CFR 23.1327 figure applies to the compensated installation).
+    verdict_on : {'as_measured', 'after_compensation'}
+        Which deviation ``verdict`` judges (see the module docstring). Both verdicts are returned.
+    method : {'least_squares', 'handbook'}
+        Coefficients by least squares (default) or by the handbook's eight-point / four-cardinal
+        formulas (NGA 2004, formerly Pub. 226, art. 501; needs readings on those headings).
+    card_headings_deg : sequence, optional
+        Wanted magnetic headings on the card (default 000, 030, ..., 330).
+    coefficients : str
+        Coefficients to fit by least squares (default all five).
+    card_after_compensation : bool
+        Make the card from the curve with B and C removed (after the compensator is adjusted; it
+        keeps A, D and E) instead of the curve as swung.
+    max_plausible_deviation_deg : float
+        A reading further than this from its heading is refused as a likely typing error (30).
+    rows : sequence of str, optional
+        Labels naming each reading in messages.
+
+    Returns
+    -------
+    SwingAnalysis
+        ``readings`` holds per reading: ``row, magnetic_heading_deg, compass_reading_deg,
+        deviation_deg, fitted_deg, fit_residual_deg, residual_after_bc_deg`` where the last is the
+        observed deviation minus the B and C terms (what remains once the compensator has removed
+        them). ``max_deviation_deg`` is the largest |deviation_deg| (as measured) and
+        ``max_residual_deg`` the largest |residual_after_bc_deg|; ``verdict_as_measured`` and
+        ``verdict_after_compensation`` are ``'pass'`` when within their limits, and ``verdict``
+        is the one ``verdict_on`` names. ``max_curve_residual_deg`` is the largest
+        |A + D sin 2h + E cos 2h| of the curve over the whole circle, for information.
+        ``comparison`` lists least-squares and handbook coefficients when the readings allow both.
+    """
+    h = _degrees(magnetic_heading_deg, "magnetic_heading_deg")
+    c = _degrees(compass_reading_deg, "compass_reading_deg")
+    if h.shape != c.shape:
+        raise InputError(f"{len(h)} magnetic headings but {len(c)} compass readings; give one pair per reading")
+    labels = _labels(len(h), rows)
+    limit = _finite_number(limit_deg, "limit_deg")
+    compensated = limit if compensated_limit_deg is None else _finite_number(compensated_limit_deg, "compensated_limit_deg")
+    for value, name in ((limit, "limit_deg"), (compensated, "compensated_limit_deg")):
+        if value <= 0:
+            raise InputError(f"{name} {value!r} deg: give a positive number of degrees (10 for a direct-reading compass)")
+    plausible = _finite_number(max_plausible_deviation_deg, "max_plausible_deviation_deg")
+    if not 0 < plausible <= 180:
+        raise InputError(f"max_plausible_deviation_deg {plausible!r}: give a number of degrees above 0, up to 180")
+    _choice(verdict_on, "verdict_on", VERDICT_BASES)
+    _choice(method, "method", METHODS)
+    if not isinstance(coefficients, str):
+        raise InputError(f"coefficients {coefficients!r}: give letters from ABCDE, e.g. 'ABCDE' or 'ABCE'")
+    dev = _check_readings(h, c, labels, plausible)
+    h, c = _wrap360(h), _wrap360(c)
+    notes = _duplicate_notes(h, dev, labels)
+    curve, fit, _, formula, comparison = _coefficients(h, dev, coefficients, method)
     fitted = np.asarray(curve.deviation_deg(h))
     bc = curve.B_deg * np.sin(np.radians(h)) + curve.C_deg * np.cos(np.radians(h))
     residual_after_bc = dev - bc
-    i_max = int(np.argmax(np.abs(residual_after_bc)))
-    max_residual = float(abs(residual_after_bc[i_max]))
-    verdict = "pass" if max_residual <= limit_deg else "fail"
+    i_res = int(np.argmax(np.abs(residual_after_bc)))
+    i_dev = int(np.argmax(np.abs(dev)))
+    max_residual, max_deviation = float(abs(residual_after_bc[i_res])), float(abs(dev[i_dev]))
+    verdicts = {
+        "as_measured": "pass" if max_deviation <= limit else "fail",
+        "after_compensation": "pass" if max_residual <= compensated else "fail",
+    }
+    if formula:
+        notes.append(
+            f"handbook {formula} formulas (Pub. 226 art. 501) use only the readings on "
+            f"{'N, NE, E, SE, S, SW, W, NW' if formula == 'eight-point' else 'N, E, S, W'}"
+        )
+    table = fit.table.copy()
+    if method == "handbook":
+        table["value_deg"] = [curve.coefficients()[n] for n in COEFFICIENT_NAMES]
     readings = pd.DataFrame(
         {
             "row": labels,
@@ -529,31 +788,272 @@ def analyse_swing(
     card = correction_card(card_curve, card_headings_deg)
     return SwingAnalysis(
         curve=curve,
-        coefficients=fit.table,
+        coefficients=table,
         readings=readings,
         card=card,
         condition_number=fit.condition_number,
-        rms_fit_residual_deg=fit.rms_residual_deg,
+        rms_fit_residual_deg=float(np.sqrt(np.mean((dev - fitted) ** 2))),
         max_residual_deg=max_residual,
-        max_residual_heading_deg=float(h[i_max]),
-        max_residual_row=labels[i_max],
-        limit_deg=float(limit_deg),
-        verdict=verdict,
+        max_residual_heading_deg=float(h[i_res]),
+        max_residual_row=labels[i_res],
+        limit_deg=limit,
+        verdict=verdicts[verdict_on],
         max_curve_residual_deg=curve.without_semicircular().max_abs_deg()[0],
         notes=notes,
+        max_deviation_deg=max_deviation,
+        max_deviation_heading_deg=float(h[i_dev]),
+        max_deviation_row=labels[i_dev],
+        compensated_limit_deg=compensated,
+        verdict_as_measured=verdicts["as_measured"],
+        verdict_after_compensation=verdicts["after_compensation"],
+        verdict_basis=verdict_on,
+        method=method,
+        handbook_formula=formula,
+        comparison=comparison,
+        card_after_compensation=bool(card_after_compensation),
     )
 
 
+# ------------------------------------------------------------------------------ reading a swing CSV
+
+HEADING_COLUMNS = ("magnetic_heading_deg", "magnetic_heading", "magnetic_deg", "magnetic", "mag_heading", "mag_hdg",
+                   "heading_deg", "heading", "hdg", "mh")
+COMPASS_COLUMNS = ("compass_reading_deg", "compass_reading", "compass_heading_deg", "compass_heading", "compass_deg",
+                   "compass", "reading", "compass_hdg", "ch")
+DEVIATION_COLUMNS = ("deviation_deg", "deviation", "dev")
+"""Accepted column names of a swing CSV (matched ignoring case, spaces, hyphens and dots)."""
+
+
+def _column_key(name: str) -> str:
+    return "_".join(name.strip().lower().replace("-", " ").replace(".", " ").split())
+
+
+def _find_column(header: Sequence[str], accepted: Sequence[str], label: str, what: str) -> str | None:
+    found = [name for name in header if _column_key(name) in accepted]
+    if len(found) > 1:
+        raise InputError(f"{label}: columns {', '.join(found)} all name the {what}; keep one")
+    return found[0] if found else None
+
+
+_PLAIN_NUMBER = re.compile(r"[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)")
+
+
+def _heading_cell(cell: str, where: str, what: str, points: bool) -> float:
+    """A heading cell: plain ASCII decimal degrees, or (``points``) a compass point N..NNW."""
+    text = cell.strip().replace("−", "-")
+    if points and text.upper() in COMPASS_POINTS_DEG:
+        return COMPASS_POINTS_DEG[text.upper()]
+    if not _PLAIN_NUMBER.fullmatch(text):
+        accepted = "plain decimal degrees (045, 45.0)" + (" or a compass point (N, NNE, NE, ..., NNW)" if points else "")
+        raise InputError(f"{where}: {what} {cell!r} is not understood; give {accepted}")
+    value = float(text)
+    if not -360.0 <= value <= 720.0:
+        raise InputError(f"{where}: {what} {cell!r} is outside -360 to 720 deg")
+    return value
+
+
 def read_swing_csv(path: str | os.PathLike) -> tuple[np.ndarray, np.ndarray, list[str]]:
-    """Read a swing CSV with columns ``magnetic_heading_deg, compass_reading_deg``.
+    """Read swing readings: a magnetic heading column and a compass reading (or deviation) column.
+
+    Column names are matched ignoring case, spaces and hyphens: the heading from
+    :data:`HEADING_COLUMNS` (``magnetic_heading_deg``, ``heading``, ``mh``, ...), and either the
+    compass reading from :data:`COMPASS_COLUMNS` (``compass_reading_deg``, ``compass``, ...) or the
+    deviation from :data:`DEVIATION_COLUMNS` (``deviation``; east positive or with a letter,
+    ``10.5E``, ``W6.8``), from which ``compass = magnetic - deviation``. Headings are plain
+    degrees (-360 to 720, normalised later) or compass points ``N``, ``NE``, ..., ``NNW``.
 
     Returns (magnetic headings, compass readings, row labels such as ``'readings.csv line 4'``).
-    Headings are accepted from -360 to 720 degrees and normalised later.
     """
-    from .io import float_column, read_table
+    from .headings import parse_variation
+    from .io import read_table
 
-    table = read_table(path, required=["magnetic_heading_deg", "compass_reading_deg"], what="swing readings")
-    magnetic = float_column(table, "magnetic_heading_deg", low=-360.0, high=720.0, unit="deg")
-    compass = float_column(table, "compass_reading_deg", low=-360.0, high=720.0, unit="deg")
-    labels = [f"{table.attrs['source']} line {line}" for line in table.index]
-    return magnetic, compass, labels
+    table = read_table(path, required=[], what="swing readings")
+    label = f"swing readings {table.attrs['source']}"
+    header = list(table.columns)
+    heading = _find_column(header, HEADING_COLUMNS, label, "magnetic heading")
+    compass = _find_column(header, COMPASS_COLUMNS, label, "compass reading")
+    deviation = _find_column(header, DEVIATION_COLUMNS, label, "deviation")
+    if heading is None or (compass is None) == (deviation is None):
+        problem = (
+            "no magnetic heading column" if heading is None
+            else "both a compass reading and a deviation column" if compass is not None
+            else "no compass reading or deviation column"
+        )
+        raise InputError(
+            f"{label}: {problem} (found {', '.join(h for h in header if h) or 'none'}); accepted names: heading "
+            f"{'/'.join(HEADING_COLUMNS)}; and compass {'/'.join(COMPASS_COLUMNS)} or deviation {'/'.join(DEVIATION_COLUMNS)}"
+        )
+    magnetic, reading, labels = [], [], []
+    for line, record in table.iterrows():
+        where = f"{table.attrs['source']} line {line}"
+        for name in (heading, compass or deviation):
+            if record[name] == "":
+                raise InputError(f"{where}: {name} is empty; a value is needed")
+        h = _heading_cell(record[heading], where, heading, points=True)
+        if compass is not None:
+            c = _heading_cell(record[compass], where, compass, points=False)
+        else:
+            try:
+                d = parse_variation(record[deviation])
+            except InputError:
+                raise InputError(
+                    f"{where}: {deviation} {record[deviation]!r} is not understood; give degrees east positive "
+                    "(-1.5) or with a letter (1.5W, E3.2)"
+                ) from None
+            c = h - d
+        magnetic.append(h)
+        reading.append(c)
+        labels.append(where)
+    return np.array(magnetic), np.array(reading), labels
+
+
+# ------------------------------------------------------------------------------ the card as a document
+
+
+@dataclass(frozen=True)
+class CardDetails:
+    """Identification printed on the correction card (all text; '' when not given).
+
+    ``conditions`` should say how the swing was made: 14 CFR 23.1547(b)-(c) ask for the calibration
+    in level flight with the engines operating and a statement of whether radio receivers were on
+    or off. ``base_*`` link the swing to the compass base (see :func:`base_link`).
+    """
+
+    aircraft: str = ""
+    compass: str = ""
+    base: str = ""
+    swing_date: str = ""
+    conditions: str = ""
+    swung_by: str = ""
+    base_marked_variation: str = ""
+    base_survey_date: str = ""
+    base_status: str = ""
+
+    @classmethod
+    def make(cls, *, swing_date=None, **text) -> CardDetails:
+        """Check and build: text fields must be one-line strings; ``swing_date`` any date (printed YYYY-MM-DD)."""
+        from .units import decimal_year, timestamp_from_decimal_year
+
+        clean = {}
+        for key, value in text.items():
+            if key not in cls.__dataclass_fields__:
+                raise InputError(f"card detail {key!r} is not known; accepted: {', '.join(cls.__dataclass_fields__)}")
+            if value is None:
+                value = ""
+            if not isinstance(value, str) or "\n" in value or "\r" in value or len(value) > 200:
+                raise InputError(f"card detail {key} {value!r}: give one line of text (up to 200 characters)")
+            clean[key] = "".join(ch for ch in value.strip() if ch.isprintable())
+        if swing_date not in (None, ""):
+            year = float(decimal_year(swing_date))
+            clean["swing_date"] = f"{timestamp_from_decimal_year(year).round('s'):%Y-%m-%d}"
+        return cls(**clean)
+
+
+def base_link(bases_csv, base_name: str, swing_date, model=None, allow_extrapolation: bool = False) -> dict:
+    """The compass base a swing was made on, from a bases CSV (:func:`headingref.compass_base.read_sites_csv`).
+
+    Returns ``name, marked_variation_deg, marked_variation`` (the value marked at the base's latest
+    survey: the surveyed value), ``survey_date``, ``resurvey_due_date``, ``overdue`` (due on or
+    before the swing date) and ``status`` (one line for the card). Raises InputError when the base is
+    not in the file (listing the names there).
+    """
+    import warnings as _warnings
+
+    from .compass_base import base_upkeep, read_sites_csv
+    from .headings import format_variation
+
+    sites = read_sites_csv(bases_csv)
+    chosen = [s for s in sites if s.name == base_name]
+    if not chosen:
+        raise InputError(f"base {base_name!r} is not in {os.fspath(bases_csv)}; bases there: {', '.join(s.name for s in sites)}")
+    with _warnings.catch_warnings():
+        _warnings.simplefilter("ignore")  # overdue is reported in status
+        row = base_upkeep(chosen, swing_date, model=model, allow_extrapolation=allow_extrapolation).iloc[0]
+    marked = float(row.surveyed_variation_deg)
+    due = row.resurvey_due_date or "not within the model's validity"
+    if row.overdue:
+        status = f"base OVERDUE for resurvey since {due} ({row.resurvey_reason}): the marked variation may be off by more than {row.tolerance_deg:g}°"
+    else:
+        status = f"base within tolerance ({row.tolerance_deg:g}°) on the swing date; resurvey due {due}"
+    return {
+        "name": base_name,
+        "marked_variation_deg": marked,
+        "marked_variation": format_variation(marked),
+        "survey_date": row.survey_date,
+        "resurvey_due_date": row.resurvey_due_date,
+        "overdue": bool(row.overdue),
+        "status": status,
+    }
+
+
+_CARD_CSS = """
+body { font-family: "DejaVu Sans", Arial, sans-serif; margin: 2em; color: #111; }
+h1 { font-size: 1.4em; margin-bottom: 0.2em; }
+table { border-collapse: collapse; margin: 0.8em 0; }
+th, td { border: 1px solid #444; padding: 0.25em 0.6em; text-align: center; }
+table.ident th, table.ident td { text-align: left; }
+p.terms, p.verdict { margin: 0.3em 0; }
+.fail { font-weight: bold; }
+.sign { margin-top: 2.5em; display: flex; gap: 3em; }
+.sign div { border-top: 1px solid #111; min-width: 14em; padding-top: 0.2em; }
+.caution { font-size: 0.8em; color: #444; margin-top: 2em; }
+@media print {
+  @page { size: A5 landscape; margin: 12mm; }
+  body { margin: 0; font-size: 10pt; }
+  .noprint { display: none; }
+}
+"""
+
+
+def _card_ident_rows(details: CardDetails, analysis: SwingAnalysis) -> list[tuple[str, str]]:
+    base = details.base
+    if details.base_marked_variation:
+        base += f" (marked variation {details.base_marked_variation}, surveyed {details.base_survey_date})"
+    method = "least squares" if analysis.method == "least_squares" else f"handbook {analysis.handbook_formula} formulas"
+    conditions = details.conditions or "not stated (14 CFR 23.1547(c): state whether radios were on or off)"
+    rows = [
+        ("Aircraft", details.aircraft or "not stated"),
+        ("Compass (serial)", details.compass or "not stated"),
+        ("Compass base", base or "not stated"),
+        ("Swing date", details.swing_date or "not stated"),
+        ("Conditions", conditions),
+        ("Coefficients", f"{method}, {len(analysis.readings)} readings"),
+    ]
+    if details.base_status:
+        rows.append(("Base status", details.base_status))
+    return rows
+
+
+def card_html(analysis: SwingAnalysis, details: CardDetails | None = None, title: str = "Compass correction card") -> str:
+    """The correction card as a print-ready HTML page (CSS ``@media print``, A5 landscape).
+
+    Identification (aircraft, compass serial, base with its marked variation and survey date, swing
+    date, conditions), the card (for magnetic / steer compass, every card heading), the terms the
+    card's curve keeps, both verdicts and which one decides, and a signature line for the person
+    who swung the compass. All user text is HTML-escaped.
+    """
+    import html
+
+    from .notices import CAUTION
+
+    details = details or CardDetails()
+    esc = html.escape
+    ident = "".join(f"<tr><th>{esc(k)}</th><td>{esc(v)}</td></tr>" for k, v in _card_ident_rows(details, analysis))
+    card = analysis.card
+    heads = "".join(f"<td>{esc(x)}</td>" for x in card.for_magnetic)
+    steer = "".join(f"<td><b>{esc(x)}</b></td>" for x in card.steer_compass)
+    verdict_lines = "".join(
+        f'<p class="verdict{" fail" if "FAIL" in line else ""}">{esc(line)}</p>' for line in analysis.verdict_text().splitlines()
+    )
+    return f"""<!DOCTYPE html>
+<html lang="en"><head><meta charset="utf-8"><title>{esc(title)}</title><style>{_CARD_CSS}</style></head>
+<body>
+<h1>{esc(title)}</h1>
+<table class="ident">{ident}</table>
+<table class="card"><tr><th>For magnetic</th>{heads}</tr><tr><th>Steer compass</th>{steer}</tr></table>
+<p class="terms">Card curve: {esc(analysis.card_terms())}; deviation east positive, magnetic = compass + deviation.</p>
+{verdict_lines}
+<div class="sign"><div>Swung by: {esc(details.swung_by)}</div><div>Signature</div><div>Date</div></div>
+<p class="caution">{esc(CAUTION)}</p>
+</body></html>
+"""

@@ -249,7 +249,7 @@ def test_csv_errors_name_the_line(tmp_path, capsys):
     path.write_text("magnetic_heading_deg,compass_reading_deg\n0,1\n45,4x\n", encoding="utf-8")
     assert main(["swing", "--input", str(path), "--output", str(tmp_path / "c.csv")]) == 2
     err = capsys.readouterr().err.strip()
-    assert "readings.csv line 3: compass_reading_deg '4x' is not a number" in err and len(err.splitlines()) == 1
+    assert "readings.csv line 3: compass_reading_deg '4x' is not understood" in err and len(err.splitlines()) == 1
     assert not (tmp_path / "c.csv").exists()  # nothing half-written
 
 
@@ -263,14 +263,15 @@ def test_cli_writes_coefficients_card_and_residuals(tmp_path, capsys):
     import pandas as pd
 
     row = pd.read_csv(out).iloc[0]
-    assert list(pd.read_csv(out).columns[:7]) == ["A_deg", "B_deg", "C_deg", "D_deg", "E_deg", "max_residual_deg", "verdict"]
+    assert list(pd.read_csv(out).columns[:8]) == ["A_deg", "B_deg", "C_deg", "D_deg", "E_deg", "verdict", "verdict_basis", "max_deviation_deg"]
     assert row.A_deg == pytest.approx(1.0, abs=1e-9)  # Pub. 226 art. 501: A = 1.0 E
     assert row.D_deg == pytest.approx(5.0, abs=1e-9)  # D = 5.0 E
     assert row.E_deg == pytest.approx(1.5, abs=1e-9)  # E = 1.5 E
     # Residual after B, C on SW, by hand: -8.0 - (B sin 225 + C cos 225) with the least-squares B, C.
     b, c = (24 + 33.6 * np.sqrt(0.5)) / 4, (16 + 22.4 * np.sqrt(0.5)) / 4
     assert row.max_residual_deg == pytest.approx(-8.0 + (b + c) * np.sqrt(0.5), abs=1e-9)
-    assert row.verdict == "fail"  # 6.07 deg > the 5 deg limit given
+    assert row.verdict_after_compensation == "fail"  # 6.07 deg > the 5 deg limit given
+    assert row.verdict == "fail" and row.verdict_basis == "as_measured"  # 20.0 deg on NE > 5
     assert len(pd.read_csv(card)) == 12 and len(pd.read_csv(res)) == 8
     assert plot.stat().st_size > 10_000 and card_plot.read_bytes()[:4] == b"%PDF"
     assert "FAIL" in capsys.readouterr().out

@@ -2,7 +2,9 @@
 
 - :func:`deviation_figure` (two panels): the observed deviations, the fitted curve, the curve left
   once B and C are removed, and the limit; below, the fit residuals per reading.
-- :func:`card_figure`: the correction card as a printable table (for magnetic / steer compass).
+- :func:`card_figure`: the correction card as a printable sheet (save as .pdf with matplotlib's PDF
+  backend): identification, for magnetic / steer compass, the terms the card keeps, both verdicts
+  and a signature line.
 - :func:`save_figure`: write a figure atomically (format from the file suffix).
 
 >>> import numpy as np
@@ -13,14 +15,15 @@
 >>> fig = deviation_figure(result)
 >>> len(fig.axes)
 2
->>> card = card_figure(result, title="Invented aircraft, standby compass")
+>>> from headingref.swing import CardDetails
+>>> card = card_figure(result, details=CardDetails.make(aircraft="ZZ-INV", swung_by="A. Person"))
 """
 
 from __future__ import annotations
 
 import numpy as np
 
-from ..swing import SwingAnalysis
+from ..swing import CardDetails, SwingAnalysis, _card_ident_rows
 from . import save_figure  # noqa: F401  (re-exported: the plotting modules all offer it)
 
 _EAST_COLOUR = "#1b6f8a"
@@ -54,8 +57,9 @@ def deviation_figure(analysis: SwingAnalysis, title: str | None = None):
         readings.residual_after_bc_deg,
         "x",
         color=_EAST_COLOUR,
-        label=f"readings less B, C (max {analysis.max_residual_deg:.1f}°: {analysis.verdict})",
+        label=f"readings less B, C (max {analysis.max_residual_deg:.1f}°: {analysis.verdict_after_compensation})",
     )
+    top.plot([], [], " ", label=f"as measured: max {analysis.max_deviation_deg:.1f}° ({analysis.verdict_as_measured})")
     top.set_ylabel("deviation, degrees (+ east)")
     top.legend(loc="best", fontsize="small")
     c = analysis.curve
@@ -72,32 +76,53 @@ def deviation_figure(analysis: SwingAnalysis, title: str | None = None):
     return fig
 
 
-def card_figure(analysis_or_card, title: str = "Compass correction card", footer: str | None = None):
-    """The card as a table: for each wanted magnetic heading, the compass heading to steer.
+def card_figure(
+    analysis_or_card,
+    title: str = "Compass correction card",
+    footer: str | None = None,
+    details: CardDetails | None = None,
+):
+    """The card as a printable sheet: for each wanted magnetic heading, the compass heading to steer.
 
-    ``analysis_or_card``: a :class:`~headingref.swing.SwingAnalysis` or the card DataFrame.
+    ``analysis_or_card``: a :class:`~headingref.swing.SwingAnalysis` (the sheet then also carries
+    the identification from ``details``, the terms the card keeps, both verdicts and a signature
+    line) or a bare card DataFrame (the table alone). All user text is drawn as plain text.
     """
     from matplotlib.figure import Figure
+    from matplotlib.lines import Line2D
 
-    card = analysis_or_card.card if isinstance(analysis_or_card, SwingAnalysis) else analysis_or_card
+    analysis = analysis_or_card if isinstance(analysis_or_card, SwingAnalysis) else None
+    card = analysis.card if analysis is not None else analysis_or_card
     columns = len(card)
-    fig = Figure(figsize=(max(4.0, 0.7 * columns + 1.6), 2.2), layout="constrained")
-    ax = fig.subplots()
-    ax.set_axis_off()
+    plain = {"usetex": False, "parse_math": False}
     cells = [list(card.for_magnetic), list(card.steer_compass)]
-    table = ax.table(
-        cellText=cells,
-        rowLabels=["For magnetic", "Steer compass"],
-        loc="center",
-        cellLoc="center",
-    )
-    table.auto_set_font_size(False)
-    table.set_fontsize(11)
-    table.scale(1.0, 1.8)
-    ax.set_title(title)
-    if footer is None and isinstance(analysis_or_card, SwingAnalysis):
-        footer = f"Largest residual after B and C: {analysis_or_card.max_residual_deg:.1f}° ({analysis_or_card.verdict})"
+    if analysis is None:
+        fig = Figure(figsize=(max(4.0, 0.7 * columns + 1.6), 2.2), layout="constrained")
+        ax = fig.subplots()
+        ax.set_axis_off()
+        table = ax.table(cellText=cells, rowLabels=["For magnetic", "Steer compass"], loc="center", cellLoc="center")
+        table.auto_set_font_size(False)
+        table.set_fontsize(11)
+        table.scale(1.0, 1.8)
+        ax.set_title(title, **plain)
+    else:
+        details = details or CardDetails()
+        ident = [f"{k}: {v}" for k, v in _card_ident_rows(details, analysis)]
+        bottom = [f"Card curve: {analysis.card_terms()}", *analysis.verdict_text().splitlines()]
+        fig = Figure(figsize=(max(8.0, 0.65 * columns + 2.0), 6.0))
+        fig.text(0.5, 0.965, title, ha="center", va="top", fontsize=14, weight="bold", **plain)
+        fig.text(0.04, 0.89, "\n".join(ident), ha="left", va="top", fontsize=8.5, linespacing=1.5, **plain)
+        ax = fig.add_axes((0.16, 0.40, 0.80, 0.13))
+        ax.set_axis_off()
+        table = ax.table(cellText=cells, rowLabels=["For magnetic", "Steer compass"], cellLoc="center", bbox=(0, 0, 1, 1))
+        table.auto_set_font_size(False)
+        table.set_fontsize(11)
+        fig.text(0.04, 0.33, "\n".join(bottom), ha="left", va="top", fontsize=8.5, linespacing=1.5, **plain)
+        fig.text(0.04, 0.07, f"Swung by: {details.swung_by or ''}", ha="left", fontsize=9, **plain)
+        for x, label in ((0.04, ""), (0.40, "Signature"), (0.72, "Date")):
+            fig.add_artist(Line2D([x + (0.12 if not label else 0.0), x + 0.24], [0.065, 0.065], color="black", linewidth=0.8))
+            if label:
+                fig.text(x, 0.035, label, ha="left", fontsize=8, **plain)
     if footer:
-        fig.text(0.5, 0.02, footer, ha="center", fontsize=8)
+        fig.text(0.5, 0.005, footer, ha="center", fontsize=8, **plain)
     return fig
-
