@@ -379,3 +379,64 @@ def test_variation_format_parse_round_trip(v, decimals):
     text = format_variation(v, decimals=decimals)
     assert text.endswith((" E", " W"))
     assert parse_variation(text.replace(" ", "")) == pytest.approx(v, abs=0.5 / 60 * 10**-decimals + 1e-9)
+
+
+# --------------------------------------------------------------------------- which polar grid
+
+
+HOBART = (-42.88, 147.33)  # a real city's position for the hemisphere check (rounded, public gazetteer)
+
+
+def test_auto_grid_is_the_nearest_pole():
+    from headingref.headings import polar_grid_for, resolve_grid
+
+    assert polar_grid_for([HOBART[0], -66.3]).name == "polar-south:0"
+    assert polar_grid_for([69.7, 78.2]).name == "polar:0"
+    assert resolve_grid("auto", [HOBART[0], -66.3]).name == "polar-south:0"
+    assert resolve_grid(None, [10.0, 70.0]).name == "polar:0"
+    assert resolve_grid("polar:-45", [-80.0]).name == "polar:-45"  # an explicit grid is kept
+    with pytest.raises(InputError, match="resolve_grid"):
+        parse_grid("auto")
+
+
+def test_southern_route_on_northern_grid_is_about_295_degrees_off():
+    # Snyder 1987 (USGS PP 1395) polar stereographic: convergence +(lon - lon0) on the north grid,
+    # -(lon - lon0) on the south grid, so at Hobart's 147.33 E the two grid courses differ by 2 x 147.33
+    # = 294.66 degrees (mod 360) -- the size of the slip the issue reports.
+    north = float(parse_grid("polar").convergence_deg(*HOBART))
+    south = float(parse_grid("polar-south").convergence_deg(*HOBART))
+    assert north == pytest.approx(HOBART[1], abs=1e-6)
+    assert south == pytest.approx(-HOBART[1], abs=1e-6)
+    assert (north - south) % 360.0 == pytest.approx(294.66, abs=1e-6)
+
+
+@pytest.mark.parametrize("spec,pole", [("polar", 1), ("polar-south:30", -1), ("EPSG:3413", 1), ("EPSG:3031", -1),
+                                       ("EPSG:32661", 1), ("lcc:60,70,10", 0), ("utm:33N", 0)])
+def test_polar_grids_know_their_pole(spec, pole):
+    # EPSG:3413 / 32661 are north polar stereographic, EPSG:3031 south (EPSG registry)
+    assert parse_grid(spec).pole == pole
+
+
+def test_polar_grid_far_from_its_pole_warns():
+    import warnings
+
+    from headingref.errors import DataQualityWarning
+    from headingref.headings import POLAR_GRID_MAX_POLE_DISTANCE_DEG, warn_if_far_from_pole
+
+    assert POLAR_GRID_MAX_POLE_DISTANCE_DEG == 60.0
+    # the southern grid at Hobart (47 deg from the south pole) is within the limit ...
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        assert warn_if_far_from_pole(parse_grid("polar-south"), [HOBART[0], -66.3]) is False
+        assert warn_if_far_from_pole(parse_grid("lcc:60,70,10"), [-70.0]) is False
+    # ... the northern grid is 156 deg from its pole at -66.3
+    with pytest.warns(DataQualityWarning, match=r"polar:0 is used 156° .* polar-south"):
+        assert warn_if_far_from_pole(parse_grid("polar"), [HOBART[0], -66.3], "the route") is True
+
+
+def test_polar_grid_scale_at_the_warning_limit():
+    # Why 60 deg: polar stereographic scale on WGS84 at 30 N (lat_ts = 90) from PROJ, against the
+    # spherical k = 2 / (1 + sin lat) of Snyder 1987 eq. 21-4 (phi1 = 90): both about 4/3 there.
+    grid = parse_grid("polar")
+    k = grid._proj.get_factors(0.0, 30.0).meridional_scale
+    assert k == pytest.approx(2.0 / (1.0 + math.sin(math.radians(30.0))), rel=0.01)

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import json
 import math
+import warnings
 from pathlib import Path
 
 import numpy as np
@@ -11,7 +12,7 @@ import pandas as pd
 import pytest
 from geographiclib.geodesic import Geodesic
 
-from headingref.errors import InputError
+from headingref.errors import DataQualityWarning, InputError
 from headingref.routes import meridian_distance_m, read_waypoints, rhumb_inverse, route, route_geojson
 
 DATA = Path(__file__).parent / "data"
@@ -47,7 +48,9 @@ def _random_chain(n):
 @pytest.fixture(scope="module")
 def chain_result():
     wps = _random_chain(24)
-    return wps, route(wps, DATE, spacing_nm=300.0, grid="polar")
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", DataQualityWarning)  # the chain reaches the south pole on a north grid on purpose
+        return wps, route(wps, DATE, spacing_nm=300.0, grid="polar")
 
 
 def test_geodesic_legs_match_geographiclib(chain_result):
@@ -359,3 +362,80 @@ def test_cli_bad_input_writes_nothing(tmp_path, capsys):
     err = capsys.readouterr().err
     assert "at least two waypoints" in err and err.count("\n") == 1
     assert not legs.exists() and list(tmp_path.iterdir()) == [csv]
+
+
+# --------------------------------------------------------------------------- grids, heights and forms (issues 11, 13, 17)
+
+
+SOUTH_ROUTE = [("DEPART", -42.88, 147.33, "0 ft"), ("ICEEDGE", -66.28, 110.53, "FL310")]  # the issue's southern case
+
+
+def test_southern_route_default_grid_is_the_south_polar_grid():
+    # Snyder 1987 (USGS PP 1395) south polar stereographic on Greenwich: C = -(lon - 0), so
+    # grid = true + lon at every sample (and not true - lon, the north grid's rule).
+    legs, samples = route(SOUTH_ROUTE, DATE, spacing_nm=100.0)
+    assert legs.attrs["grid"] == "polar-south:0"
+    assert np.max(angle_diff(samples.grid_course_deg, samples.true_course_deg + samples.lon_deg)) < 1e-6
+    auto, _ = route(SOUTH_ROUTE, DATE, spacing_nm=100.0, grid="auto")
+    assert np.allclose(auto.grid_course_deg, legs.grid_course_deg)
+
+
+def test_explicit_northern_grid_on_a_southern_route_warns():
+    from headingref.errors import DataQualityWarning
+
+    with pytest.warns(DataQualityWarning, match="polar:0 is used"):
+        route(SOUTH_ROUTE, DATE, spacing_nm=100.0, grid="polar")
+
+
+def test_route_altitude_units(tmp_path):
+    # international foot, 0.3048 m exactly (1959): 35,000 ft = 10.668 km
+    csv = tmp_path / "r.csv"
+    csv.write_text("name,lat,lon,alt_ft\nA,70,10,0\nB,71,12,35000\n", encoding="utf-8")
+    assert read_waypoints(csv).alt_km.tolist() == pytest.approx([0.0, 10.668])
+    csv.write_text("name,lat,lon,alt_m\nA,70,10,120\nB,71,12,\n", encoding="utf-8")
+    assert read_waypoints(csv, alt_km=1.0).alt_km.tolist() == pytest.approx([0.12, 1.0])
+
+
+@pytest.mark.parametrize(
+    "header,cell,match",
+    [("alt", "350", r"r.csv line 3: height '350' has no unit.*FL350"),
+     ("alt_km", "350", r"r.csv line 3: height '350' is 350 km.*FL350 or 35000 ft"),
+     ("alt", "35 km", r"r.csv line 3: .*35 km.*FL350")],
+)
+def test_bare_or_impossible_altitude_refused(tmp_path, header, cell, match):
+    csv = tmp_path / "r.csv"
+    csv.write_text(f"name,lat,lon,{header}\nA,70,10,0 ft\nB,71,12,{cell}\n".replace(",0 ft", ",0"), encoding="utf-8")
+    with pytest.raises(InputError, match=match):
+        route(csv, DATE)
+
+
+def test_dict_waypoints_follow_the_same_height_rule():
+    with pytest.raises(InputError, match=r"waypoint 2 \(B\): height 350.0 has no unit"):
+        read_waypoints([{"name": "A", "lat": 70, "lon": 10}, {"name": "B", "lat": 71, "lon": 12, "alt": 350.0}])
+    wps = read_waypoints([{"name": "A", "lat": 70, "lon": 10, "alt_ft": 1000}, {"name": "B", "lat": 71, "lon": 12}])
+    assert wps.alt_km.iloc[0] == pytest.approx(0.3048)
+
+
+def test_compact_coordinates_give_the_same_legs(tmp_path):
+    # 7443N 09458W = 74 deg 43' N, 94 deg 58' W (compact trade form; DDMM / DDDMM)
+    compact, plain = tmp_path / "c.csv", tmp_path / "p.csv"
+    compact.write_text("name,lat,lon\nA,7443N,09458W\nB,N8130.5,W06215.0\n", encoding="utf-8")
+    plain.write_text(f"name,lat,lon\nA,{74 + 43 / 60!r},{-(94 + 58 / 60)!r}\nB,{81 + 30.5 / 60!r},{-(62 + 15 / 60)!r}\n",
+                     encoding="utf-8")
+    a, b = route(compact, DATE).legs, route(plain, DATE).legs
+    assert a.distance_nm.iloc[0] == pytest.approx(b.distance_nm.iloc[0], abs=1e-9)
+    # and the distance itself against geographiclib (Karney 2013)
+    ref = WGS84.Inverse(74 + 43 / 60, -(94 + 58 / 60), 81 + 30.5 / 60, -(62 + 15 / 60))["s12"] / NM
+    assert a.distance_nm.iloc[0] == pytest.approx(ref, abs=1e-6)
+
+
+def test_output_schema_and_zone_dtype(chain_result):
+    from headingref.field import ZONE_DTYPE
+    from headingref.routes import LEG_COLUMNS, SAMPLE_COLUMNS
+
+    _, (legs, samples) = chain_result
+    assert tuple(legs.columns) == LEG_COLUMNS and tuple(samples.columns) == SAMPLE_COLUMNS
+    assert legs.zone.dtype == ZONE_DTYPE and samples.zone.dtype == ZONE_DTYPE
+    # worst zone of a leg is the max of its samples' zones (ordered normal < caution < blackout)
+    worst = samples.groupby("leg", observed=True).zone.max()
+    assert list(worst.astype(str)) == list(legs.zone.astype(str))
