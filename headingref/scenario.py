@@ -160,6 +160,14 @@ class Scenario:
     def model_name(self) -> str:
         return "IGRF-14" if self.model is None else self.model.name
 
+    def input_paths(self) -> list[Path]:
+        """Every file the scenario reads: the TOML itself, a coefficient file and each section's files."""
+        paths = [self.path] + ([self.model] if isinstance(self.model, Path) else [])
+        if self.routes:
+            paths += [plan["file"] for plan in self.routes["plan"]]
+        paths += [section["file"] for section in (self.compass_bases, self.swing, self.runways) if section]
+        return paths
+
     def heading_error_options(self, manoeuvre: bool = True) -> dict:
         """The ``[error_budget]`` section as keyword arguments of :func:`headingref.heading_error`
         and :func:`headingref.detector.heading_error_grid` (defaults when the section is absent).

@@ -2,8 +2,7 @@
 
 from __future__ import annotations
 
-import html
-import re
+import sys
 from pathlib import Path
 
 EXAMPLES = """\
@@ -16,7 +15,8 @@ def add_report_options(parser, default_out: str | None) -> None:
     """Options shared by ``report`` and ``demo``."""
     parser.add_argument(
         "--out", metavar="DIR", required=default_out is None, default=default_out,
-        help="folder for report.html and the CSV/GeoJSON files (created if missing)"
+        help="folder for report.html and the CSV/GeoJSON files (created if missing; an earlier report there is "
+        "replaced as a whole; a folder holding the scenario's inputs or other files is refused)"
         + (f"; default {default_out}" if default_out else ""),
     )
     parser.add_argument("--no-progress", action="store_true", help="do not show the progress bar")
@@ -41,25 +41,17 @@ def register(subparsers) -> None:
     parser.set_defaults(func=run)
 
 
-def plain(text: str) -> str:
-    """Summary line without HTML markup."""
-    return html.unescape(re.sub(r"<[^>]+>", "", text))
-
-
 def run_report(scenario: str | Path, out: str | Path, progress: bool) -> int:
+    """Build the report, print its summary; exit status 1 when a section could not be made."""
     from ..report import build_report
+    from .common import strip_controls
 
     result = build_report(scenario, out, progress=progress)
-    titles = {"routes": "Routes", "bases": "Compass bases", "runways": "Runways", "swing": "Compass swing", "zones": "Zones"}
-    for key, lines in result.summary.items():
-        if lines:
-            print(f"{titles.get(key, key)}:")
-            for line in lines:
-                print(f"  - {plain(line)}")
-    for key, why in result.skipped.items():
-        print(f"not in the report: {key}: {why}")
+    print(strip_controls(result.summary_text()))
+    for key, why in result.failed.items():
+        print(f"headingref report: error: section {key} could not be made: {strip_controls(why)}", file=sys.stderr)
     print(f"report: {result.html}  ({len(result.files)} files in {result.out_dir})")
-    return 0
+    return 1 if result.failed else 0
 
 
 def run(args) -> int:

@@ -95,23 +95,25 @@ def _draw_boundaries(ax, to_map, collection: dict, bounds: list[float], colours:
                     start = i + 1
 
 
-def plot_zone_map(ds, *, tracks=None, title: str | None = None, figsize: tuple[float, float] = (7.5, 7.5)):
+def plot_zone_map(ds, *, tracks=None, title: str | None = None, figsize: tuple[float, float] = (7.5, 7.5),
+                  lines=None, shade_latest: bool = False):
     """Map of the weak-field zones of a :func:`headingref.zones` Dataset.
 
     The first date's zones are shaded; with a second date (a two-step ``time`` dimension, as
     from :func:`headingref.zones.zone_change`) its boundaries are drawn dashed on top. ``tracks``
-    (a :func:`headingref.pole_tracks` table) adds the pole tracks of the map's hemisphere.
+    (a :func:`headingref.pole_tracks` table) adds the pole tracks of the map's hemisphere. ``lines``
+    ((label, lon, lat) each, e.g. routes) are drawn on top; ``shade_latest`` shades the last date instead.
     """
     from matplotlib.patches import Patch
 
     from ..zones import zone_geojson
-    from .basemap import draw_geojson, map_axes
+    from .basemap import draw_geojson, map_axes, plot_lonlat
 
     kind, extent = _map_for(ds)
     bounds = list(ds.attrs.get("area_bounds", [50.0, 90.0, -180.0, 180.0]))
     ax, to_map = map_axes(kind, extent, figsize=figsize)
     collection = zone_geojson(ds)
-    dates = sorted({f["properties"]["date"] for f in collection["features"]})
+    dates = sorted({f["properties"]["date"] for f in collection["features"]}, reverse=shade_latest)
     labels = list(ds.attrs.get("zone_labels", ["blackout", "caution"]))
     colours = _band_colours(labels)
     handles = []
@@ -124,10 +126,12 @@ def plot_zone_map(ds, *, tracks=None, title: str | None = None, figsize: tuple[f
         later = {"type": "FeatureCollection", "features": [f for f in collection["features"] if f["properties"]["date"] == date]}
         _draw_boundaries(ax, to_map, later, bounds, colours, linestyle="--", linewidth=1.4, zorder=3)
         handles.append(Patch(facecolor="none", edgecolor="0.2", linestyle="--", label=f"boundaries {date}"))
+    for i, (label, lon, lat) in enumerate(lines or ()):
+        plot_lonlat(ax, to_map, lon, lat, color=f"C{i}", linewidth=1.6, zorder=4, label=str(label))
     if tracks is not None and len(tracks):
         _draw_tracks(ax, to_map, tracks, kind)
-        line_handles, _ = ax.get_legend_handles_labels()
-        handles.extend(line_handles)
+    line_handles, _ = ax.get_legend_handles_labels()
+    handles.extend(line_handles)
     if handles:
         ax.legend(handles=handles, loc="lower left", fontsize=7, framealpha=0.85)
     thresholds = ds.attrs.get("thresholds_nT", [2000.0, 6000.0])
