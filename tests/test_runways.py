@@ -169,7 +169,8 @@ def test_designator_round_trip_and_double_reciprocal(number, suffix):
 def _geographiclib_midpoint(lat1, lon1, lat2, lon2):
     line = Geodesic.WGS84.Inverse(lat1, lon1, lat2, lon2)
     mid = Geodesic.WGS84.Direct(lat1, lon1, line["azi1"], line["s12"] / 2.0)
-    return line["azi1"] % 360.0, line["s12"], mid["lat2"], mid["lon2"]
+    # azi2 of the direct problem: the forward azimuth of the geodesic at the midpoint
+    return mid["azi2"] % 360.0, line["s12"], mid["lat2"], mid["lon2"]
 
 
 def test_true_azimuth_length_and_midpoint_against_geographiclib():
@@ -183,8 +184,10 @@ def test_true_azimuth_length_and_midpoint_against_geographiclib():
         # geographiclib (Karney 2013) geodesic inverse and direct problems on WGS84
         assert got.true_bearing_deg == pytest.approx(azimuth, abs=1e-9)
         assert got.length_m == pytest.approx(length, abs=1e-6)
-        assert got.mid_lat_deg == pytest.approx(mid_lat, abs=1e-10)
-        assert got.mid_lon_deg == pytest.approx(mid_lon, abs=1e-10)
+        # the variation is taken at the same point as the azimuth: the midpoint of the first-listed end
+        # of each pair (both ends of a consistent pair share it to well under a millimetre)
+        assert got.ref_lat_deg == pytest.approx(mid_lat, abs=1e-6)
+        assert got.ref_lon_deg == pytest.approx(mid_lon, abs=1e-6)
 
 
 def test_variation_against_ppigrf():
@@ -192,7 +195,7 @@ def test_variation_against_ppigrf():
     result = _quiet_check(DATA / "runways_demo.csv", DATE, horizon_years=1)
     table = result.table
     east, north, _ = ppigrf.igrf(
-        table.mid_lon_deg.to_numpy(), table.mid_lat_deg.to_numpy(), table.alt_km.to_numpy(), dt.datetime(2026, 12, 2)
+        table.ref_lon_deg.to_numpy(), table.ref_lat_deg.to_numpy(), table.alt_km.to_numpy(), dt.datetime(2026, 12, 2)
     )
     reference = np.degrees(np.arctan2(east.ravel(), north.ravel()))
     # ppigrf (IGRF-14, geodetic components): same model, independent synthesis; 0.001 deg
@@ -207,7 +210,7 @@ def test_variation_against_ppigrf():
 def test_elevation_units_change_the_height_used():
     table = pd.read_csv(DATA / "runways_demo.csv", dtype=str, keep_default_na=False)
     result = _quiet_check(DATA / "runways_demo.csv", DATE, horizon_years=0)
-    # 1 ft = 0.3048 m exactly (international foot, 1959); plain numbers are metres
+    # 1 ft = 0.3048 m exactly (international foot, 1959); a bare number needs the unit in the column name
     assert table.elevation[6] == "1450 ft"
     assert result.table.alt_km[6] == pytest.approx(1450 * 0.3048e-3, rel=1e-12)
     assert result.table.alt_km[2] == pytest.approx(0.204, rel=1e-12)
@@ -229,12 +232,14 @@ def test_demo_verdicts_and_pairs():
     for key, row in t.iterrows():
         published = int(key.split()[1][:2])
         implied = int(row.designator_implied[:2])
+        fits = published == implied
         if row.margin_deg <= result.summary["tolerance_deg"]:
-            assert row.verdict == "on boundary", key
+            assert row.verdict == ("match near boundary" if fits else "mismatch within band"), key
         else:
-            assert row.verdict == ("match" if published == implied else "mismatch"), key
-    assert result.summary["rows"] == 11
-    assert result.summary["match"] + result.summary["mismatch"] + result.summary["on_boundary"] == 11
+            assert row.verdict == ("match" if fits else "mismatch"), key
+    s = result.summary
+    assert s["rows"] == 11
+    assert s["match"] + s["mismatch"] + s["match_near_boundary"] + s["mismatch_within_band"] == 11
 
 
 def test_tolerance_band_gives_on_boundary_instead_of_a_verdict():
@@ -250,7 +255,8 @@ def test_tolerance_band_gives_on_boundary_instead_of_a_verdict():
     wide = _quiet_check(ends, DATE, horizon_years=0, tolerance_deg=0.25)
     # Both readings either side of 85 (FAA AIM 4-3-6: either designation is possible) are 'on boundary';
     # a number that is neither is a mismatch.
-    assert wide.table.verdict.tolist() == ["on boundary", "on boundary", "mismatch"]
+    # Issue 11 item 7: 09 still fits near the boundary; 08 no longer fits but is within the band.
+    assert wide.table.verdict.tolist() == ["mismatch within band", "match near boundary", "mismatch"]
     assert wide.table.designator_implied.tolist() == ["09", "09", "09"]
     assert wide.table.designator_matches.tolist() == [False, True, False]
     narrow = _quiet_check(ends, DATE, horizon_years=0, tolerance_deg=0.05)
@@ -396,7 +402,7 @@ def test_bad_rows_are_reported_and_the_batch_continues():
     # reciprocal ends found by coordinates though their designators disagree (09 vs 26; 26's reciprocal is 08)
     assert by[("MISPAIR", "09")].pair_runway == "26" and "08" in by[("MISPAIR", "09")].pair_check
     # the good rows were computed: degrees-minutes text parsed, the true bearing used as given
-    assert by[("TEXTCOORD", "27")].mid_lat_deg == pytest.approx(61.7) and by[("TEXTCOORD", "27")].true_bearing_deg == 270.0
+    assert by[("TEXTCOORD", "27")].ref_lat_deg == pytest.approx(61.7) and by[("TEXTCOORD", "27")].true_bearing_deg == 270.0
     assert np.isfinite(by[("GOODFIELD", "10")].magnetic_bearing_deg)
     assert by[("GOODFIELD", "10")].pair_runway == "28"
     assert result.summary["errors"] == 7 and result.summary["warnings"] == 4
@@ -429,7 +435,8 @@ def test_dataframe_input_with_numbers_and_bad_cells():
     assert t.pair_runway.tolist()[:2] == ["27", "9"] and t.pair_check.tolist()[:2] == ["ok", "ok"]
     assert "elevation" in t.reason[2] and t.input_row[2] == "row 2"
     assert t.verdict[2] == ""  # an error row gets no verdict
-    azimuth = Geodesic.WGS84.Inverse(61.0, 10.0, lat2, lon2)["azi1"]  # geographiclib
+    line = Geodesic.WGS84.Inverse(61.0, 10.0, lat2, lon2)  # geographiclib: azimuth at the midpoint
+    azimuth = Geodesic.WGS84.Direct(61.0, 10.0, line["azi1"], line["s12"] / 2.0)["azi2"]
     assert t.true_bearing_deg[0] == pytest.approx(azimuth, abs=1e-9)
     assert t.alt_km[3] == pytest.approx(300 * 0.3048e-3)  # international foot (1959)
     with pytest.raises(InputError, match="end_lat and end_lon"):

@@ -1,0 +1,232 @@
+"""Tables as they come from authorities and open datasets: column mappings and Excel files.
+
+- :func:`parse_column_mapping` reads ``"runway=ident,lat=le_lat"`` (headingref's name on the
+  left, the file's column on the right) into a dict.
+- :func:`read_source` reads a CSV (through :func:`headingref.io.read_table`) or an Excel
+  workbook (``.xlsx``, first sheet, through openpyxl), renames mapped columns to headingref's
+  names and checks the required ones. The result is the same as ``read_table``'s: a DataFrame of
+  stripped strings indexed by the row number in the file (the line of a CSV, the sheet row of a
+  workbook), with ``attrs['source']`` the file name, so that every later error names its row.
+- :func:`write_table` writes a result table as CSV or ``.xlsx`` (by the file name), with values
+  rounded per column and, in a workbook, the unit beside each column name in the header.
+
+Writing goes through :func:`headingref.io.atomic_path` (temporary file, then rename).
+"""
+
+from __future__ import annotations
+
+import math
+import os
+from collections.abc import Mapping, Sequence
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from .errors import InputError
+from .io import MAX_TABLE_BYTES, atomic_path, read_table
+
+__all__ = ["apply_column_mapping", "parse_column_mapping", "read_source", "write_table"]
+
+EXCEL_SUFFIXES = (".xlsx", ".xlsm")
+
+
+def parse_column_mapping(text: str | Mapping[str, str] | None, accepted: Sequence[str], what: str = "--columns") -> dict[str, str]:
+    """``'runway=ident,lat=le_lat'`` -> ``{'runway': 'ident', 'lat': 'le_lat'}`` (lower case).
+
+    Left of ``=``: headingref's column name (one of ``accepted``); right: the column in the file.
+    A dict is checked the same way. Raises InputError naming the bad item and what is accepted.
+    """
+    if text is None or (isinstance(text, str) and not text.strip()):
+        return {}
+    if isinstance(text, Mapping):
+        items = [(str(k), str(v)) for k, v in text.items()]
+    elif isinstance(text, str):
+        items = []
+        for part in (p for p in text.split(",") if p.strip()):
+            if part.count("=") != 1:
+                raise InputError(f"{what}: {part.strip()!r} is not NAME=COLUMN; write e.g. runway=ident,lat=le_lat")
+            left, right = part.split("=")
+            items.append((left, right))
+    else:
+        raise InputError(f"{what} = {text!r} must be text such as 'runway=ident,lat=le_lat'")
+    mapping: dict[str, str] = {}
+    for left, right in items:
+        name, column = left.strip().lower(), right.strip().lower()
+        if name not in accepted:
+            raise InputError(f"{what}: {name!r} is not a column headingref reads here; accepted: {', '.join(accepted)}")
+        if not column:
+            raise InputError(f"{what}: {name}= names no column of the file")
+        if name in mapping:
+            raise InputError(f"{what}: {name} is mapped twice")
+        mapping[name] = column
+    sources = list(mapping.values())
+    dupes = sorted({c for c in sources if sources.count(c) > 1})
+    if dupes:
+        raise InputError(f"{what}: file column(s) {', '.join(dupes)} mapped to more than one name")
+    return mapping
+
+
+def apply_column_mapping(frame: pd.DataFrame, mapping: Mapping[str, str], what: str = "table") -> pd.DataFrame:
+    """Rename the file's columns to headingref's names; a mapped column that is absent is an InputError.
+
+    A file column already carrying a headingref name that another column is mapped onto is
+    dropped (the mapping wins).
+    """
+    if not mapping:
+        return frame
+    columns = [str(c).strip().lower() for c in frame.columns]
+    missing = [f"{src} (for {name})" for name, src in mapping.items() if src not in columns]
+    if missing:
+        raise InputError(f"{what}: mapped column(s) {', '.join(missing)} not in the file; found {', '.join(columns) or 'none'}")
+    out = frame.copy()
+    out.columns = columns
+    shadowed = [name for name, src in mapping.items() if name in columns and name != src and name not in mapping.values()]
+    out = out.drop(columns=shadowed)
+    out = out.rename(columns={src: name for name, src in mapping.items()})
+    out.attrs = dict(frame.attrs)
+    return out
+
+
+def _cell_text(value) -> str:
+    """An Excel cell as the text a CSV would hold: whole floats without '.0', dates as ISO."""
+    if value is None:
+        return ""
+    if isinstance(value, bool):
+        return str(value).lower()
+    if isinstance(value, float):
+        if not math.isfinite(value):
+            return ""
+        return str(int(value)) if value.is_integer() and abs(value) < 1e15 else repr(value)
+    if hasattr(value, "isoformat"):
+        text = value.isoformat()
+        return text[:10] if text.endswith("T00:00:00") else text
+    return str(value).strip()
+
+
+def _read_xlsx(path: Path, required: Sequence[str], what: str) -> pd.DataFrame:
+    label = f"{what} {path.name}"
+    try:
+        from openpyxl import load_workbook
+    except ImportError:  # pragma: no cover - openpyxl is a dependency
+        raise InputError(f"{label}: reading .xlsx needs openpyxl (pip install openpyxl)") from None
+    try:
+        if path.stat().st_size > MAX_TABLE_BYTES:
+            raise InputError(f"{label}: file is larger than {MAX_TABLE_BYTES // 2**20} MiB")
+        book = load_workbook(path, read_only=True, data_only=True)
+    except InputError:
+        raise
+    except Exception as exc:  # zipfile.BadZipFile, KeyError, OSError: not a workbook
+        raise InputError(f"{label}: not a readable Excel workbook ({type(exc).__name__}); save it as .xlsx or CSV") from None
+    try:
+        sheet = book.worksheets[0]
+        header: list[str] | None = None
+        rows: list[list[str]] = []
+        numbers: list[int] = []
+        for number, values in enumerate(sheet.iter_rows(values_only=True), start=1):
+            cells = [_cell_text(v) for v in values]
+            if not any(cells):
+                continue
+            if header is None:
+                header = [c.lower() for c in cells]
+                while header and not header[-1]:
+                    header.pop()
+                continue
+            if len(cells) > len(header) and any(cells[len(header):]):
+                raise InputError(f"{label} row {number}: {len(cells)} cells but the header has {len(header)}")
+            rows.append((cells + [""] * len(header))[: len(header)])
+            numbers.append(number)
+    finally:
+        book.close()
+    if header is None:
+        raise InputError(f"{label}: the first sheet is empty; it needs a header row with columns {', '.join(required)}")
+    dupes = sorted({h for h in header if h and header.count(h) > 1})
+    if dupes:
+        raise InputError(f"{label}: column(s) {', '.join(dupes)} appear more than once in the header")
+    if not rows:
+        raise InputError(f"{label}: the header is there but no data rows follow")
+    table = pd.DataFrame(rows, columns=header, index=pd.Index(numbers, name="line"), dtype=str)
+    table.attrs["source"] = path.name
+    return table
+
+
+def read_source(
+    path: str | os.PathLike,
+    required: Sequence[str],
+    optional: Sequence[str] = (),
+    what: str = "table",
+    columns: Mapping[str, str] | None = None,
+) -> pd.DataFrame:
+    """Read a CSV or ``.xlsx`` table, apply a column mapping and check the required columns.
+
+    Returns the DataFrame :func:`headingref.io.read_table` returns (strings, index = row number in
+    the file, ``attrs['source']``).
+    """
+    path = Path(path)
+    mapping = dict(columns or {})
+    if path.suffix.lower() in EXCEL_SUFFIXES:
+        if not path.is_file():
+            raise InputError(f"{what} {path.name}: no such file {str(path)!r}")
+        frame = _read_xlsx(path, required, what)
+    elif mapping:
+        frame = read_table(path, required=(), optional=(), what=what)
+    else:
+        return read_table(path, required=required, optional=optional, what=what)
+    frame = apply_column_mapping(frame, mapping, f"{what} {path.name}")
+    missing = [c for c in required if c not in frame.columns]
+    if missing:
+        accepted = ", ".join(list(required) + [f"[{c}]" for c in optional])
+        raise InputError(
+            f"{what} {path.name}: missing column(s) {', '.join(missing)}; found {', '.join(frame.columns) or 'none'}; "
+            f"expected {accepted} (or map yours with --columns NAME=COLUMN,...)"
+        )
+    return frame
+
+
+def write_table(
+    target: str | os.PathLike,
+    frame: pd.DataFrame,
+    units: Mapping[str, str] | None = None,
+    decimals: Mapping[str, int] | None = None,
+    sheet: str = "headingref",
+) -> Path:
+    """Write ``frame`` as CSV, or as an Excel workbook when the name ends in ``.xlsx``.
+
+    ``decimals`` rounds float columns (others keep 4 decimals in a CSV, full precision rounded to
+    6 in a workbook); ``units`` adds the unit to the header in a workbook (``variation_deg (deg,
+    east positive)``). Missing values are empty cells. Atomic (temporary file, then rename).
+    """
+    target = Path(target)
+    decimals = dict(decimals or {})
+    out = frame.copy()
+    for name in out.columns:
+        if out[name].dtype.kind == "f":
+            out[name] = out[name].round(decimals.get(name, 6))
+    if target.suffix.lower() not in EXCEL_SUFFIXES:
+        with atomic_path(target) as tmp:
+            out.to_csv(tmp, index=False)
+        return target
+    from openpyxl import Workbook
+
+    units = dict(units or {})
+    book = Workbook(write_only=True)
+    ws = book.create_sheet(sheet[:31])
+    ws.append([f"{c} ({units[c]})" if units.get(c) else str(c) for c in out.columns])
+    columns = [out[c].to_numpy(dtype=object) for c in out.columns]
+    for i in range(len(out)):
+        ws.append([_excel_value(col[i]) for col in columns])
+    with atomic_path(target) as tmp:
+        book.save(tmp)
+    return target
+
+
+def _excel_value(value):
+    if value is None or value is pd.NA or value is pd.NaT:
+        return None
+    if isinstance(value, (float, np.floating)):
+        return None if not math.isfinite(value) else float(value)
+    if isinstance(value, (bool, np.bool_)):
+        return bool(value)
+    if isinstance(value, (int, np.integer)):
+        return int(value)
+    return str(value)
