@@ -22,9 +22,13 @@ it includes the local crustal field, which the main-field model omits. The model
   the change observed since the first one is compared with the model's change;
 - the declination uncertainty (WMM error model) and the zone (normal / caution / blackout), with
   the caution that local crustal anomalies are not in the model;
-- :func:`setting_out`: for each marked magnetic heading line, its true and grid azimuth and the
-  coordinates of points at given distances from the base centre along it (WGS84 forward geodesic,
-  :meth:`pyproj.Geod.fwd`).
+- :func:`setting_out`: for each marked magnetic heading line (laid out with the *marked* variation),
+  its true and grid azimuth and the points at given distances from the base centre along it: east
+  and north metres from the centre, latitude and longitude (WGS84 forward geodesic,
+  :meth:`pyproj.Geod.fwd`) and UTM easting and northing (pyproj).
+
+``base_upkeep`` is a pipeline of named steps: check the sites and dates, evaluate the model for all
+sites at once (:class:`_UpkeepState`), build one row per site, warn once per kind of finding.
 
 Conventions: variation east positive (``true = magnetic + variation``); grid azimuth
 ``= true - convergence`` (see :mod:`headingref.headings`); distances in metres.
@@ -36,8 +40,8 @@ declination_deg_per_year)`` on numpy arrays.
 Public API
 ----------
 :class:`Site`, :func:`make_site`, :func:`read_sites_csv`, :func:`base_upkeep`, :func:`setting_out`,
-:func:`setting_out_parameters`, :func:`model_variation_function`, :data:`DEFAULT_TOLERANCE_DEG`, :data:`DEFAULT_MARK_STEP_DEG`,
-:data:`SITE_CAUTION`.
+:func:`setting_out_parameters`, :func:`model_variation_function`, :func:`utm_zone`, :data:`DEFAULT_TOLERANCE_DEG`,
+:data:`DEFAULT_MARK_STEP_DEG`, :data:`SITE_CAUTION`, :data:`UPKEEP_COLUMNS`, :data:`SETTING_OUT_COLUMNS`.
 
 >>> from headingref.compass_base import make_site, base_upkeep, setting_out
 >>> site = make_site("North apron base", 69.3, 16.1, "9°30′E", "2026-06-01")
@@ -65,8 +69,24 @@ import pandas as pd
 import pyproj
 
 from .errors import DataQualityWarning, ExtrapolationWarning, InputError
-from .headings import format_heading, format_variation, normalize_heading, parse_grid, parse_variation
-from .units import decimal_year, parse_coordinate, parse_height_km, timestamp_from_decimal_year
+from .headings import (
+    AUTO_GRID,
+    format_heading,
+    format_variation,
+    normalize_heading,
+    parse_grid,
+    parse_variation,
+    resolve_grid,
+    warn_if_far_from_pole,
+)
+from .units import (
+    ROUTE_HEIGHT_MAX_KM,
+    decimal_year,
+    height_column,
+    parse_coordinate,
+    parse_height_km,
+    timestamp_from_decimal_year,
+)
 
 __all__ = [
     "DEFAULT_MARK_STEP_DEG",
@@ -79,6 +99,9 @@ __all__ = [
     "read_sites_csv",
     "setting_out",
     "setting_out_parameters",
+    "utm_zone",
+    "SETTING_OUT_COLUMNS",
+    "UPKEEP_COLUMNS",
 ]
 
 DEFAULT_TOLERANCE_DEG = 0.5
@@ -100,6 +123,25 @@ STEP_YEARS = 1.0 / 24.0
 
 EXTRAPOLATION_HORIZON_YEARS = 25.0
 """How far past the model's validity the search runs when extrapolation is opted in."""
+
+UPKEEP_COLUMNS = (
+    "name", "row", "lat_deg", "lon_deg", "alt_km", "survey_date", "swing_date", "surveys",
+    "surveyed_variation_deg", "model_variation_at_survey_deg", "survey_minus_model_deg",
+    "model_variation_deg", "annual_change_min_per_year", "annual_change", "model_change_since_survey_deg",
+    "predicted_variation_deg", "variation_to_mark_deg", "variation_to_mark", "variation_record",
+    "tolerance_deg", "survey_off_year", "survey_off_date", "survey_off_note",
+    "mark_off_year", "mark_off_date", "mark_off_note",
+    "resurvey_years", "resurvey_due_year", "resurvey_due_date", "resurvey_reason", "overdue",
+    "history_minus_model_deg", "horizontal_nT", "declination_uncertainty_deg", "zone", "caution",
+)
+"""Columns of :func:`base_upkeep`'s table, in order."""
+
+SETTING_OUT_COLUMNS = (
+    "name", "line", "magnetic_heading_deg", "variation_deg", "variation_used", "true_azimuth_deg",
+    "convergence_deg", "grid_azimuth_deg", "distance_m", "east_m", "north_m", "lat_deg", "lon_deg",
+    "utm_zone", "utm_easting_m", "utm_northing_m",
+)
+"""Columns of :func:`setting_out`'s table, in order (the two grid columns only when a grid is given)."""
 
 VariationFunction = Callable[[np.ndarray, np.ndarray, np.ndarray, np.ndarray], tuple[np.ndarray, np.ndarray]]
 
@@ -152,7 +194,8 @@ def make_site(
     ``lat``/``lon`` as :func:`headingref.units.parse_coordinate` accepts; ``surveyed_variation`` as
     :func:`headingref.headings.parse_variation` (``12.5W``, ``12°30′W``, ``E3.2``, ``-12.5``);
     ``survey_date`` any date or decimal year, not in the future (``today`` overrides the clock);
-    ``alt_km`` as :func:`headingref.units.parse_height_km`. Errors name ``row`` (or the site).
+    ``alt_km`` as :func:`headingref.units.parse_height_km` (km, or text with a unit; at most 30 km).
+    Errors name ``row`` (or the site).
     """
     where = row or f"site {name!r}"
     try:
@@ -160,7 +203,7 @@ def make_site(
         lon_deg = parse_coordinate(lon, "lon")
         variation = parse_variation(surveyed_variation)
         survey_year = float(decimal_year(survey_date))
-        alt = parse_height_km(alt_km)
+        alt = parse_height_km(alt_km, max_km=ROUTE_HEIGHT_MAX_KM)
     except InputError as exc:
         raise InputError(f"{where}: {exc}") from None
     now = _now_year() if today is None else float(decimal_year(today))
@@ -176,7 +219,8 @@ def make_site(
 
 def read_sites_csv(path: str | os.PathLike, tolerance_deg: float | None = None, resurvey_years: float | None = None, today=None) -> list[Site]:
     """Read sites from a CSV: ``name, lat, lon, surveyed_variation, survey_date`` and optional
-    ``tolerance_deg, resurvey_years, alt`` (alt in km, or with a unit: ``35 m``).
+    ``tolerance_deg, resurvey_years`` and a height: ``alt`` with a unit in each value (``35 m``,
+    ``120 ft``; a bare number is refused) or ``alt_m``/``alt_ft``/``alt_km`` (numbers in that unit).
 
     Empty optional cells take ``tolerance_deg`` / ``resurvey_years`` given here. Several rows with
     one name are that base's survey history: the latest survey is returned, with the earlier ones
@@ -188,9 +232,13 @@ def read_sites_csv(path: str | os.PathLike, tolerance_deg: float | None = None, 
     table = read_table(
         path,
         required=["name", "lat", "lon", "surveyed_variation", "survey_date"],
-        optional=["tolerance_deg", "resurvey_years", "alt"],
+        optional=["tolerance_deg", "resurvey_years", "alt", "alt_m", "alt_ft", "alt_km"],
         what="compass bases",
     )
+    try:
+        height, height_unit = height_column(table.columns, "alt")
+    except InputError as exc:
+        raise InputError(f"{table.attrs['source']}: {exc}") from None
     sites = []
     for line, record in table.iterrows():
         where = f"{table.attrs['source']} line {line}"
@@ -206,6 +254,11 @@ def read_sites_csv(path: str | os.PathLike, tolerance_deg: float | None = None, 
                 raise InputError(f"{where}: {column} {cell!r} is not a number") from None
         if not record["name"]:
             raise InputError(f"{where}: name is empty; give each base a name")
+        cell = record[height] if height else ""
+        try:
+            alt = parse_height_km(cell, default_unit=height_unit, max_km=ROUTE_HEIGHT_MAX_KM) if cell else 0.0
+        except InputError as exc:
+            raise InputError(f"{where}: {exc}") from None
         sites.append(
             make_site(
                 record["name"],
@@ -213,7 +266,7 @@ def read_sites_csv(path: str | os.PathLike, tolerance_deg: float | None = None, 
                 record["lon"],
                 record["surveyed_variation"],
                 record["survey_date"],
-                alt_km=record.get("alt", "") or 0.0,
+                alt_km=alt,
                 row=where,
                 today=today,
                 **extra,
@@ -395,18 +448,38 @@ def base_upkeep(
 
     Dates are ``YYYY-MM-DD`` text ('' when none), decimal years in the ``*_year`` columns.
     """
-    from .field import field
     from .model import load_model
 
-    if isinstance(sites, Site):
-        sites = [sites]
-    sites = list(sites)
-    if not sites:
-        raise InputError("no compass bases given; give at least one site")
+    sites = _site_list(sites)
     if not math.isfinite(mark_step_deg) or not 0.01 <= mark_step_deg <= 5:
         raise InputError(f"mark step {mark_step_deg!r} deg: give a rounding step from 0.01 to 5 degrees (0.5 or 1)")
     swing_year = float(decimal_year(swing_date))
     loaded = load_model(model)
+    _check_dates(sites, swing_year, loaded, allow_extrapolation)
+    variation = variation_function or model_variation_function(loaded, allow_extrapolation)
+    state = _model_state(sites, swing_year, loaded, variation, allow_extrapolation, mark_step_deg)
+    table = pd.DataFrame([_upkeep_row(i, site, state) for i, site in enumerate(sites)], columns=list(UPKEEP_COLUMNS))
+    _warn_upkeep(table, loaded)
+    table.attrs["caution"] = SITE_CAUTION
+    return table
+
+
+def _site_list(sites) -> list[Site]:
+    if isinstance(sites, Site):
+        sites = [sites]
+    if isinstance(sites, (str, bytes)) or not hasattr(sites, "__iter__"):
+        raise InputError(f"sites {sites!r}: give a Site or a list of Site (make_site, read_sites_csv)")
+    sites = list(sites)
+    if not sites:
+        raise InputError("no compass bases given; give at least one site")
+    bad = [s for s in sites if not isinstance(s, Site)]
+    if bad:
+        raise InputError(f"sites: {bad[0]!r} is not a Site; build sites with make_site or read_sites_csv")
+    return sites
+
+
+def _check_dates(sites: list[Site], swing_year: float, loaded, allow_extrapolation: bool) -> None:
+    """Swing on or after each survey; surveys within the model's validity unless extrapolating."""
     for site in sites:
         if swing_year < site.survey_year:
             raise InputError(
@@ -419,14 +492,38 @@ def base_upkeep(
                 f"{site.row}: survey date {_date_text(first)} is before {loaded.name}'s validity "
                 f"({loaded.valid_from:g}); opt in to extrapolation or give a later survey"
             )
-    variation = variation_function or model_variation_function(loaded, allow_extrapolation)
+
+
+@dataclass
+class _UpkeepState:
+    """Model values for every site at once (arrays indexed like the sites)."""
+
+    swing_year: float
+    loaded: object
+    variation: VariationFunction
+    allow_extrapolation: bool
+    end_year: float
+    here: pd.DataFrame
+    dec_now: np.ndarray
+    rate_now: np.ndarray
+    dec_survey: np.ndarray
+    offsets: np.ndarray
+    marks: np.ndarray
+    survey_offs: np.ndarray
+    mark_offs: np.ndarray
+
+
+def _model_state(sites, swing_year, loaded, variation, allow_extrapolation, mark_step_deg) -> _UpkeepState:
+    """The model at the swing and survey dates, the marks and both drift dates, all sites at once."""
+    from .field import field
+
     lat = np.array([s.lat_deg for s in sites])
     lon = np.array([s.lon_deg for s in sites])
     alt = np.array([s.alt_km for s in sites])
+    survey_years = np.array([s.survey_year for s in sites])
     here = field(lat, lon, swing_year, alt, model=loaded, allow_extrapolation=allow_extrapolation)
     dec_now, rate_now = (np.asarray(v, dtype=np.float64) for v in variation(lat, lon, np.full(len(sites), swing_year), alt))
-    dec_survey, _ = variation(lat, lon, np.array([s.survey_year for s in sites]), alt)
-    dec_survey = np.asarray(dec_survey, dtype=np.float64)
+    dec_survey = np.asarray(variation(lat, lon, survey_years, alt)[0], dtype=np.float64)
     for i, site in enumerate(sites):
         if not (math.isfinite(dec_now[i]) and math.isfinite(dec_survey[i])):
             raise InputError(f"{site.row}: the variation is undefined at lat {site.lat_deg:g}, lon {site.lon_deg:g} (pole)")
@@ -434,98 +531,126 @@ def base_upkeep(
     surveyed = np.array([s.surveyed_variation_deg for s in sites])
     offsets = surveyed - dec_survey
     marks = np.array([_round_to(v, mark_step_deg) for v in surveyed + dec_now - dec_survey])
-    survey_offs = _first_departures(variation, sites, offsets, surveyed, np.array([s.survey_year for s in sites]), end_year)
-    mark_offs = _first_departures(variation, sites, offsets, marks, np.full(len(sites), swing_year), end_year)
-    rows = []
-    for i, site in enumerate(sites):
-        change = float(dec_now[i] - dec_survey[i])
-        predicted = site.surveyed_variation_deg + change
-        marked = float(marks[i])
-        offset = float(offsets[i])
-        survey_off, mark_off = float(survey_offs[i]), float(mark_offs[i])
-        survey_note = "" if math.isfinite(survey_off) else _not_found_note(allow_extrapolation, end_year)
-        mark_note = "" if math.isfinite(mark_off) else _not_found_note(allow_extrapolation, end_year)
-        if survey_off > loaded.valid_to:
-            survey_note = f"extrapolated past {loaded.name}'s validity ({loaded.valid_to:g})"
-        if mark_off > loaded.valid_to:
-            mark_note = f"extrapolated past {loaded.name}'s validity ({loaded.valid_to:g})"
-        if math.isfinite(mark_off) and mark_off == swing_year:
-            mark_note = "already off by more than the tolerance on the swing date (mark step too coarse for the tolerance)"
-        interval_year = site.survey_year + site.resurvey_years if math.isfinite(site.resurvey_years) else math.nan
-        candidates = [(y, why) for y, why in ((survey_off, "variation drift"), (interval_year, "fixed interval")) if math.isfinite(y)]
-        due_year, reason = min(candidates) if candidates else (math.nan, "no due date within model validity")
-        history = math.nan
-        if site.history:
-            first_year, first_value = min(site.history)
-            first_model, _ = variation(lat[i : i + 1], lon[i : i + 1], np.array([first_year]), alt[i : i + 1])
-            history = (site.surveyed_variation_deg - first_value) - (float(dec_survey[i]) - float(np.asarray(first_model)[0]))
-        uncertainty = float(here.declination_uncertainty_deg.iloc[i])
-        zone = str(here.zone.iloc[i])
-        caution = SITE_CAUTION
-        if zone != "normal":
-            caution = f"{zone} zone (H {here.horizontal_nT.iloc[i]:.0f} nT): compass unreliable here. " + caution
-        if abs(offset) > 2 * uncertainty:
-            caution += (
-                f" Survey differs from the model by {offset:+.2f} deg at the survey date (over twice the model's "
-                f"{uncertainty:.2f} deg uncertainty): a local anomaly or a survey error; check the survey."
-            )
-        rows.append(
-            {
-                "name": site.name,
-                "row": site.row,
-                "lat_deg": site.lat_deg,
-                "lon_deg": site.lon_deg,
-                "alt_km": site.alt_km,
-                "survey_date": _date_text(site.survey_year),
-                "swing_date": _date_text(swing_year),
-                "surveys": 1 + len(site.history),
-                "surveyed_variation_deg": site.surveyed_variation_deg,
-                "model_variation_at_survey_deg": float(dec_survey[i]),
-                "survey_minus_model_deg": offset,
-                "model_variation_deg": float(dec_now[i]),
-                "annual_change_min_per_year": float(rate_now[i]) * 60.0,
-                "annual_change": _annual_change_text(float(rate_now[i]) * 60.0),
-                "model_change_since_survey_deg": change,
-                "predicted_variation_deg": predicted,
-                "variation_to_mark_deg": marked,
-                "variation_to_mark": format_variation(marked),
-                "variation_record": format_variation(predicted),
-                "tolerance_deg": site.tolerance_deg,
-                "survey_off_year": survey_off,
-                "survey_off_date": _date_text(survey_off),
-                "survey_off_note": survey_note,
-                "mark_off_year": mark_off,
-                "mark_off_date": _date_text(mark_off),
-                "mark_off_note": mark_note,
-                "resurvey_years": site.resurvey_years,
-                "resurvey_due_year": due_year,
-                "resurvey_due_date": _date_text(due_year),
-                "resurvey_reason": reason,
-                "overdue": bool(math.isfinite(due_year) and due_year <= swing_year),
-                "history_minus_model_deg": history,
-                "horizontal_nT": float(here.horizontal_nT.iloc[i]),
-                "declination_uncertainty_deg": uncertainty,
-                "zone": zone,
-                "caution": caution,
-            }
+    return _UpkeepState(
+        swing_year=swing_year, loaded=loaded, variation=variation, allow_extrapolation=allow_extrapolation,
+        end_year=end_year, here=here, dec_now=dec_now, rate_now=rate_now, dec_survey=dec_survey, offsets=offsets,
+        marks=marks,
+        survey_offs=_first_departures(variation, sites, offsets, surveyed, survey_years, end_year),
+        mark_offs=_first_departures(variation, sites, offsets, marks, np.full(len(sites), swing_year), end_year),
+    )
+
+
+def _drift_notes(survey_off: float, mark_off: float, state: _UpkeepState) -> tuple[str, str]:
+    """Why a drift date is missing or rough ('' when it is a plain date)."""
+    loaded = state.loaded
+    notes = []
+    for year in (survey_off, mark_off):
+        note = "" if math.isfinite(year) else _not_found_note(state.allow_extrapolation, state.end_year)
+        if year > loaded.valid_to:
+            note = f"extrapolated past {loaded.name}'s validity ({loaded.valid_to:g})"
+        notes.append(note)
+    if math.isfinite(mark_off) and mark_off == state.swing_year:
+        notes[1] = "already off by more than the tolerance on the swing date (mark step too coarse for the tolerance)"
+    return notes[0], notes[1]
+
+
+def _resurvey_due(site: Site, survey_off: float) -> tuple[float, str]:
+    """The earlier of the survey's drift date and survey + fixed interval."""
+    interval_year = site.survey_year + site.resurvey_years if math.isfinite(site.resurvey_years) else math.nan
+    candidates = [(y, why) for y, why in ((survey_off, "variation drift"), (interval_year, "fixed interval")) if math.isfinite(y)]
+    return min(candidates) if candidates else (math.nan, "no due date within model validity")
+
+
+def _history_minus_model(site: Site, dec_survey: float, variation: VariationFunction) -> float:
+    """Change observed between the first and latest survey minus the model's change (NaN with one survey)."""
+    if not site.history:
+        return math.nan
+    first_year, first_value = min(site.history)
+    first_model, _ = variation(np.array([site.lat_deg]), np.array([site.lon_deg]), np.array([first_year]), np.array([site.alt_km]))
+    return (site.surveyed_variation_deg - first_value) - (dec_survey - float(np.asarray(first_model)[0]))
+
+
+def _site_caution(zone: str, horizontal_nT: float, offset: float, uncertainty: float) -> str:
+    caution = SITE_CAUTION
+    if zone != "normal":
+        caution = f"{zone} zone (H {horizontal_nT:.0f} nT): compass unreliable here. " + caution
+    if abs(offset) > 2 * uncertainty:
+        caution += (
+            f" Survey differs from the model by {offset:+.2f} deg at the survey date (over twice the model's "
+            f"{uncertainty:.2f} deg uncertainty): a local anomaly or a survey error; check the survey."
         )
-    table = pd.DataFrame(rows)
+    return caution
+
+
+def _upkeep_row(i: int, site: Site, state: _UpkeepState) -> dict:
+    """One row of the upkeep table (columns :data:`UPKEEP_COLUMNS`)."""
+    change = float(state.dec_now[i] - state.dec_survey[i])
+    predicted = site.surveyed_variation_deg + change
+    marked = float(state.marks[i])
+    offset = float(state.offsets[i])
+    survey_off, mark_off = float(state.survey_offs[i]), float(state.mark_offs[i])
+    survey_note, mark_note = _drift_notes(survey_off, mark_off, state)
+    due_year, reason = _resurvey_due(site, survey_off)
+    uncertainty = float(state.here.declination_uncertainty_deg.iloc[i])
+    zone = str(state.here.zone.iloc[i])
+    horizontal = float(state.here.horizontal_nT.iloc[i])
+    rate_min = float(state.rate_now[i]) * 60.0
+    return {
+        "name": site.name,
+        "row": site.row,
+        "lat_deg": site.lat_deg,
+        "lon_deg": site.lon_deg,
+        "alt_km": site.alt_km,
+        "survey_date": _date_text(site.survey_year),
+        "swing_date": _date_text(state.swing_year),
+        "surveys": 1 + len(site.history),
+        "surveyed_variation_deg": site.surveyed_variation_deg,
+        "model_variation_at_survey_deg": float(state.dec_survey[i]),
+        "survey_minus_model_deg": offset,
+        "model_variation_deg": float(state.dec_now[i]),
+        "annual_change_min_per_year": rate_min,
+        "annual_change": _annual_change_text(rate_min),
+        "model_change_since_survey_deg": change,
+        "predicted_variation_deg": predicted,
+        "variation_to_mark_deg": marked,
+        "variation_to_mark": format_variation(marked),
+        "variation_record": format_variation(predicted),
+        "tolerance_deg": site.tolerance_deg,
+        "survey_off_year": survey_off,
+        "survey_off_date": _date_text(survey_off),
+        "survey_off_note": survey_note,
+        "mark_off_year": mark_off,
+        "mark_off_date": _date_text(mark_off),
+        "mark_off_note": mark_note,
+        "resurvey_years": site.resurvey_years,
+        "resurvey_due_year": due_year,
+        "resurvey_due_date": _date_text(due_year),
+        "resurvey_reason": reason,
+        "overdue": bool(math.isfinite(due_year) and due_year <= state.swing_year),
+        "history_minus_model_deg": _history_minus_model(site, float(state.dec_survey[i]), state.variation),
+        "horizontal_nT": horizontal,
+        "declination_uncertainty_deg": uncertainty,
+        "zone": zone,
+        "caution": _site_caution(zone, horizontal, offset, uncertainty),
+    }
+
+
+def _warn_upkeep(table: pd.DataFrame, loaded) -> None:
+    """One warning each for weak-field bases, extrapolated drift dates and bases overdue."""
     if (table.zone != "normal").any():
         names = ", ".join(table.name[table.zone != "normal"])
-        warnings.warn(f"compass base(s) {names} lie in a weak-horizontal-field zone; see the caution column", DataQualityWarning, stacklevel=2)
+        warnings.warn(f"compass base(s) {names} lie in a weak-horizontal-field zone; see the caution column", DataQualityWarning, stacklevel=3)
     late = (table.survey_off_year > loaded.valid_to) | (table.mark_off_year > loaded.valid_to)
     if late.any():
         warnings.warn(
             f"drift dates for {', '.join(table.name[late])} lie past {loaded.name}'s validity ({loaded.valid_to:g}) "
             "and were extrapolated; treat them as rough",
             ExtrapolationWarning,
-            stacklevel=2,
+            stacklevel=3,
         )
     if table.overdue.any():
         names = ", ".join(table.name[table.overdue])
-        warnings.warn(f"compass base(s) {names} fall due for resurvey on or before the swing date", DataQualityWarning, stacklevel=2)
-    table.attrs["caution"] = SITE_CAUTION
-    return table
+        warnings.warn(f"compass base(s) {names} fall due for resurvey on or before the swing date", DataQualityWarning, stacklevel=3)
 
 
 def _number_list(values, what: str, low: float, high: float, unit: str) -> np.ndarray:
@@ -543,11 +668,53 @@ def setting_out_parameters(lines_deg=None, distances_m=None, grid=None):
     """Check setting-out options: ``(lines_deg array, distances_m array, Grid or None)``.
 
     Lines are magnetic headings 0-360 (default every 30 degrees), distances 0-100 km in metres
-    (default 50 and 100), grid as :func:`headingref.headings.parse_grid`. Raises InputError.
+    (default 50 and 100), grid as :func:`headingref.headings.parse_grid` or ``auto`` (the polar grid
+    of each base's hemisphere). Raises InputError.
     """
     lines = normalize_heading(_number_list(DEFAULT_LINES_DEG if lines_deg is None else lines_deg, "lines", 0.0, 360.0, "degrees"))
     distances = _number_list(DEFAULT_DISTANCES_M if distances_m is None else distances_m, "distances", 0.0, 100_000.0, "metres")
-    return np.atleast_1d(lines), distances, (parse_grid(grid) if grid is not None else None)
+    auto = isinstance(grid, str) and grid.strip().lower() == AUTO_GRID  # resolved per base by setting_out
+    return np.atleast_1d(lines), distances, (None if grid is None else AUTO_GRID if auto else parse_grid(grid))
+
+
+def utm_zone(lat_deg: float, lon_deg: float) -> tuple[int, str] | None:
+    """UTM zone number and hemisphere letter ('N'/'S') of a point, or None beyond 84 N / 80 S.
+
+    Zones are 6 degrees wide from 180 W; the exceptions are zone 32V widened to 3-12 E (southern
+    Norway) and zones 31X, 33X, 35X, 37X over Svalbard (72-84 N). Source: NGA, *The Universal
+    Grids and the Transverse Mercator and Polar Stereographic Map Projections*, NGA.SIG.0012
+    (2014), section on UTM zones (from memory). Beyond the UTM limits the polar stereographic UPS
+    grid applies.
+    """
+    if not (-80.0 <= lat_deg <= 84.0):
+        return None
+    lon = ((lon_deg + 180.0) % 360.0) - 180.0
+    zone = int((lon + 180.0) // 6.0) + 1
+    if 56.0 <= lat_deg < 64.0 and 3.0 <= lon < 12.0:
+        zone = 32
+    if lat_deg >= 72.0 and 0.0 <= lon < 42.0:
+        zone = 31 if lon < 9.0 else 33 if lon < 21.0 else 35 if lon < 33.0 else 37
+    return min(zone, 60), ("N" if lat_deg >= 0 else "S")
+
+
+def _local_and_utm(lat0: float, lon0: float, lat: np.ndarray, lon: np.ndarray) -> dict:
+    """East/north metres from the centre (local tangent plane, WGS84 topocentric) and UTM of the points."""
+    topo = pyproj.Transformer.from_pipeline(
+        f"+proj=pipeline +step +proj=cart +ellps=WGS84 +step +proj=topocentric +ellps=WGS84 "
+        f"+lat_0={lat0!r} +lon_0={lon0!r} +h_0=0"
+    )
+    east, north, _ = topo.transform(lon, lat, np.zeros_like(lat))
+    out = {"east_m": np.asarray(east), "north_m": np.asarray(north)}
+    zone = utm_zone(lat0, lon0)
+    if zone is None:
+        out.update(utm_zone="", utm_easting_m=np.nan, utm_northing_m=np.nan)
+        return out
+    number, hemisphere = zone
+    epsg = (32600 if hemisphere == "N" else 32700) + number
+    utm = pyproj.Transformer.from_crs("EPSG:4326", f"EPSG:{epsg}", always_xy=True)
+    x, y = utm.transform(lon, lat)
+    out.update(utm_zone=f"{number}{hemisphere}", utm_easting_m=np.asarray(x), utm_northing_m=np.asarray(y))
+    return out
 
 
 def setting_out(
@@ -558,31 +725,44 @@ def setting_out(
 ) -> pd.DataFrame:
     """Setting-out table for the survey party, one row per site, line and distance.
 
+    The lines are laid out with the variation **marked on the base** for the swing
+    (``variation_to_mark_deg``: the surveyed value carried to the swing date and rounded to the
+    marking step), not the unrounded prediction: the painted lines and the painted value must agree.
+    Column ``variation_used`` states it (e.g. ``marked 9°30′ E``).
+
     Parameters
     ----------
     upkeep : DataFrame from :func:`base_upkeep`
-        Uses ``name, lat_deg, lon_deg`` (the base centre) and ``predicted_variation_deg`` (the
-        variation the lines are laid out with: surveyed value carried to the swing date, full
-        precision, not the rounded mark).
+        Uses ``name, lat_deg, lon_deg`` (the base centre) and ``variation_to_mark_deg``.
     lines_deg : sequence of float
-        Magnetic headings of the lines (default every 30 degrees from 000).
+        Magnetic headings of the lines (default every 30 degrees from 000; twelve radials as in FAA
+        AC 150/5300-13, the compass calibration pad, from memory).
     distances_m : sequence of float
         Distances of the points from the centre along each line, metres (default 50 and 100).
     grid : grid spec or None
-        As :func:`headingref.headings.parse_grid` (``polar``, ``lcc:...``, ``EPSG:...``); adds
+        As :func:`headingref.headings.parse_grid` (``polar``, ``lcc:...``, ``EPSG:...``) or ``auto``
+        (the polar grid of each base's hemisphere; a polar grid given explicitly and used more than 60°
+        from its pole warns); adds
         ``convergence_deg`` and ``grid_azimuth_deg`` (``true - convergence``, at the centre).
 
     Returns
     -------
-    DataFrame: ``name, line, magnetic_heading_deg, variation_deg, true_azimuth_deg,
-    [convergence_deg, grid_azimuth_deg,] distance_m, lat_deg, lon_deg`` (point coordinates,
-    WGS84, from :meth:`pyproj.Geod.fwd`).
+    DataFrame with columns :data:`SETTING_OUT_COLUMNS`: the line, its magnetic heading, the
+    variation used, the true azimuth (``magnetic + variation``), [convergence and grid azimuth,]
+    the distance, the point as ``east_m, north_m`` from the base centre (local tangent plane of the
+    WGS84 ellipsoid at the centre, PROJ ``topocentric``), as ``lat_deg, lon_deg`` (WGS84 forward
+    geodesic, :meth:`pyproj.Geod.fwd`, Karney's algorithm) and in UTM (``utm_zone`` such as ``33N``
+    of the centre, easting and northing in metres, WGS84 / UTM EPSG:326xx or 327xx; empty beyond
+    84 N / 80 S, where UPS applies).
     """
     lines, distances, grid_obj = setting_out_parameters(lines_deg, distances_m, grid)
+    if not isinstance(upkeep, pd.DataFrame) or "variation_to_mark_deg" not in upkeep:
+        raise InputError("setting_out needs the table from base_upkeep (with variation_to_mark_deg)")
     geod = pyproj.Geod(ellps="WGS84")
-    frames = []
+    frames, grids_used = [], []
     for _, site in upkeep.iterrows():
-        true_az = normalize_heading(lines + site.predicted_variation_deg)
+        marked = float(site.variation_to_mark_deg)
+        true_az = normalize_heading(lines + marked)
         az = np.repeat(true_az, len(distances))
         dist = np.tile(distances, len(lines))
         lon2, lat2, _ = geod.fwd(np.full(az.size, site.lon_deg), np.full(az.size, site.lat_deg), az, dist)
@@ -591,18 +771,31 @@ def setting_out(
                 "name": site["name"],
                 "line": [format_heading(h) for h in np.repeat(lines, len(distances))],
                 "magnetic_heading_deg": np.repeat(lines, len(distances)),
-                "variation_deg": site.predicted_variation_deg,
+                "variation_deg": marked,
+                "variation_used": f"marked {format_variation(marked)}",
                 "true_azimuth_deg": az,
             }
         )
         if grid_obj is not None:
-            convergence = float(grid_obj.convergence_deg(site.lat_deg, site.lon_deg))
+            site_grid = resolve_grid(grid_obj, [site.lat_deg])
+            if grid_obj != AUTO_GRID:
+                warn_if_far_from_pole(site_grid, [site.lat_deg], f"base {site['name']!r}")
+            grids_used.append(site_grid.name)
+            convergence = float(site_grid.convergence_deg(site.lat_deg, site.lon_deg))
             if not math.isfinite(convergence):
-                raise InputError(f"base {site['name']!r} lies outside grid {grid_obj.name}; choose a grid that covers it")
+                raise InputError(f"base {site['name']!r} lies outside grid {site_grid.name}; choose a grid that covers it")
             frame["convergence_deg"] = convergence
             frame["grid_azimuth_deg"] = normalize_heading(az - convergence)
         frame["distance_m"] = dist
+        placed = _local_and_utm(float(site.lat_deg), float(site.lon_deg), np.asarray(lat2), np.asarray(lon2))
+        frame["east_m"], frame["north_m"] = placed["east_m"], placed["north_m"]
         frame["lat_deg"] = np.asarray(lat2)
         frame["lon_deg"] = np.asarray(lon2)
+        for key in ("utm_zone", "utm_easting_m", "utm_northing_m"):
+            frame[key] = placed[key]
         frames.append(frame)
-    return pd.concat(frames, ignore_index=True)
+    table = pd.concat(frames, ignore_index=True)
+    table = table[[c for c in SETTING_OUT_COLUMNS if c in table.columns]]
+    table.attrs["variation_used"] = "the variation marked on the base for the swing (rounded), not the unrounded prediction"
+    table.attrs["grid"] = ", ".join(dict.fromkeys(grids_used))
+    return table

@@ -148,9 +148,13 @@ def test_model_values_and_drift_date_against_ppigrf():
 def test_setting_out_points_against_geographiclib():
     site = make_site("Invented apron base", 69.3, 16.1, "9.6E", "2026-06-01")
     table = base_upkeep([site], "2026-12-02")
-    variation = table.predicted_variation_deg.iloc[0]
+    # The lines use the variation marked on the base (rounded to 0.5 deg), not the unrounded prediction.
+    variation = table.variation_to_mark_deg.iloc[0]
+    assert variation == 0.5 * round(table.predicted_variation_deg.iloc[0] / 0.5)
+    assert abs(variation - table.predicted_variation_deg.iloc[0]) > 1e-3  # the two differ here, so the check bites
     points = setting_out(table, lines_deg=[0, 30, 135, 330], distances_m=[25.0, 100.0, 5000.0], grid="polar")
     assert len(points) == 12
+    assert set(points.variation_used) == {f"marked {table.variation_to_mark.iloc[0]}"}
     for _, p in points.iterrows():
         # Magnetic to true: east variation is added (true = magnetic + variation), common practice.
         assert p.true_azimuth_deg == pytest.approx((p.magnetic_heading_deg + variation) % 360.0, abs=1e-9)
@@ -161,6 +165,53 @@ def test_setting_out_points_against_geographiclib():
         assert p.convergence_deg == pytest.approx(16.1, abs=1e-6)
         assert p.grid_azimuth_deg == pytest.approx((p.true_azimuth_deg - 16.1) % 360.0, abs=1e-6)
     assert list(points.line[:3]) == ["000", "000", "000"]
+
+
+def test_setting_out_local_metres_and_utm_against_geographiclib_and_pyproj():
+    # Svalbard-like invented base at 78.2 N: UTM zone 33X exception (NGA.SIG.0012, from memory) -> EPSG:32633.
+    import pyproj
+
+    site = make_site("Invented fjord base", 78.2431, 15.4905, "10.7E", "2021-06-22")
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # overdue by 2026
+        table = base_upkeep([site], "2026-12-02")
+    points = setting_out(table, lines_deg=[0, 45, 200], distances_m=[50.0, 100.0])
+    utm = pyproj.Transformer.from_crs("EPSG:4326", "EPSG:32633", always_xy=True)
+    centre_e, centre_n = utm.transform(15.4905, 78.2431)
+    for _, p in points.iterrows():
+        ref = Geodesic.WGS84.Direct(78.2431, 15.4905, p.true_azimuth_deg, p.distance_m)  # geographiclib direct problem
+        # Local tangent plane: over 100 m the geodesic is straight to < 1 mm (curvature d^2/2R = 0.8 mm),
+        # so east = d sin(az), north = d cos(az) (plane trigonometry) to 2 mm.
+        az = np.radians(ref["azi1"])
+        assert p.east_m == pytest.approx(p.distance_m * np.sin(az), abs=2e-3)
+        assert p.north_m == pytest.approx(p.distance_m * np.cos(az), abs=2e-3)
+        # UTM of geographiclib's point by pyproj (EPSG:32633), 1 mm.
+        e, n = utm.transform(ref["lon2"], ref["lat2"])
+        assert p.utm_zone == "33N"
+        assert p.utm_easting_m == pytest.approx(e, abs=1e-3)
+        assert p.utm_northing_m == pytest.approx(n, abs=1e-3)
+        # Distance on the UTM grid = ground distance x point scale factor (pyproj's get_factors), 1 cm.
+        k = pyproj.Proj("EPSG:32633").get_factors(15.4905, 78.2431).meridional_scale
+        assert np.hypot(e - centre_e, n - centre_n) == pytest.approx(k * p.distance_m, abs=1e-2)
+
+
+@pytest.mark.parametrize(
+    ("lat", "lon", "expected"),
+    [
+        (60.0, 5.0, (32, "N")),  # southern Norway: zone 32V widened to 3-12 E (NGA.SIG.0012, from memory)
+        (60.0, 2.0, (31, "N")),
+        (78.0, 8.9, (31, "N")),  # Svalbard: 31X up to 9 E
+        (78.0, 20.0, (33, "N")),  # 33X 9-21 E
+        (78.0, 30.0, (35, "N")),  # 35X 21-33 E
+        (-45.0, 170.0, (59, "S")),  # standard zone: floor((lon + 180)/6) + 1
+        (64.8112, -147.8712, (6, "N")),
+        (85.0, 0.0, None),  # beyond 84 N: UPS, not UTM
+    ],
+)
+def test_utm_zone_rules(lat, lon, expected):
+    from headingref.compass_base import utm_zone
+
+    assert utm_zone(lat, lon) == expected
 
 
 @settings(max_examples=50, deadline=None)
