@@ -275,3 +275,201 @@ def test_cli_writes_coefficients_card_and_residuals(tmp_path, capsys):
     assert len(pd.read_csv(card)) == 12 and len(pd.read_csv(res)) == 8
     assert plot.stat().st_size > 10_000 and card_plot.read_bytes()[:4] == b"%PDF"
     assert "FAIL" in capsys.readouterr().out
+
+
+# ------------------------------------------------------------------------------ verdict: as measured and after compensation
+
+
+def test_handbook_501_verdict_as_measured_and_after_compensation():
+    # tests/data/swing_handbook_501.csv holds the NGA Handbook of Magnetic Compass Adjustment (2004,
+    # Pub. 226) art. 501 deviations (N 10.5E, NE 20.0E, E 11.5E, SE 1.2W, S 5.5W, SW 8.0W, W 12.5W,
+    # NW 6.8W) put on the magnetic headings 000..315 (compass = magnetic - deviation). Its B of 12 deg
+    # must not pass as it stands.
+    from headingref.swing import read_swing_csv
+
+    magnetic, compass, rows = read_swing_csv(DATA / "swing_handbook_501.csv")
+    result = analyse_swing(magnetic, compass, rows=rows, method="handbook")
+    # Pub. 226 art. 501 coefficients (worked by hand above): A 1.0, B 12.0, C 8.0, D 5.0, E 1.5 (all E).
+    for name, value in {"A": 1.0, "B": 12.0, "C": 8.0, "D": 5.0, "E": 1.5}.items():
+        assert result.curve.coefficients()[name] == pytest.approx(value, abs=1e-9), name
+    # As measured: the largest deviation is the 20.0 E on NE; 14 CFR 23.1327(a)(2) allows 10 -> fail.
+    assert result.max_deviation_deg == pytest.approx(20.0, abs=1e-9)
+    assert result.max_deviation_heading_deg == pytest.approx(45.0)
+    assert result.verdict_as_measured == "fail"
+    # After compensation (B, C removed): on SW -8.0 - (12 sin 225 + 8 cos 225) = -8 + 20 sqrt(1/2) = 6.142 -> pass.
+    assert result.max_residual_deg == pytest.approx(-8.0 + 20.0 * np.sqrt(0.5), abs=1e-9)
+    assert result.max_residual_heading_deg == pytest.approx(225.0)
+    assert result.verdict_after_compensation == "pass"
+    # The verdict uses the deviation as measured unless asked otherwise, and says so.
+    assert result.verdict == "fail" and result.verdict_basis == "as_measured"
+    assert "verdict (as measured): FAIL" in result.verdict_text()
+    after = analyse_swing(magnetic, compass, method="handbook", verdict_on="after_compensation")
+    assert after.verdict == "pass" and "verdict (after compensation): PASS" in after.verdict_text()
+    # Least squares gives B = 11.94, C = 7.96 here (see above): both methods shown as they differ.
+    assert result.methods_differ and result.handbook_formula == "eight-point"
+    row = result.comparison.set_index("coefficient")
+    assert row.loc["B", "handbook_deg"] == pytest.approx(12.0, abs=1e-12)
+    assert row.loc["B", "least_squares_deg"] == pytest.approx((24 + 33.6 * np.sqrt(0.5)) / 4, abs=1e-12)
+
+
+def test_card_after_compensation_keeps_a_d_e():
+    # After the compensator removes B and C the card's curve is A + D sin 2h + E cos 2h (Pub. 226
+    # ch. V: B, C semicircular removed by the magnets; A, D, E remain). On 045 that is 1 + 5 = 6.0 E
+    # with the art. 501 values, so for magnetic 045 steer 039.
+    h = EIGHT
+    compass = h - np.array(HANDBOOK_501)
+    result = analyse_swing(h, compass, method="handbook", card_after_compensation=True, card_headings_deg=[45.0, 90.0])
+    assert result.card.deviation_deg.iloc[0] == pytest.approx(6.0, abs=1e-12)
+    assert result.card.steer_compass.iloc[0] == "039"
+    assert result.card.deviation_deg.iloc[1] == pytest.approx(1.0 - 1.5, abs=1e-12)  # on 090: A - E
+    terms = result.card_terms()
+    assert terms.startswith("A +1.0°, D +5.0°, E +1.5°") and "B and C removed" in terms
+
+
+@settings(max_examples=40, deadline=None)
+@given(a=coefficient, b=coefficient, c=coefficient, d=coefficient, e=coefficient)
+def test_four_cardinal_formulas_exact_for_a_five_term_curve(a, b, c, d, e):
+    # Pub. 226 art. 501 formulas on N, E, S, W: sin 2h = 0 there, so D drops out and A, B, C, E are exact.
+    from headingref.swing import four_point_coefficients
+
+    dev = _curve(a, b, c, d, e, np.array([0.0, 90.0, 180.0, 270.0]))
+    got = four_point_coefficients(dev)
+    for name, value in zip("ABCE", (a, b, c, e), strict=True):
+        assert got[name] == pytest.approx(value, abs=1e-9)
+    assert got["D"] == 0.0
+
+
+def test_handbook_method_needs_the_principal_headings():
+    h = np.arange(10.0, 360.0, 30.0)  # 010, 040, ...: none on a principal heading
+    with pytest.raises(InputError, match="method 'handbook' needs readings on the eight principal headings"):
+        analyse_swing(h, h, method="handbook")
+
+
+# ------------------------------------------------------------------------------ reading swings
+
+
+def test_handbook_table_as_printed_reads_like_the_numeric_file(tmp_path):
+    # Pub. 226 art. 501 as printed: compass points and deviations with E/W letters.
+    from headingref.swing import read_swing_csv
+
+    path = tmp_path / "art501.csv"
+    path.write_text("Heading,Deviation\nN,10.5E\nNE,20.0E\nE,11.5E\nSE,1.2W\nS,5.5W\nSW,8.0W\nW,12.5W\nNW,6.8W\n", encoding="utf-8")
+    m1, c1, rows = read_swing_csv(path)
+    m2, c2, _ = read_swing_csv(DATA / "swing_handbook_501.csv")
+    np.testing.assert_allclose(m1, m2, atol=1e-12)
+    np.testing.assert_allclose(np.mod(c1, 360.0), c2, atol=1e-12)
+    assert rows[0] == "art501.csv line 2"
+
+
+@pytest.mark.parametrize("point,expected", [("N", 0.0), ("nne", 22.5), ("E", 90.0), ("SSW", 202.5), ("NW", 315.0), ("NNW", 337.5)])
+def test_compass_points(tmp_path, point, expected):
+    # The 16-point compass rose, 22.5 deg apart clockwise from N (common practice).
+    from headingref.swing import read_swing_csv
+
+    path = tmp_path / "p.csv"
+    path.write_text(f"MH,Compass\n{point},0\n", encoding="utf-8")
+    assert read_swing_csv(path)[0][0] == expected
+
+
+@settings(max_examples=100, deadline=None)
+@given(value=st.floats(min_value=-360.0, max_value=720.0, allow_nan=False).map(lambda v: round(v, 3)))
+def test_plain_heading_numbers_round_trip(tmp_path_factory, value):
+    from headingref.swing import read_swing_csv
+
+    path = tmp_path_factory.mktemp("h") / "r.csv"
+    path.write_text(f"magnetic_heading_deg,compass_reading_deg\n{value!r},{value!r}\n", encoding="utf-8")
+    m, c, _ = read_swing_csv(path)
+    assert m[0] == value and c[0] == value
+
+
+@pytest.mark.parametrize("cell", ["6_1", "٤٥", "４５", "nan", "inf", "1e2", "NE2"])
+def test_lenient_numbers_are_refused(tmp_path, cell):
+    # Issue 12 item 9: only plain ASCII decimal numbers (and the compass points) are headings.
+    from headingref.swing import read_swing_csv
+
+    path = tmp_path / "r.csv"
+    path.write_text(f"heading,compass\n{cell},0\n", encoding="utf-8")
+    with pytest.raises(InputError, match="r.csv line 2: heading .* is not understood"):
+        read_swing_csv(path)
+
+
+def test_column_names_error_lists_accepted_names(tmp_path):
+    from headingref.swing import read_swing_csv
+
+    path = tmp_path / "r.csv"
+    path.write_text("bearing,compass\n0,0\n", encoding="utf-8")
+    with pytest.raises(InputError, match="no magnetic heading column.*accepted names: heading magnetic_heading_deg/") as info:
+        read_swing_csv(path)
+    assert "\n" not in str(info.value)
+    path.write_text("heading,compass,deviation\n0,0,0\n", encoding="utf-8")
+    with pytest.raises(InputError, match="both a compass reading and a deviation column"):
+        read_swing_csv(path)
+
+
+# ------------------------------------------------------------------------------ library arguments (issue 12)
+
+
+@pytest.mark.parametrize(
+    "kwargs,match",
+    [
+        ({"magnetic_heading_deg": ["a"], "compass_reading_deg": [1.0]}, "magnetic_heading_deg"),
+        ({"magnetic_heading_deg": "0,90", "compass_reading_deg": [1.0]}, "magnetic_heading_deg"),
+        ({"magnetic_heading_deg": [0.0], "compass_reading_deg": [object()]}, "compass_reading_deg"),
+        ({"limit_deg": float("nan")}, "limit_deg"),
+        ({"limit_deg": "10"}, "limit_deg"),
+        ({"compensated_limit_deg": float("inf")}, "compensated_limit_deg"),
+        ({"max_plausible_deviation_deg": float("nan")}, "max_plausible_deviation_deg"),
+        ({"verdict_on": "residual"}, "verdict_on"),
+        ({"method": "lsq"}, "method"),
+        ({"coefficients": 5}, "coefficients"),
+        ({"rows": "abc"}, "rows"),
+        ({"card_headings_deg": ["x"]}, "card headings"),
+    ],
+)
+def test_bad_arguments_are_input_errors_naming_the_argument(kwargs, match):
+    args = {"magnetic_heading_deg": EIGHT, "compass_reading_deg": EIGHT} | kwargs
+    with pytest.raises(InputError, match=match):
+        analyse_swing(args.pop("magnetic_heading_deg"), args.pop("compass_reading_deg"), **args)
+
+
+@pytest.mark.parametrize("option", ["--max-deviation", "--limit", "--compensated-limit"])
+def test_cli_refuses_non_finite_limits(tmp_path, capsys, option):
+    # Issue 12 item 9: '--max-deviation nan' turned the plausibility check off.
+    with pytest.raises(SystemExit) as exc:
+        main(["swing", "--input", str(DATA / "swing_handbook_501.csv"), option, "nan"])
+    assert exc.value.code == 2
+    assert "not a plain finite decimal number" in capsys.readouterr().err
+
+
+# ------------------------------------------------------------------------------ the card as a document
+
+
+def test_card_document_html_and_pdf(tmp_path, capsys):
+    html_path, pdf_path = tmp_path / "card.html", tmp_path / "card.pdf"
+    code = main([
+        "swing", "--input", str(DATA / "swing_handbook_501.csv"), "--date", "2026-12-02",
+        "--aircraft", "ZZ-<b>INV</b>", "--compass", "SN 0001", "--swung-by", "A. N. Other",
+        "--conditions", "engines running, radios on", "--bases", str(DATA.parent.parent / "data/demo/compass_bases.csv"),
+        "--base", "Svalbrekka compass base", "--compensated", "--card-html", str(html_path), "--card-plot", str(pdf_path),
+    ])
+    assert code == 0
+    out = capsys.readouterr().out
+    text = html_path.read_text(encoding="utf-8")
+    assert "@media print" in text and "Signature" in text and "A. N. Other" in text
+    assert "ZZ-&lt;b&gt;INV&lt;/b&gt;" in text and "<b>INV</b>" not in text  # user text escaped
+    assert "engines running, radios on" in text and "2026-12-02" in text
+    # The base link: the demo file's latest survey of this base is 10.7E on 2021-06-22; at 0.5 deg
+    # tolerance and about +0.4 deg a year it is overdue by the 2026 swing (data/demo/README.md).
+    assert "marked variation 10°42′ E, surveyed 2021-06-22" in text
+    assert "OVERDUE" in text and "OVERDUE" in out
+    # The after-compensation card names the terms it keeps.
+    assert "A +1.0°, D +5.0°, E +1.5°" in text
+    assert pdf_path.read_bytes()[:4] == b"%PDF"
+
+
+def test_card_base_not_in_file_lists_names(capsys):
+    code = main(["swing", "--input", str(DATA / "swing_handbook_501.csv"), "--date", "2026-12-02",
+                 "--bases", str(DATA.parent.parent / "data/demo/compass_bases.csv"), "--base", "Nowhere base"])
+    assert code == 2
+    err = capsys.readouterr().err
+    assert "base 'Nowhere base' is not in" in err and "Svalbrekka compass base" in err
