@@ -18,7 +18,7 @@ import warnings
 from ..errors import HeadingrefError, HeadingrefWarning
 from ..notices import CAUTION
 
-COMMANDS = ["field", "route", "zones", "poles", "base", "swing", "runways", "report", "demo"]
+COMMANDS = ["field", "route", "zones", "poles", "base", "swing", "runways", "navaids", "report", "demo"]
 
 
 def build_parser() -> argparse.ArgumentParser:
