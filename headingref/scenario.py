@@ -21,7 +21,8 @@ Layout (every section is optional; a missing section's job is left out of the re
                     limit_deg, slaving_rate_deg_per_min, turn_duration_s
     [compass_bases] file, swing_date, tolerance_deg, resurvey_years, setting_out_lines_deg,
                     setting_out_distances_m
-    [swing]         file, base, limit_deg
+    [swing]         file, base, limit_deg, compensated_limit_deg, verdict_on, method,
+                    card_after_compensation, date, aircraft, compass, swung_by, conditions
     [runways]       file, horizon_years, boundary_band_deg
 
 Public API: :func:`load_scenario`, :class:`Scenario`, :data:`SCHEMA`, :data:`DEMO_SCENARIO`.
@@ -116,7 +117,16 @@ SCHEMA: dict[str, dict[str, Key]] = {
     "swing": {
         "file": Key("path", required=True, doc="readings CSV: magnetic_heading_deg, compass_reading_deg"),
         "base": Key("str", "", doc="compass base the swing was made on (a name in the bases CSV)"),
-        "limit_deg": Key("float", 10.0, high=45.0, doc="largest acceptable residual deviation, deg", **_POSITIVE),
+        "limit_deg": Key("float", 10.0, high=45.0, doc="largest deviation allowed as measured, deg (14 CFR 23.1327)", **_POSITIVE),
+        "compensated_limit_deg": Key("float", None, high=45.0, doc="largest residual allowed after B and C are removed, deg (default: limit_deg)", **_POSITIVE),
+        "verdict_on": Key("choice", "as_measured", choices=("as_measured", "after_compensation"), doc="which deviation the verdict judges"),
+        "method": Key("choice", "least_squares", choices=("least_squares", "handbook"), doc="coefficients by least squares or the handbook's formulas"),
+        "card_after_compensation": Key("bool", False, doc="card for the compass after B and C are removed (keeps A, D, E)"),
+        "date": Key("date", None, doc="date of the swing, on the card (default: compass_bases swing_date, else analysis_date)"),
+        "aircraft": Key("str", "", doc="aircraft registration, on the card"),
+        "compass": Key("str", "", doc="compass type and serial number, on the card"),
+        "swung_by": Key("str", "", doc="person who swung the compass, on the card's signature line"),
+        "conditions": Key("str", "", doc="swing conditions, e.g. 'engines running, radios on' (14 CFR 23.1547)"),
     },
     "runways": {
         "file": Key("path", required=True, doc="runway CSV: airport, runway, lat, lon and end_lat, end_lon or true_bearing_deg"),
@@ -366,6 +376,9 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
     bases = sections["compass_bases"]
     if bases and bases["swing_date"] is None:
         bases["swing_date"] = top["analysis_date"]
+    swing = sections["swing"]
+    if swing and swing["date"] is None:
+        swing["date"] = bases["swing_date"] if bases else top["analysis_date"]
     return Scenario(
         path=path,
         title=top["title"],
