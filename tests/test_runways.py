@@ -477,3 +477,153 @@ def test_cli_unknown_plot_runway_is_a_one_line_error(tmp_path, capsys):
     assert code == 2
     assert "NOWHERE 09" in capsys.readouterr().err
     assert not out.exists()  # nothing half-written
+
+
+# ----------------------------------------------------------------------------- issue 11 items 6, 7; issue 16
+
+
+def _ppigrf_declination(lat, lon, days):
+    ppigrf = pytest.importorskip("ppigrf")
+    east, north, _ = ppigrf.igrf(lon, lat, 0.0, [dt.datetime(d.year, d.month, d.day) for d in days])
+    return np.degrees(np.arctan2(east.ravel(), north.ravel()))
+
+
+@pytest.mark.parametrize(("lat", "lon", "true_bearing", "painted"), [
+    (64.8, -147.6, 139.5, "11"),  # declination fell ~16 deg since 1900 here: 11 fitted decades ago
+    (61.0, 10.0, 95.0, "10"),  # declination rose from about -12 deg: 10 fitted last some decades back
+])
+def test_last_fit_date_against_a_brute_force_ppigrf_scan(lat, lon, true_bearing, painted):
+    # Independent scan: ppigrf's IGRF-14 every 90 days from 1900 to the check date; the last sample
+    # whose designator (Annex 14 rule, applied here by hand: round(magnetic / 10)) equals the painted
+    # number must lie within 90 days before last_fit_date, and ppigrf must agree on the day itself
+    # (+-1 day: ppigrf interpolates in days, headingref in decimal years).
+    ends = pd.DataFrame({"airport": ["XAL"], "runway": [painted], "lat": [lat], "lon": [lon], "true_bearing_deg": [true_bearing]})
+    row = _quiet_check(ends, DATE, horizon_years=0).table.iloc[0]
+    assert row.verdict.startswith("mismatch"), row.verdict
+    number = int(painted)
+
+    def fits(days):
+        magnetic = np.mod(true_bearing - _ppigrf_declination(lat, lon, days), 360.0)
+        n = np.floor(magnetic / 10.0 + 0.5).astype(int) % 36  # the rule, written out independently
+        return np.where(n == 0, 36, n) == number
+
+    scan = [dt.date(1900, 1, 1) + dt.timedelta(days=90 * k) for k in range((dt.date(2026, 12, 2) - dt.date(1900, 1, 1)).days // 90 + 1)]
+    ok = fits(scan)
+    assert ok.any(), "the case must have fitted at some time"
+    last_sample = scan[int(np.flatnonzero(ok)[-1])]
+    found = dt.date.fromisoformat(row.last_fit_date)
+    assert 0 <= (found - last_sample).days <= 91
+    around = [found + dt.timedelta(days=k) for k in (-1, 0, 1, 2)]
+    flags = fits(around)
+    assert flags[0] and not flags[3], (around, flags)
+
+
+def test_last_fit_date_never_and_fits_now():
+    # A true bearing whose painted number never fitted since 1900 (declination here stayed within about
+    # -13..+6 deg; 90 deg true painted 27 is 180 deg off) -> 'not since 1900-01-01' (IGRF-14 starts 1900.0);
+    # a fitting end -> empty.
+    ends = pd.DataFrame({"airport": ["XAM", "XAN"], "runway": ["27", "09"], "lat": [61.0, 61.0], "lon": [10.0, 10.0],
+                         "true_bearing_deg": [90.0, 95.0]})
+    t = _quiet_check(ends, DATE, horizon_years=0).table
+    assert t.last_fit_date.tolist() == ["not since 1900-01-01", ""]
+
+
+def test_pair_gets_one_decision_and_reciprocal_designators():
+    # Issue 11 item 6: two ends whose own azimuths straddle a rounding boundary (the centre line is
+    # given slightly inconsistently) must still get one implied number pair differing by 18 and one
+    # change date. The runway azimuth is the mean of end A and the reciprocal of end B.
+    ppigrf = pytest.importorskip("ppigrf")
+    lat, lon = 64.8, -147.6
+    east, north, _ = ppigrf.igrf(lon, lat, 0.0, dt.datetime(2026, 12, 2))
+    variation = math.degrees(math.atan2(float(east.ravel()[0]), float(north.ravel()[0])))
+    a_true = 125.1 + variation  # magnetic 125.1 -> 13 alone
+    b_true = (124.8 + 180.0 + variation) % 360.0  # magnetic 304.8 -> 30 alone (reciprocal of 12)
+    ends = pd.DataFrame({"airport": ["XAP", "XAP"], "runway": ["13", "31"], "lat": [lat, lat], "lon": [lon, lon],
+                         "true_bearing_deg": [a_true, b_true]})
+    result = _quiet_check(ends, DATE, horizon_years=3)
+    t = result.table
+    # mean magnetic azimuth (125.1 + 124.8) / 2 = 124.95 -> 12, and 30 for the other end (FAA AIM 4-3-6 rule)
+    assert t.runway_magnetic_deg[0] == pytest.approx(124.95, abs=2e-3)
+    assert t.designator_implied.tolist() == ["12", "30"]
+    assert (int(t.designator_implied[1]) - int(t.designator_implied[0])) % 36 == 18
+    assert t.runway_id.tolist() == ["13/31", "13/31"]
+    assert t.change_date[0] == t.change_date[1]
+    assert t.all_changes[0].split()[0] == t.all_changes[1].split()[0]
+
+
+def test_band_follows_the_local_declination_uncertainty():
+    # WMM error model (technical report): sigma_D = sqrt(0.26^2 + (5417/H)^2) deg for WMM2025; with
+    # band_sigmas=1 the band is that sigma, so a 0.4 deg margin is inside it where sigma is about 0.5.
+    result = _quiet_check(DATA / "runways_demo.csv", DATE, horizon_years=0, band_sigmas=1.0)
+    t = result.table
+    np.testing.assert_allclose(t.band_deg, t.variation_uncertainty_deg, rtol=1e-12)
+    tundra = t[t.airport == "TUNDRA-LAKE"].iloc[0]
+    assert tundra.margin_deg < tundra.band_deg and tundra.verdict == "match near boundary"
+
+
+def test_every_change_within_the_horizon_is_listed():
+    # Constant-rate check of the exact crossing finder against hand arithmetic (ppigrf drift at a high
+    # latitude site): a 30-year extrapolated horizon at 78.2 N 15.6 E crosses several boundaries; every
+    # listed change must be one designator step and the dates must increase.
+    now = float(_ppigrf_declination(78.2, 15.6, [dt.date(2026, 12, 2), dt.date(2027, 12, 2)])[0])
+    true_bearing = 95.3 + now  # magnetic 95.3: the first change (to 09, the variation rises here) within ~2 years
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        ends = pd.DataFrame({"airport": ["XAQ"], "runway": ["10"], "lat": [78.2], "lon": [15.6], "true_bearing_deg": [true_bearing]})
+        result = _quiet_check(ends, DATE, horizon_years=30, allow_extrapolation=True)
+    changes = result.changes
+    assert len(changes) >= 2
+    assert changes.change_date.is_monotonic_increasing
+    steps = [(int(b) - int(a)) % 36 for a, b in zip(changes.designator_before, changes.next_designator, strict=True)]
+    assert set(steps) <= {1, 35}
+    # ppigrf on the first change day and the day before gives the two designators (+-1 day)
+    first = dt.date.fromisoformat(changes.change_date[0])
+    decl = _ppigrf_declination(78.2, 15.6, [first - dt.timedelta(days=2), first + dt.timedelta(days=1)])
+    numbers = designator_from_magnetic(true_bearing - decl)
+    assert [format_designator(int(n)) for n in numbers] == [changes.designator_before[0], changes.next_designator[0]]
+
+
+def test_one_row_per_runway_layout_and_column_mapping(tmp_path):
+    # The same two demo ends given as one row per runway under other column names must give the same
+    # result as the per-end table.
+    path = tmp_path / "rwys.csv"
+    path.write_text("ident,le_id,le_lat,le_lon,he_id,he_lat,he_lon,elev_ft\n"
+                    "NORDVIK,09,69.305,16.12,27,69.302141,16.180285,39\n", encoding="utf-8")
+    mapping = ("airport=ident,end1_runway=le_id,end1_lat=le_lat,end1_lon=le_lon,end2_runway=he_id,end2_lat=he_lat,"
+               "end2_lon=he_lon,elevation_ft=elev_ft")
+    split = _quiet_check(path, DATE, horizon_years=1, columns=mapping).table
+    per_end = _quiet_check(DATA / "runways_demo.csv", DATE, horizon_years=1).table.iloc[:2]
+    assert split.runway.tolist() == ["09", "27"]
+    np.testing.assert_allclose(split.true_bearing_deg, per_end.true_bearing_deg, atol=1e-9)
+    assert split.alt_km[0] == pytest.approx(39 * 0.3048e-3)  # international foot (1959)
+    assert split.input_row.tolist() == ["rwys.csv line 2 (end1)", "rwys.csv line 2 (end2)"]
+    with pytest.raises(InputError, match="not a column headingref reads"):
+        check_runways(path, DATE, columns="rwy=le_id")
+    with pytest.raises(InputError, match="not in the file"):
+        check_runways(path, DATE, columns="airport=nowhere")
+
+
+def test_xlsx_in_and_out(tmp_path):
+    openpyxl = pytest.importorskip("openpyxl")
+    from headingref.runways import write_runway_table
+
+    book = openpyxl.Workbook()
+    sheet = book.active
+    frame = pd.read_csv(DATA / "runways_demo.csv", dtype=str, keep_default_na=False)
+    sheet.append(list(frame.columns))
+    for row in frame.itertuples(index=False):
+        sheet.append([float(v) if v.replace(".", "", 1).replace("-", "", 1).isdigit() and "." in v else v for v in row])
+    source = tmp_path / "rwys.xlsx"
+    book.save(source)
+    from_xlsx = _quiet_check(source, DATE, horizon_years=1)
+    from_csv = _quiet_check(DATA / "runways_demo.csv", DATE, horizon_years=1)
+    np.testing.assert_allclose(from_xlsx.table.runway_magnetic_deg, from_csv.table.runway_magnetic_deg, atol=1e-9)
+    assert from_xlsx.table.input_row[0] == "rwys.xlsx line 2"
+    out = tmp_path / "checked.xlsx"
+    write_runway_table(out, from_csv)
+    back = openpyxl.load_workbook(out, read_only=True)
+    rows = list(back.worksheets[0].iter_rows(values_only=True))
+    header = list(rows[0])
+    assert "variation_deg (deg, east positive)" in header
+    col = header.index("variation_deg (deg, east positive)")
+    assert rows[1][col] == round(float(from_csv.table.variation_deg[0]), 2)  # rounded to 0.01 deg
