@@ -26,7 +26,9 @@ from .notices import CAUTION
 from .routes import RouteResult, route
 from .runways import RunwayCheck, check_runways
 from .swing import DeviationCurve, analyse_swing
-from .zones import dip_poles, geomagnetic_poles, heading_error, pole_tracks, zones
+from .detector import heading_error
+from .poles import dip_poles, geomagnetic_poles, pole_tracks
+from .zones import zones
 
 __all__ = [
     "RouteResult",

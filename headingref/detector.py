@@ -39,7 +39,18 @@ Error terms (all in degrees of heading, magnetic heading measured clockwise from
 - **Slaving**: the gyro is slaved to the detector at a slow rate (default 3 deg/min). Working off
   an error takes ``error / rate`` minutes (:func:`slaving_time_min`); if slaving stays on through
   a turn of given duration, the gyro is dragged toward the detector's tilt error by
-  ``min(rate * duration, |tilt error|)`` (:func:`slaving_drift_deg`).
+  ``min(rate * duration, |tilt error|)`` (:func:`slaving_drift_deg`). Many systems cut slaving
+  out while the bank exceeds about 10 degrees (common practice, from memory), precisely so that
+  the tilt error does not reach the gyro: ``DetectorSettings.slaving_cutout_bank_deg`` (default
+  10; 90 never cuts out). Above it the drift is 0 and ``slaving_on`` is False.
+
+Settings
+--------
+One frozen dataclass per concern, whose field names are the scenario's ``[error_budget]`` keys and
+(with ``--budget-``) the options of ``headingref zones``: :class:`DetectorSettings` (residual
+field 50 nT, joint limit 25 deg, slaving 3 deg/min, cut-out above 10 deg of bank, limit 2 deg) and
+:class:`Manoeuvre` (bank 25 deg, acceleration 0, pitch 0, 60 s; ``Manoeuvre.level()`` for steady
+flight). :func:`budget_settings` builds both from keywords.
 
 Combined budget
 ---------------
@@ -47,12 +58,16 @@ The terms that reach the slaved heading output are the residual-field error, the
 uncertainty and the slaving drift accumulated during the manoeuvre (the tilt error reaches the
 output only through slaving). They are taken as independent: ``budget_rss_deg`` is their
 root-sum-square, ``budget_linear_deg`` their plain sum (a worst case with all terms aligned).
-``exceeds_limit`` compares the root-sum-square with ``limit_deg``.
+``exceeds_limit`` compares the root-sum-square with ``limit_deg``. ``dominant_term`` names the
+largest term and ``saturated_by`` says where the budget sits at a ceiling (slaving drift at
+rate x duration, residual field at least H, model term capped at 180): there a larger bank or a
+weaker field changes nothing, so a map of the budget is flat; say so when you show it.
 
 Public API
 ----------
 :func:`heading_error` (points or route samples -> DataFrame), :func:`heading_error_grid` (map ->
-xarray Dataset, with the area beyond the limit), :func:`detector_tilt`,
+xarray Dataset, with the area beyond the limit), :class:`DetectorSettings`, :class:`Manoeuvre`,
+:func:`budget_settings`, :func:`detector_tilt`,
 :func:`tilt_heading_error_deg`, :func:`worst_tilt_heading_error_deg`,
 :func:`small_angle_tilt_error_deg`, :func:`residual_field_error_deg`, :func:`slaving_time_min`,
 :func:`slaving_drift_deg`, :func:`flux_gate_arm_outputs`, :func:`heading_from_arm_outputs`.
@@ -63,28 +78,36 @@ xarray Dataset, with the area beyond the limit), :func:`detector_tilt`,
 >>> float(tilt_heading_error_deg(75.0, 90.0, tilt_pitch_deg=0.0, tilt_roll_deg=0.0))
 0.0
 >>> import headingref
->>> row = headingref.heading_error(78.2, 15.6, "2026-12-02", bank_deg=15.0).iloc[0]
+>>> row = headingref.heading_error(78.2, 15.6, "2026-12-02", bank_angle_deg=15.0).iloc[0]
 >>> bool(row.tilt_error_deg > 10.0)  # weak H, steep dip: a 15 degree bank misleads badly
 True
+>>> bool(row.slaving_on), float(row.slaving_drift_deg)  # but slaving is cut out above 10 degrees
+(False, 0.0)
 """
 
 from __future__ import annotations
 
-import functools
 import warnings
+from dataclasses import dataclass, field, fields, replace
 from typing import Any
 
 import numpy as np
 import pandas as pd
 
 from .errors import InputError, UndefinedDeclinationWarning
+from .field import ZONE_DTYPE, field_arrays
+from .geogrid import CAPS, METRES_PER_DEG, area_grid, cap_stereo_grid, parse_area, polygons_area_km2, threshold_polygons
+from .units import decimal_year
 
 STANDARD_GRAVITY_MPS2 = 9.80665  # standard acceleration of gravity (3rd CGPM, 1901)
 GIMBAL_LIMIT_DEG = 25.0  # common practice: the detector's joint swings about 25 deg in pitch and roll
 SLAVING_RATE_DEG_PER_MIN = 3.0  # common practice: slaving (precession) rate about 3 deg per minute
 ARM_ANGLES_DEG = (0.0, 120.0, 240.0)  # common practice: three sensing arms 120 deg apart
-DEFAULT_RESIDUAL_FIELD_NT = 100.0
+SLAVING_CUTOUT_BANK_DEG = 10.0  # common practice, from memory: slaving cut out above about 10 deg of bank
+DEFAULT_RESIDUAL_FIELD_NT = 50.0  # illustrative; use the installation's compensated figure
 DEFAULT_LIMIT_DEG = 2.0
+DEFAULT_BANK_DEG = 25.0  # the standard turn of the budget (see Manoeuvre)
+DEFAULT_TURN_DURATION_S = 60.0
 
 
 def _wrap180(angle_deg: Any) -> np.ndarray:
@@ -295,25 +318,143 @@ def slaving_drift_deg(tilt_error_deg: Any, duration_min: Any, rate_deg_per_min: 
     return np.minimum(rate * duration, np.abs(np.asarray(tilt_error_deg, dtype=np.float64)))
 
 
+# --------------------------------------------------------------------------- settings
+def _setting(default: float, unit: str, low: float, high: float, doc: str, open_low: bool = False):
+    return field(default=default, metadata={"unit": unit, "low": low, "high": high, "doc": doc, "open_low": open_low})
+
+
+def _validated(obj) -> None:
+    """Check every field of a settings dataclass against its metadata; store floats or arrays."""
+    for spec in fields(obj):
+        meta = spec.metadata
+        value = _finite(spec.name, getattr(obj, spec.name), meta["low"], meta["high"], meta["unit"])
+        if meta["open_low"] and np.any(value <= meta["low"]):
+            raise InputError(f"{spec.name} {np.ravel(value)[0]:g} must be above {meta['low']:g} {meta['unit']}")
+        object.__setattr__(obj, spec.name, float(value) if value.ndim == 0 else value)
+
+
+@dataclass(frozen=True)
+class DetectorSettings:
+    """The installation: the detector and its slaving loop, and the budget's limit.
+
+    Field names are the ``[error_budget]`` keys of a scenario and, with ``--budget-`` in front,
+    the options of ``headingref zones``. ``residual_field_nT`` may be one value per place.
+    """
+
+    residual_field_nT: float = _setting(
+        DEFAULT_RESIDUAL_FIELD_NT, "nT", 0.0, 20000.0,
+        "uncompensated aircraft field at the detector (illustrative default; use the installation's figure)")
+    joint_limit_deg: float = _setting(
+        GIMBAL_LIMIT_DEG, "deg", 0.0, 89.0, "travel of the detector's universal joint each way (common practice: about 25)")
+    slaving_rate_deg_per_min: float = _setting(
+        SLAVING_RATE_DEG_PER_MIN, "deg/min", 0.0, 600.0, "gyro slaving rate (common practice: about 3)", open_low=True)
+    slaving_cutout_bank_deg: float = _setting(
+        SLAVING_CUTOUT_BANK_DEG, "deg", 0.0, 90.0,
+        "slaving is cut out while the bank exceeds this (common practice, from memory: about 10); 90 = never cut out")
+    limit_deg: float = _setting(DEFAULT_LIMIT_DEG, "deg", 0.0, 180.0, "acceptable combined heading error (root-sum-square)",
+                                open_low=True)
+
+    def __post_init__(self) -> None:
+        _validated(self)
+
+
+@dataclass(frozen=True)
+class Manoeuvre:
+    """What the aircraft does while the budget is taken.
+
+    Field names are the ``[error_budget]`` keys of a scenario and, with ``--budget-`` in front,
+    the options of ``headingref zones``. The default is the budget's standard turn: 25 degrees
+    of bank for one minute (a rate-one turn of a jet at about 250 kt TAS needs about 25 degrees;
+    common practice, from memory). :meth:`level` is steady level flight. Each value may be one
+    per place.
+    """
+
+    bank_angle_deg: float = _setting(
+        DEFAULT_BANK_DEG, "deg", -89.0, 89.0, "bank angle of a coordinated turn, right wing down positive")
+    acceleration_mps2: float = _setting(0.0, "m/s^2", -20.0, 20.0, "along-track acceleration, speeding up positive")
+    pitch_deg: float = _setting(0.0, "deg", -89.0, 89.0, "pitch attitude, nose up positive")
+    turn_duration_s: float = _setting(
+        DEFAULT_TURN_DURATION_S, "s", 0.0, 3600.0, "how long the manoeuvre lasts (slaving drift accrues meanwhile)")
+
+    def __post_init__(self) -> None:
+        _validated(self)
+
+    @classmethod
+    def level(cls) -> Manoeuvre:
+        """Steady level flight: no bank, no acceleration, level attitude."""
+        return cls(bank_angle_deg=0.0, acceleration_mps2=0.0, pitch_deg=0.0)
+
+
+_LEGACY_NAMES = {  # heading_error's earlier keyword names -> (settings field, factor)
+    "bank_deg": ("bank_angle_deg", 1.0),
+    "accel_mps2": ("acceleration_mps2", 1.0),
+    "gimbal_limit_deg": ("joint_limit_deg", 1.0),
+    "turn_duration_min": ("turn_duration_s", 60.0),
+}
+_DETECTOR_FIELDS = tuple(f.name for f in fields(DetectorSettings))
+_MANOEUVRE_FIELDS = tuple(f.name for f in fields(Manoeuvre))
+
+
+def budget_settings(
+    detector: DetectorSettings | None = None, manoeuvre: Manoeuvre | None = None, **settings: Any
+) -> tuple[DetectorSettings, Manoeuvre]:
+    """``(DetectorSettings, Manoeuvre)`` from optional objects and keyword overrides.
+
+    Keywords are the fields of either class; the earlier names ``bank_deg``, ``accel_mps2``,
+    ``gimbal_limit_deg`` and ``turn_duration_min`` (minutes) are still accepted with the same
+    meaning. ``None`` values are ignored (not given).
+    """
+    detector = detector if detector is not None else DetectorSettings()
+    manoeuvre = manoeuvre if manoeuvre is not None else Manoeuvre()
+    if not isinstance(detector, DetectorSettings) or not isinstance(manoeuvre, Manoeuvre):
+        raise InputError("detector must be a DetectorSettings and manoeuvre a Manoeuvre (headingref.detector)")
+    for_detector, for_manoeuvre, given_as = {}, {}, {}
+    for name, value in settings.items():
+        if value is None:
+            continue
+        if name in _LEGACY_NAMES:
+            new, factor = _LEGACY_NAMES[name]
+            if new in settings and settings[new] is not None:
+                raise InputError(f"{name} and {new} are the same setting; give one of them")
+            value = np.multiply(_finite(name, value), factor) if factor != 1.0 else value
+            given_as[new] = name
+            name = new
+        if name in _DETECTOR_FIELDS:
+            for_detector[name] = value
+        elif name in _MANOEUVRE_FIELDS:
+            for_manoeuvre[name] = value
+        else:
+            accepted = ", ".join((*_DETECTOR_FIELDS, *_MANOEUVRE_FIELDS))
+            raise InputError(f"unknown error-budget setting {name!r}; accepted: {accepted}")
+    try:
+        return replace(detector, **for_detector), replace(manoeuvre, **for_manoeuvre)
+    except InputError as exc:
+        text = str(exc)
+        for new, old in given_as.items():
+            if text.startswith(new + " "):
+                raise InputError(f"{old} (as {new}){text[len(new):]}") from None
+        raise
+
+
 # --------------------------------------------------------------------------- the budget
+TERMS = ("residual_field", "model_uncertainty", "slaving_drift")
+"""The terms that reach the slaved heading, in the order of ``dominant_term`` codes."""
+TERM_DTYPE = pd.CategoricalDtype(list(TERMS))
+SATURATION = ("none", "slaving_rate", "residual_field", "model_uncertainty")
+"""Values of ``saturated_by``: what caps the budget (see :func:`heading_error`)."""
+SATURATION_DTYPE = pd.CategoricalDtype(list(SATURATION))
+
+
 def _budget(
     horizontal_nT: np.ndarray,
     inclination_deg: np.ndarray,
     uncertainty_deg: np.ndarray,
-    *,
-    residual_field_nT: Any,
-    bank_deg: Any,
-    accel_mps2: Any,
-    pitch_deg: Any,
+    detector: DetectorSettings,
+    manoeuvre: Manoeuvre,
     heading_deg: Any,
-    turn_duration_min: Any,
-    slaving_rate_deg_per_min: float,
-    gimbal_limit_deg: float,
-    limit_deg: float,
 ) -> dict[str, np.ndarray]:
-    residual_nT = _finite("residual_field_nT", residual_field_nT, 0.0, 1e5, "nT")
-    limit = float(_finite("limit_deg", limit_deg, 0.0, 180.0, "degrees"))
-    tilt_pitch, tilt_roll = detector_tilt(bank_deg, accel_mps2, pitch_deg, gimbal_limit_deg)
+    tilt_pitch, tilt_roll = detector_tilt(manoeuvre.bank_angle_deg, manoeuvre.acceleration_mps2, manoeuvre.pitch_deg,
+                                          detector.joint_limit_deg)
     if heading_deg is None:
         tilt_error, heading = worst_tilt_heading_error_deg(inclination_deg, tilt_pitch, tilt_roll, return_heading=True)
     else:
@@ -321,12 +462,19 @@ def _budget(
         tilt_error = tilt_heading_error_deg(inclination_deg, heading, tilt_pitch, tilt_roll)
         # no horizontal field: no heading at all
         tilt_error = np.where(horizontal_nT > 0, tilt_error, 180.0)
-    residual = residual_field_error_deg(horizontal_nT, residual_nT)
+    residual = residual_field_error_deg(horizontal_nT, detector.residual_field_nT)
     uncertainty = np.minimum(np.nan_to_num(uncertainty_deg, nan=180.0, posinf=180.0), 180.0)
-    drift = slaving_drift_deg(tilt_error, turn_duration_min, slaving_rate_deg_per_min)
+    rate = detector.slaving_rate_deg_per_min
+    duration_min = np.asarray(manoeuvre.turn_duration_s, dtype=np.float64) / 60.0
+    slaving_on = np.abs(np.asarray(manoeuvre.bank_angle_deg)) <= detector.slaving_cutout_bank_deg
+    drift = np.where(slaving_on, slaving_drift_deg(tilt_error, duration_min, rate), 0.0)
     rss = np.sqrt(residual**2 + uncertainty**2 + drift**2)
     linear = residual + uncertainty + drift
     shape = np.broadcast_shapes(np.shape(horizontal_nT), np.shape(rss))
+    stack = np.stack(np.broadcast_arrays(residual, uncertainty, drift))
+    dominant = np.argmax(stack, axis=0).astype(np.int8)
+    at_rate = slaving_on & (rate * duration_min < np.abs(tilt_error)) & (dominant == 2)
+    saturated = np.where(residual >= 180.0, 2, np.where(uncertainty >= 180.0, 3, np.where(at_rate, 1, 0))).astype(np.int8)
     out = {
         "tilt_pitch_deg": tilt_pitch,
         "tilt_roll_deg": tilt_roll,
@@ -334,13 +482,19 @@ def _budget(
         "residual_field_error_deg": residual,
         "model_uncertainty_deg": uncertainty,
         "tilt_error_deg": tilt_error,
+        "slaving_on": slaving_on,
         "slaving_drift_deg": drift,
-        "slaving_recovery_min": slaving_time_min(drift, slaving_rate_deg_per_min),
+        "slaving_recovery_min": slaving_time_min(drift, rate),
         "budget_rss_deg": rss,
         "budget_linear_deg": linear,
-        "exceeds_limit": rss > limit,
+        "exceeds_limit": rss > detector.limit_deg,
+        "dominant_term": dominant,
+        "saturated_by": saturated,
     }
     return {name: np.broadcast_to(value, shape) for name, value in out.items()}
+
+
+_CODED = {"dominant_term": TERM_DTYPE, "saturated_by": SATURATION_DTYPE}
 
 
 def heading_error(
@@ -349,17 +503,12 @@ def heading_error(
     date: Any,
     *,
     alt_km: Any = 0.0,
-    residual_field_nT: Any = DEFAULT_RESIDUAL_FIELD_NT,
-    bank_deg: Any = 0.0,
-    accel_mps2: Any = 0.0,
-    pitch_deg: Any = 0.0,
     heading_deg: Any = None,
-    turn_duration_min: Any = 1.0,
-    slaving_rate_deg_per_min: float = SLAVING_RATE_DEG_PER_MIN,
-    gimbal_limit_deg: float = GIMBAL_LIMIT_DEG,
-    limit_deg: float = DEFAULT_LIMIT_DEG,
+    detector: DetectorSettings | None = None,
+    manoeuvre: Manoeuvre | None = None,
     model=None,
     allow_extrapolation: bool = False,
+    **settings: Any,
 ) -> pd.DataFrame:
     """Heading-reference error budget at points or route samples (one row each).
 
@@ -368,51 +517,49 @@ def heading_error(
     lat, lon : degrees (WGS84, north/east positive), scalars or arrays (broadcast)
     date : one date or one per point (see :func:`headingref.units.decimal_year`)
     alt_km : height above the WGS84 ellipsoid, km
-    residual_field_nT : uncompensated aircraft field at the detector, nT (default 100, an
-        illustrative value; use the installation's figure)
-    bank_deg, accel_mps2, pitch_deg : manoeuvre (see :func:`detector_tilt`); scalars or per point
     heading_deg : magnetic heading, degrees; ``None`` (default) takes the worst heading
-    turn_duration_min : how long the manoeuvre lasts with slaving on, minutes
-    slaving_rate_deg_per_min : default 3 (common practice)
-    gimbal_limit_deg : default 25 (common practice)
-    limit_deg : budget limit for ``exceeds_limit`` (root-sum-square), degrees
+    detector : :class:`DetectorSettings` (default: its defaults)
+    manoeuvre : :class:`Manoeuvre` (default: the standard 25 degree, 60 s turn;
+        ``Manoeuvre.level()`` for steady level flight)
+    **settings : any field of either class by name, overriding the objects (e.g.
+        ``bank_angle_deg=15``, ``residual_field_nT=100``); the earlier names ``bank_deg``,
+        ``accel_mps2``, ``gimbal_limit_deg`` and ``turn_duration_min`` (minutes) keep working.
+        Manoeuvre values and ``residual_field_nT`` may be one per place.
 
     Returns
     -------
     pandas.DataFrame
-        ``lat_deg, lon_deg, alt_km, decimal_year, horizontal_nT, inclination_deg,
+        ``lat_deg, lon_deg, alt_km, decimal_year, horizontal_nT, inclination_deg, zone,
         tilt_pitch_deg, tilt_roll_deg, heading_deg (the heading given, or the worst one; NaN
-        where every heading is equally bad or none is), residual_field_error_deg, model_uncertainty_deg,
-        tilt_error_deg, slaving_drift_deg, slaving_recovery_min, budget_rss_deg,
-        budget_linear_deg, exceeds_limit``. ``tilt_error_deg`` is signed (apparent minus true,
-        east positive) for a given heading and the magnitude for the worst heading. How the terms
-        combine: module docstring.
+        where every heading is equally bad or none is), residual_field_error_deg,
+        model_uncertainty_deg, tilt_error_deg, slaving_on, slaving_drift_deg,
+        slaving_recovery_min, budget_rss_deg, budget_linear_deg, exceeds_limit, dominant_term,
+        saturated_by``. ``tilt_error_deg`` is signed (apparent minus true, east positive) for a
+        given heading and the magnitude for the worst heading. ``zone`` is the WMM zone
+        (:data:`headingref.field.ZONE_DTYPE`). ``slaving_on`` is False where the bank exceeds
+        the slaving cut-out: the gyro then runs free and the tilt error does not reach the
+        output (drift 0). ``dominant_term`` (categorical, :data:`TERMS`) is the largest term;
+        ``saturated_by`` (categorical, :data:`SATURATION`) says when the budget sits at a
+        ceiling so that the manoeuvre no longer changes it: ``slaving_rate`` where the drift is
+        the largest term and equals rate x duration (the tilt error is larger still),
+        ``residual_field`` where the residual field is at least H (no heading, 180),
+        ``model_uncertainty`` where the model term is capped at 180; else ``none``.
     """
-    from .field import field_arrays
-
+    detector, manoeuvre = budget_settings(detector, manoeuvre, **settings)
     f = field_arrays(lat, lon, date, alt_km=alt_km, model=model, allow_extrapolation=allow_extrapolation)
     n = len(f["horizontal_nT"])
-    settings = {"residual_field_nT": residual_field_nT, "bank_deg": bank_deg, "accel_mps2": accel_mps2,
-                "pitch_deg": pitch_deg, "heading_deg": heading_deg, "turn_duration_min": turn_duration_min}
-    for name, value in settings.items():
+    per_place = {"residual_field_nT": detector.residual_field_nT, "heading_deg": heading_deg,
+                 **{name: getattr(manoeuvre, name) for name in _MANOEUVRE_FIELDS}}
+    for name, value in per_place.items():
         if value is not None and np.size(value) not in (1, n):
             raise InputError(f"{name} has {np.size(value)} values for {n} place(s); give one value, or one per place")
-    terms = _budget(
-        f["horizontal_nT"],
-        f["inclination_deg"],
-        f["declination_uncertainty_deg"],
-        residual_field_nT=residual_field_nT,
-        bank_deg=bank_deg,
-        accel_mps2=accel_mps2,
-        pitch_deg=pitch_deg,
-        heading_deg=heading_deg,
-        turn_duration_min=turn_duration_min,
-        slaving_rate_deg_per_min=slaving_rate_deg_per_min,
-        gimbal_limit_deg=gimbal_limit_deg,
-        limit_deg=limit_deg,
-    )
+    terms = _budget(f["horizontal_nT"], f["inclination_deg"], f["declination_uncertainty_deg"], detector, manoeuvre,
+                    heading_deg)
     columns = {name: f[name] for name in ("lat_deg", "lon_deg", "alt_km", "decimal_year", "horizontal_nT", "inclination_deg")}
-    columns.update({name: np.broadcast_to(np.ravel(value) if np.ndim(value) else value, (n,)) for name, value in terms.items()})
+    columns["zone"] = pd.Categorical.from_codes(f["zone_code"], dtype=ZONE_DTYPE)
+    for name, value in terms.items():
+        value = np.broadcast_to(np.ravel(value) if np.ndim(value) else value, (n,))
+        columns[name] = pd.Categorical.from_codes(value, dtype=_CODED[name]) if name in _CODED else value
     return pd.DataFrame(columns)
 
 
@@ -422,48 +569,41 @@ def heading_error_grid(
     *,
     resolution_deg: float = 0.5,
     alt_km: float = 0.0,
-    residual_field_nT: float = DEFAULT_RESIDUAL_FIELD_NT,
-    bank_deg: float = 0.0,
-    accel_mps2: float = 0.0,
-    pitch_deg: float = 0.0,
     heading_deg: float | None = None,
-    turn_duration_min: float = 1.0,
-    slaving_rate_deg_per_min: float = SLAVING_RATE_DEG_PER_MIN,
-    gimbal_limit_deg: float = GIMBAL_LIMIT_DEG,
-    limit_deg: float = DEFAULT_LIMIT_DEG,
+    detector: DetectorSettings | None = None,
+    manoeuvre: Manoeuvre | None = None,
     model=None,
     allow_extrapolation: bool = False,
+    **settings: Any,
 ):
     """The error budget as a map (one date), an xarray Dataset.
 
     ``area`` is ``'north'``/``'south'`` or ``(lat_min, lat_max, lon_min, lon_max)`` as for
-    :func:`headingref.zones.zones`.
+    :func:`headingref.zones.zones`; settings as for :func:`heading_error` (one value each).
 
-    - A polar cap is computed on a square polar stereographic grid (WGS84,
-      ``+proj=stere +lat_0=+-90 +lon_0=0``, the projection of :mod:`headingref.plots.basemap`)
-      with dims ``(y, x)`` in metres, spacing ``resolution_deg`` degrees of latitude
-      (111.32 km per degree), out to the cap's edge (:data:`CAP_EDGE_LAT_DEG`: 60 N, 50 S);
-      points beyond the edge are NaN. 2-D ``lat``/``lon`` coordinates. The area beyond the limit is the sum of the cells'
-      ground areas (cell area divided by the projection's areal scale factor from
-      :meth:`pyproj.Proj.get_factors`).
+    - A polar cap is computed on a square polar stereographic grid
+      (:func:`headingref.geogrid.cap_stereo_grid`, the projection of
+      :mod:`headingref.plots.basemap`) with dims ``(y, x)`` in metres, spacing ``resolution_deg``
+      degrees of latitude, out to the cap's edge (:data:`headingref.geogrid.CAPS`); points
+      beyond the edge are NaN. 2-D ``lat``/``lon`` coordinates. The area beyond the limit is the
+      sum of the cells' ground areas.
     - A region is computed on its latitude-longitude grid (dims ``(lat, lon)``); the area is that
       of the limit contour's polygons (geodesic on WGS84,
       :meth:`pyproj.Geod.polygon_area_perimeter`).
 
     Variables: ``horizontal_nT``, ``inclination_deg``, ``declination_uncertainty_deg`` and the
-    budget terms of :func:`heading_error`. ``attrs['area_exceeding_limit_km2']`` is the area
-    where the root-sum-square budget exceeds ``limit_deg``.
+    budget terms of :func:`heading_error` (``dominant_term`` and ``saturated_by`` as int8 codes
+    with CF ``flag_values``/``flag_meanings``). ``attrs``: ``area_exceeding_limit_km2`` (where
+    the root-sum-square budget exceeds ``limit_deg``), ``saturated_share_beyond_limit`` (the
+    share of that area where the budget is saturated, 0..1) and ``saturated_by`` (the term
+    saturating most of it, or ``none``), and every setting used.
     """
     import xarray as xr
 
-    from .zones import area_grid, parse_area, polygons_area_km2, threshold_polygons
-
-    options = {
-        "residual_field_nT": residual_field_nT, "bank_deg": bank_deg, "accel_mps2": accel_mps2,
-        "pitch_deg": pitch_deg, "heading_deg": heading_deg, "turn_duration_min": turn_duration_min,
-        "slaving_rate_deg_per_min": slaving_rate_deg_per_min, "gimbal_limit_deg": gimbal_limit_deg,
-        "limit_deg": limit_deg,
-    }
+    detector, manoeuvre = budget_settings(detector, manoeuvre, **settings)
+    for name in _MANOEUVRE_FIELDS:
+        if np.ndim(getattr(manoeuvre, name)) != 0:
+            raise InputError(f"{name}: a map takes one value")
     if np.ndim(date) != 0 and not isinstance(date, str):
         raise InputError("heading_error_grid takes one date; call it once per date")
     kind, _ = parse_area(area)
@@ -471,88 +611,63 @@ def heading_error_grid(
         ds = area_grid(area, date, resolution_deg=resolution_deg, alt_km=alt_km, model=model,
                        allow_extrapolation=allow_extrapolation)
         terms = _budget(ds["horizontal_nT"].values, ds["inclination_deg"].values,
-                        ds["declination_uncertainty_deg"].values, **options)
+                        ds["declination_uncertainty_deg"].values, detector, manoeuvre, heading_deg)
         for name, value in terms.items():
             ds[name] = (("lat", "lon"), np.array(value))
-        area_km2 = polygons_area_km2(threshold_polygons(ds, "budget_rss_deg", limit_deg, np.inf))
+        area_km2 = polygons_area_km2(threshold_polygons(ds, "budget_rss_deg", detector.limit_deg, np.inf))
+        cell_km2 = _latlon_cell_km2(ds["lat"].values, ds["lon"].values)
     else:
-        from .field import field_arrays
-        from .units import decimal_year
-
-        x, y, lat, lon, inside, _, lat_in, lon_in, cell_in_km2 = _stereo_cap(kind, resolution_deg)
+        x, y, lat, lon, inside, cell_all_km2, lat_in, lon_in, cell_in_km2 = cap_stereo_grid(kind, resolution_deg)
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", UndefinedDeclinationWarning)  # D at the pole point is not used
             f = field_arrays(lat_in, lon_in, decimal_year(date), alt_km=alt_km, model=model,
                              allow_extrapolation=allow_extrapolation)
-        terms = _budget(f["horizontal_nT"], f["inclination_deg"], f["declination_uncertainty_deg"], **options)
+        terms = _budget(f["horizontal_nT"], f["inclination_deg"], f["declination_uncertainty_deg"], detector, manoeuvre,
+                        heading_deg)
         variables = {}
         for name, values in [*((n, f[n]) for n in ("horizontal_nT", "inclination_deg", "declination_uncertainty_deg")),
                              *terms.items()]:
-            full = np.full(lat.shape, False if values.dtype == bool else np.nan, dtype=values.dtype)
+            fill = False if values.dtype == bool else (-1 if values.dtype == np.int8 else np.nan)
+            full = np.full(lat.shape, fill, dtype=values.dtype)
             full[inside] = values
             variables[name] = (("y", "x"), full)
         ds = xr.Dataset(variables, coords={
             "x": ("x", x, {"units": "m"}), "y": ("y", y, {"units": "m"}),
             "lat": (("y", "x"), lat, {"units": "degrees_north"}), "lon": (("y", "x"), lon, {"units": "degrees_east"}),
-        }, attrs={"crs": _cap_proj(kind), "alt_km": float(alt_km), "decimal_year": float(f["decimal_year"][0])})
+        }, attrs={"crs": CAPS[kind].proj, "alt_km": float(alt_km), "decimal_year": float(f["decimal_year"][0])})
         area_km2 = float(np.sum(cell_in_km2, where=terms["exceeds_limit"]))
+        cell_km2 = cell_all_km2
+    for name, dtype in _CODED.items():
+        ds[name].attrs.update(flag_values=np.arange(len(dtype.categories), dtype=np.int8),
+                              flag_meanings=" ".join(dtype.categories),
+                              long_name=f"{name} code (-1 outside the map)")
+    beyond = ds["exceeds_limit"].values
+    saturated = ds["saturated_by"].values
+    weights = np.where(beyond, cell_km2, 0.0)
+    total = float(weights.sum())
+    shares = [float(weights[saturated == code].sum()) / total if total > 0 else 0.0 for code in range(len(SATURATION))]
+    main = int(np.argmax(shares[1:])) + 1
     ds.attrs.update(
         area_kind=kind,
-        limit_deg=float(limit_deg),
         area_exceeding_limit_km2=area_km2,
+        saturated_share_beyond_limit=float(sum(shares[1:])),
+        saturated_by=SATURATION[main] if shares[main] > 0 else "none",
         combination="budget_rss_deg = sqrt(residual^2 + model_uncertainty^2 + slaving_drift^2)",
+        **{name: float(getattr(detector, name)) for name in _DETECTOR_FIELDS},
+        **{name: float(getattr(manoeuvre, name)) for name in _MANOEUVRE_FIELDS},
     )
+    if heading_deg is not None:
+        ds.attrs["heading_deg"] = float(heading_deg)
     return ds
+
+
+def _latlon_cell_km2(lats: np.ndarray, lons: np.ndarray) -> np.ndarray:
+    """Approximate ground area of the cell round each (lat, lon) node, km^2 (spherical, for shares only)."""
+    dlat = np.gradient(lats) if lats.size > 1 else np.ones(1)
+    dlon = np.gradient(lons) if lons.size > 1 else np.ones(1)
+    row = np.abs(np.cos(np.radians(lats)) * dlat) * (METRES_PER_DEG / 1000.0) ** 2
+    return row[:, None] * np.abs(dlon)[None, :]
 
 
 error_budget_map = heading_error_grid
 """Alias of :func:`heading_error_grid`."""
-
-CAP_EDGE_LAT_DEG = {"north": 60.0, "south": 50.0}
-"""Edge of the cap maps: the weak-field zones reach about 70 N round the north dip pole (near the
-geographic pole) but about 56 S round the south dip pole (near 64 S), so the south cap is wider."""
-_METRES_PER_DEG = 111_320.0
-
-
-def _cap_proj(kind: str) -> str:
-    lat0 = 90 if kind == "north" else -90
-    return f"+proj=stere +lat_0={lat0} +lat_ts={lat0} +lon_0=0 +x_0=0 +y_0=0 +datum=WGS84 +units=m +no_defs"
-
-
-def _stereo_cap(kind: str, resolution_deg: float):
-    """Square polar stereographic grid over a cap: x, y (m), lat, lon, inside mask, cell km^2.
-
-    Cached by (cap, resolution): the geometry does not change between calls (read-only arrays).
-    """
-    from .zones import check_resolution_deg
-
-    return _stereo_cap_cached(kind, check_resolution_deg(resolution_deg))
-
-
-@functools.lru_cache(maxsize=4)
-def _stereo_cap_cached(kind: str, step_deg: float):
-    from pyproj import Proj
-
-    proj = Proj(_cap_proj(kind))
-    sign = 1.0 if kind == "north" else -1.0
-    edge = CAP_EDGE_LAT_DEG[kind]
-    edge_x, edge_y = proj(0.0, sign * edge)
-    radius = float(np.hypot(edge_x, edge_y))
-    step = step_deg * _METRES_PER_DEG
-    half = int(np.ceil(radius / step))
-    if (2 * half + 1) ** 2 > 20_000_000:
-        raise InputError(f"resolution {step_deg!r} is too fine for a polar cap map; use 0.05 degrees or more")
-    axis = step * np.arange(-half, half + 1)
-    xx, yy = np.meshgrid(axis, axis)
-    inside = np.hypot(xx, yy) <= radius
-    lon, lat = proj(xx, yy, inverse=True)
-    # areal scale depends on latitude only: take it on a fine profile and interpolate
-    profile_lat = sign * np.linspace(edge - 1.0, 90.0, 2000)
-    factors = proj.get_factors(np.zeros_like(profile_lat), profile_lat)
-    order = np.argsort(profile_lat)
-    areal = np.interp(lat, profile_lat[order], np.asarray(factors.areal_scale)[order])
-    cell_km2 = step * step / areal / 1e6
-    grid = (axis, axis.copy(), lat, lon, inside, cell_km2, lat[inside], lon[inside], cell_km2[inside])
-    for array in grid:
-        array.setflags(write=False)
-    return grid

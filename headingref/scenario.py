@@ -17,8 +17,9 @@ Layout (every section is optional; a missing section's job is left out of the re
 
     [routes]        spacing_nm, path, grid, alt, and [[routes.plan]] name, file[, alt]
     [zones]         cap, edge_lat_deg, step_deg, blackout_nT, caution_nT, compare_date
-    [error_budget]  residual_field_nT, bank_angle_deg, acceleration_mps2, joint_limit_deg,
-                    limit_deg, slaving_rate_deg_per_min, turn_duration_s
+    [error_budget]  residual_field_nT, joint_limit_deg, slaving_rate_deg_per_min,
+                    slaving_cutout_bank_deg, limit_deg (detector.DetectorSettings) and
+                    bank_angle_deg, acceleration_mps2, pitch_deg, turn_duration_s (detector.Manoeuvre)
     [compass_bases] file, swing_date, tolerance_deg, resurvey_years, setting_out_lines_deg,
                     setting_out_distances_m
     [swing]         file, base, limit_deg, compensated_limit_deg, verdict_on, method,
@@ -39,11 +40,13 @@ import difflib
 import math
 import os
 import tomllib
-from dataclasses import dataclass, field
+from dataclasses import asdict, dataclass, field, fields
 from pathlib import Path
 from typing import Any, NamedTuple
 
+from .detector import DetectorSettings, Manoeuvre
 from .errors import InputError
+from .geogrid import CAPS
 from .notices import DATA_DIR
 
 __all__ = ["DEMO_SCENARIO", "SCHEMA", "Scenario", "load_scenario"]
@@ -90,20 +93,17 @@ SCHEMA: dict[str, dict[str, Key]] = {
     },
     "zones": {
         "cap": Key("choice", "north", choices=("north", "south"), doc="polar cap to map"),
-        "edge_lat_deg": Key("float", 55.0, low=0.0, high=85.0, doc="latitude of the map's edge (absolute), deg"),
+        "edge_lat_deg": Key("float", None, low=0.0, high=85.0,
+                            doc="latitude of the map's edge (absolute), deg; default the cap's edge in geogrid.CAPS (55 N, 50 S)"),
         "step_deg": Key("float", 0.5, low=0.05, high=5.0, doc="grid step of the zone maps, deg"),
         "blackout_nT": Key("float", 2000.0, high=60000.0, doc="H below this: blackout zone, nT", **_POSITIVE),
         "caution_nT": Key("float", 6000.0, high=60000.0, doc="H below this: caution zone, nT", **_POSITIVE),
         "compare_date": Key("date", None, doc="second date to show how the zone boundary moves"),
     },
-    "error_budget": {
-        "residual_field_nT": Key("float", 50.0, low=0.0, high=20000.0, doc="uncompensated aircraft field, nT"),
-        "bank_angle_deg": Key("float", 25.0, low=0.0, high=80.0, doc="bank angle of a coordinated turn, deg"),
-        "acceleration_mps2": Key("float", 0.0, low=0.0, high=20.0, doc="along-track acceleration, m/s2"),
-        "joint_limit_deg": Key("float", 25.0, low=0.0, high=90.0, doc="detector universal-joint freedom, deg"),
-        "limit_deg": Key("float", 2.0, high=45.0, doc="acceptable combined heading error, deg", **_POSITIVE),
-        "slaving_rate_deg_per_min": Key("float", 3.0, high=600.0, doc="gyro slaving rate, deg/min", **_POSITIVE),
-        "turn_duration_s": Key("float", 60.0, high=3600.0, doc="duration of the turn, s", **_POSITIVE),
+    "error_budget": {  # one key per field of detector.DetectorSettings and detector.Manoeuvre, same defaults
+        spec.name: Key("float", spec.default, low=spec.metadata["low"], high=spec.metadata["high"],
+                       doc=f"{spec.metadata['doc']}, {spec.metadata['unit']}", open_low=spec.metadata["open_low"])
+        for cls in (DetectorSettings, Manoeuvre) for spec in fields(cls)
     },
     "compass_bases": {
         "file": Key("path", required=True, doc="bases CSV: name, lat, lon, surveyed_variation, survey_date[, tolerance_deg, resurvey_years]"),
@@ -182,19 +182,14 @@ class Scenario:
         """The ``[error_budget]`` section as keyword arguments of :func:`headingref.heading_error`
         and :func:`headingref.detector.heading_error_grid` (defaults when the section is absent).
 
-        ``manoeuvre=False`` gives steady level flight (no bank, no acceleration) with the same
-        detector settings.
+        The keys are the section's own keys, the fields of :class:`headingref.detector.DetectorSettings`
+        and :class:`headingref.detector.Manoeuvre`. ``manoeuvre=False`` gives steady level flight
+        (``Manoeuvre.level()``: no bank, no acceleration) with the same detector settings.
         """
         budget = self.error_budget or {key: spec.default for key, spec in SCHEMA["error_budget"].items()}
-        return {
-            "residual_field_nT": budget["residual_field_nT"],
-            "gimbal_limit_deg": budget["joint_limit_deg"],
-            "slaving_rate_deg_per_min": budget["slaving_rate_deg_per_min"],
-            "turn_duration_min": budget["turn_duration_s"] / 60.0,
-            "limit_deg": budget["limit_deg"],
-            "bank_deg": budget["bank_angle_deg"] if manoeuvre else 0.0,
-            "accel_mps2": budget["acceleration_mps2"] if manoeuvre else 0.0,
-        }
+        detector = DetectorSettings(**{f.name: budget[f.name] for f in fields(DetectorSettings)})
+        turn = Manoeuvre(**{f.name: budget[f.name] for f in fields(Manoeuvre)}) if manoeuvre else Manoeuvre.level()
+        return {**asdict(detector), **asdict(turn)}
 
 
 def _label(section: str, key: str) -> str:
@@ -369,6 +364,8 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
     for name in SECTIONS:
         sections[name] = _section(raw[name], name, where, folder) if name in raw else None
     zones = sections["zones"]
+    if zones and zones["edge_lat_deg"] is None:
+        zones["edge_lat_deg"] = CAPS[zones["cap"]].edge_lat_deg
     if zones and zones["blackout_nT"] >= zones["caution_nT"]:
         raise InputError(
             f"{where}: [zones] blackout_nT = {zones['blackout_nT']:g} must be below caution_nT = {zones['caution_nT']:g}"

@@ -46,7 +46,7 @@ STEP = ZONE_SETTINGS["step_deg"]  # 0.5 degree grid
 BUDGET = scenario.error_budget
 ALT_KM = scenario.routes["alt"]  # cruise level of the demo routes (FL350), km
 BUDGET_OPTIONS = scenario.heading_error_options()  # the section as heading_error's keyword arguments
-BUDGET_OPTIONS.pop("bank_deg")  # the bank angle is the slider below
+BUDGET_OPTIONS.pop("bank_angle_deg")  # the bank angle is the slider below
 BUDGET
 
 # %% [markdown]

@@ -13,7 +13,10 @@ import headingref
 from headingref.detector import (
     GIMBAL_LIMIT_DEG,
     SLAVING_RATE_DEG_PER_MIN,
+    DetectorSettings,
+    Manoeuvre,
     _sensor_components,
+    budget_settings,
     detector_tilt,
     flux_gate_arm_outputs,
     heading_error_grid,
@@ -25,7 +28,8 @@ from headingref.detector import (
     tilt_heading_error_deg,
     worst_tilt_heading_error_deg,
 )
-from headingref.errors import InputError
+from headingref.errors import InputError, UndefinedDeclinationWarning
+from headingref.geogrid import CAPS
 
 angles = st.floats(min_value=-180.0, max_value=180.0, allow_nan=False)
 inclinations = st.floats(min_value=-89.0, max_value=89.0, allow_nan=False)
@@ -182,7 +186,7 @@ def _pendulum_heading_error_deg(inc_deg, heading_deg, accel_mps2, g=9.80665):
 @pytest.mark.parametrize("accel", [1.5, -2.0])
 def test_acceleration_error_matches_a_pendulum_in_apparent_gravity(heading, accel):
     # first-principles rotation (helper above) against the detector model, 65 N 20 W
-    row = headingref.heading_error(65.0, -20.0, "2026-12-02", accel_mps2=accel, heading_deg=heading).iloc[0]
+    row = headingref.heading_error(65.0, -20.0, "2026-12-02", accel_mps2=accel, heading_deg=heading, bank_deg=0.0).iloc[0]
     expected = _pendulum_heading_error_deg(row.inclination_deg, heading, accel)
     assert row.tilt_error_deg == pytest.approx(expected, abs=1e-9)
 
@@ -191,16 +195,18 @@ def test_acceleration_error_follows_the_textbook_rule():
     # FAA Pilot's Handbook of Aeronautical Knowledge, magnetic compass acceleration error ("ANDS",
     # common practice for pendulous and direct-reading compasses): on east or west headings in
     # the northern hemisphere accelerating shows a turn toward north, decelerating toward south;
-    # reversed in the southern hemisphere; none on north or south headings.
-    east = headingref.heading_error(65.0, -20.0, "2026-12-02", accel_mps2=1.5, heading_deg=90.0).iloc[0]
+    # reversed in the southern hemisphere; none on north or south headings. Wings level.
+    level = {"manoeuvre": Manoeuvre.level()}
+    east = headingref.heading_error(65.0, -20.0, "2026-12-02", accel_mps2=1.5, heading_deg=90.0, **level).iloc[0]
     assert east.tilt_error_deg == pytest.approx(-31.0, abs=1.0)  # the issue's example: about -31 deg
-    west = headingref.heading_error(65.0, -20.0, "2026-12-02", accel_mps2=1.5, heading_deg=270.0).iloc[0]
+    west = headingref.heading_error(65.0, -20.0, "2026-12-02", accel_mps2=1.5, heading_deg=270.0, **level).iloc[0]
     assert west.tilt_error_deg > 10.0  # 270 reads toward 360: toward north
-    slower = headingref.heading_error(65.0, -20.0, "2026-12-02", accel_mps2=-1.5, heading_deg=90.0).iloc[0]
+    slower = headingref.heading_error(65.0, -20.0, "2026-12-02", accel_mps2=-1.5, heading_deg=90.0, **level).iloc[0]
     assert slower.tilt_error_deg > 10.0  # decelerate: toward south (090 reads toward 180)
-    south = headingref.heading_error(-65.0, 140.0, "2026-12-02", accel_mps2=1.5, heading_deg=90.0).iloc[0]
+    south = headingref.heading_error(-65.0, 140.0, "2026-12-02", accel_mps2=1.5, heading_deg=90.0, **level).iloc[0]
     assert south.inclination_deg < 0 and south.tilt_error_deg > 10.0  # southern hemisphere: toward south
-    along = headingref.heading_error([65.0, 65.0], [-20.0, -20.0], "2026-12-02", accel_mps2=1.5, heading_deg=[0.0, 180.0])
+    along = headingref.heading_error([65.0, 65.0], [-20.0, -20.0], "2026-12-02", accel_mps2=1.5, heading_deg=[0.0, 180.0],
+                                  **level)
     assert np.allclose(along.tilt_error_deg, 0.0, atol=1e-9)
 
 
@@ -266,11 +272,11 @@ def test_error_map_and_area_beyond_limit():
 def test_cap_map_cell_areas_sum_to_the_geodesic_cap_area():
     from pyproj import Geod
 
-    # limit 0: every cell exceeds, so the area is the whole cap north of 60 N; pyproj.Geod
-    # (Karney's geodesic polygon area) of the 60 N parallel gives the reference
-    ds = heading_error_grid("north", "2026-12-02", resolution_deg=0.5, limit_deg=0.0)
+    # a tiny limit: every cell exceeds, so the area is the whole cap north of its edge (55 N);
+    # pyproj.Geod (Karney's geodesic polygon area) of that parallel gives the reference
+    ds = heading_error_grid("north", "2026-12-02", resolution_deg=0.5, limit_deg=1e-6)
     lons = np.arange(-180.0, 180.0, 0.05)
-    cap_m2, _ = Geod(ellps="WGS84").polygon_area_perimeter(lons, np.full(lons.size, 60.0))
+    cap_m2, _ = Geod(ellps="WGS84").polygon_area_perimeter(lons, np.full(lons.size, CAPS["north"].edge_lat_deg))
     assert ds.attrs["area_exceeding_limit_km2"] == pytest.approx(abs(cap_m2) / 1e6, rel=0.005)
 
 
@@ -291,7 +297,75 @@ def test_bad_inputs():
 
 def test_manoeuvre_settings_must_match_the_places():
     # One value, or one per place (common practice for vectorised APIs); anything else is one clear error.
-    with pytest.raises(InputError, match="bank_deg has 3 values for 2 place"):
+    with pytest.raises(InputError, match="bank_angle_deg has 3 values for 2 place"):
         headingref.heading_error([70.0, 71.0], [20.0, 21.0], "2026-12-02", bank_deg=[0.0, 10.0, 20.0])
     table = headingref.heading_error([70.0, 71.0], [20.0, 21.0], "2026-12-02", bank_deg=[0.0, 10.0])
     assert len(table) == 2
+
+
+def test_settings_dataclasses_are_the_one_set_of_defaults():
+    # one vocabulary and one set of defaults (issue 13): the scenario's [error_budget] keys are
+    # the dataclass fields with the same defaults, and heading_error uses the same objects
+    from dataclasses import fields
+
+    from headingref.scenario import SCHEMA
+
+    keys = SCHEMA["error_budget"]
+    for cls in (DetectorSettings, Manoeuvre):
+        for spec in fields(cls):
+            assert keys[spec.name].default == spec.default
+    # common practice: slaving about 3 deg/min, joint about 25 deg, cut-out about 10 deg of bank (from memory)
+    d = DetectorSettings()
+    assert (d.slaving_rate_deg_per_min, d.joint_limit_deg, d.slaving_cutout_bank_deg) == (3.0, 25.0, 10.0)
+    # the earlier keyword names keep their meaning: 0.5 min is 30 s, the gimbal limit is the joint limit
+    det, man = budget_settings(turn_duration_min=0.5, gimbal_limit_deg=20.0, bank_deg=5.0, accel_mps2=1.0)
+    assert (man.turn_duration_s, det.joint_limit_deg, man.bank_angle_deg, man.acceleration_mps2) == (30.0, 20.0, 5.0, 1.0)
+    with pytest.raises(InputError, match="same setting"):
+        budget_settings(bank_deg=5.0, bank_angle_deg=6.0)
+    with pytest.raises(InputError, match="unknown error-budget setting 'bank'"):
+        budget_settings(bank=5.0)
+    with pytest.raises(InputError, match="slaving_cutout_bank_deg"):
+        DetectorSettings(slaving_cutout_bank_deg=-1.0)
+
+
+def test_slaving_cut_out_in_turns():
+    # common practice (from memory): slaving is cut out above about 10 deg of bank, so the tilt
+    # error of the turn never reaches the gyro; below the cut-out the gyro is dragged at 3 deg/min
+    place = (78.2, 15.6, "2026-12-02")
+    banks = np.array([5.0, 9.9, 10.1, 25.0])
+    rows = [headingref.heading_error(*place, bank_angle_deg=b, turn_duration_s=60.0).iloc[0] for b in banks]
+    assert [bool(r.slaving_on) for r in rows] == [True, True, False, False]
+    assert [float(r.slaving_drift_deg) for r in rows[:2]] == pytest.approx([min(3.0, r.tilt_error_deg) for r in rows[:2]])
+    assert [float(r.slaving_drift_deg) for r in rows[2:]] == [0.0, 0.0]
+    steady = headingref.heading_error(*place, manoeuvre=Manoeuvre.level()).iloc[0]
+    assert rows[3].budget_rss_deg == pytest.approx(steady.budget_rss_deg, abs=1e-12)
+    never = headingref.heading_error(*place, bank_angle_deg=25.0, slaving_cutout_bank_deg=90.0).iloc[0]
+    assert bool(never.slaving_on) and never.slaving_drift_deg == pytest.approx(3.0)  # 3 deg/min x 1 min
+
+
+def test_saturation_and_dominant_term_are_stated():
+    # Svalbard-like field (H ~ 7,200 nT, I ~ 82 deg): a 5 deg bank gives a tilt error of many
+    # degrees (tan(82) * 5 ~ 36 deg, first order), far above the 3 deg/min x 1 min ceiling, so
+    # the drift is the largest term and sits at its ceiling
+    row = headingref.heading_error(78.2, 15.6, "2026-12-02", bank_angle_deg=5.0, turn_duration_s=60.0).iloc[0]
+    assert row.tilt_error_deg > 3.0 and row.slaving_drift_deg == pytest.approx(3.0)
+    assert row.dominant_term == "slaving_drift" and row.saturated_by == "slaving_rate"
+    # 10 s of slaving: ceiling 0.5 deg, below the WMM model term there (5417/H ~ 0.75 deg,
+    # WMM2025 report): the model term dominates and nothing saturates
+    row = headingref.heading_error(78.2, 15.6, "2026-12-02", bank_angle_deg=5.0, turn_duration_s=10.0).iloc[0]
+    assert row.dominant_term == "model_uncertainty" and row.saturated_by == "none"
+    # at the dip pole H = 0: the residual field leaves no heading (asin(dB/H), dB >= H)
+    pole = headingref.dip_poles("2026-12-02").set_index("pole").loc["north"]
+    with pytest.warns(UndefinedDeclinationWarning):  # D is undefined where H = 0
+        row = headingref.heading_error(pole.lat, pole.lon, "2026-12-02").iloc[0]
+    assert row.residual_field_error_deg == 180.0 and row.saturated_by == "residual_field"
+    assert isinstance(row.zone, str) and row.zone == "blackout"
+
+
+def test_budget_map_says_when_it_is_saturated():
+    grid = heading_error_grid("north", "2026-12-02", resolution_deg=2.0, bank_angle_deg=8.0, turn_duration_s=60.0)
+    assert grid.attrs["saturated_by"] == "slaving_rate" and grid.attrs["saturated_share_beyond_limit"] > 0.5
+    assert grid.attrs["bank_angle_deg"] == 8.0 and grid.attrs["slaving_cutout_bank_deg"] == 10.0
+    assert grid["saturated_by"].attrs["flag_meanings"].split()[1] == "slaving_rate"
+    level = heading_error_grid("north", "2026-12-02", resolution_deg=2.0, manoeuvre=Manoeuvre.level())
+    assert level.attrs["saturated_by"] != "slaving_rate"

@@ -12,7 +12,7 @@ from chaosmagpy.coordinate_utils import igrf_dipole
 
 import headingref
 from headingref.errors import DateRangeError, InputError
-from headingref.zones import geodetic_from_geocentric_lat, pole_tracks
+from headingref.poles import geodetic_from_geocentric_lat, pole_tracks
 
 # Alken et al. (2021), "International Geomagnetic Reference Field: the thirteenth generation",
 # Earth Planets Space 73:49, Table 4 (pole positions from IGRF-13, latitudes geodetic WGS84).
@@ -156,8 +156,8 @@ def test_cli_poles_bad_years(capsys):
 
 def test_pole_track_includes_its_end_when_the_step_does_not_divide_the_span():
     # The docstring's promise: the end date is always on the track.
+    from headingref.poles import pole_tracks
     from headingref.units import decimal_year
-    from headingref.zones import pole_tracks
 
     track = pole_tracks("2016-12-02", "2026-12-02", 2)
     assert track.decimal_year.max() == pytest.approx(decimal_year("2026-12-02"), abs=1e-9)

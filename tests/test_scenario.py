@@ -122,15 +122,15 @@ def test_spacing_accepted_exactly_within_its_range(tmp_path_factory, value):
 
 
 def test_heading_error_options_map_the_budget_section():
-    # The TOML's units (seconds, joint limit) become heading_error's (minutes, gimbal limit): 60 s = 1 min.
+    # One vocabulary: the section's keys are heading_error's keywords (detector.DetectorSettings/Manoeuvre fields).
     import headingref
     from headingref.scenario import DEMO_SCENARIO, load_scenario
 
     sc = load_scenario(DEMO_SCENARIO)
     turning, steady = sc.heading_error_options(), sc.heading_error_options(manoeuvre=False)
-    assert turning["turn_duration_min"] == pytest.approx(sc.error_budget["turn_duration_s"] / 60.0)
-    assert turning["gimbal_limit_deg"] == sc.error_budget["joint_limit_deg"]
-    assert turning["bank_deg"] == sc.error_budget["bank_angle_deg"] and steady["bank_deg"] == 0.0
+    assert turning["turn_duration_s"] == sc.error_budget["turn_duration_s"]
+    assert turning["joint_limit_deg"] == sc.error_budget["joint_limit_deg"]
+    assert turning["bank_angle_deg"] == sc.error_budget["bank_angle_deg"] and steady["bank_angle_deg"] == 0.0
     # every key is an argument heading_error accepts
     table = headingref.heading_error(75.0, 0.0, sc.analysis_date, **turning)
     assert len(table) == 1

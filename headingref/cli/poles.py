@@ -54,8 +54,8 @@ def run(args) -> int:
 
     from ..io import write_csv
     from ..notices import CAUTION
+    from ..poles import dip_poles, geomagnetic_poles, pole_tracks
     from ..units import format_dm
-    from ..zones import dip_poles, geomagnetic_poles, pole_tracks
     from .common import check_outputs
 
     check_outputs(files=[args.output], figures=[args.plot], inputs=[args.model])

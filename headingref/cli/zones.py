@@ -10,9 +10,11 @@ EXAMPLES = """\
   headingref zones --cap north --date 2015-01-01 --date2 2026-12-02 --geojson moved.geojson --png moved.png
   headingref zones --region 60,85,150,-120 --date 2027.0 --resolution 0.25 --netcdf region.nc
   headingref zones --region=-75,-55,100,170 --date 2026-12-02 --thresholds 3000,8000
-  headingref zones --cap north --date 2026-12-02 --budget-png budget.png --bank 15 --turn-min 0.5 --limit 2
+  headingref zones --cap north --date 2026-12-02 --budget-png budget.png --budget-bank-angle-deg 8 --budget-turn-duration-s 30
+  headingref zones --cap south --date 2026-12-02 --budget-png turn.png --budget-slaving-cutout-bank-deg 90
 
-A region is LAT_MIN,LAT_MAX,LON_MIN,LON_MAX in degrees; LON_MAX < LON_MIN crosses the antimeridian.
+A cap runs from 55 N or 50 S to the pole. A region is LAT_MIN,LAT_MAX,LON_MIN,LON_MAX in degrees;
+LON_MAX < LON_MIN crosses the antimeridian.
 Write --region=... with '=' when it starts with a minus sign. Areas are geodesic on WGS84."""
 
 
@@ -25,7 +27,7 @@ def register(subparsers) -> None:
         help_text="weak horizontal field zones (blackout, caution) over a cap or region, areas, boundaries",
         description=(
             "Horizontal intensity H, declination uncertainty and inclination on a grid over a polar cap "
-            "(50 degrees to the pole) or a region, zoned by H thresholds (default: the WMM blackout zone "
+            "(55 N or 50 S to the pole) or a region, zoned by H thresholds (default: the WMM blackout zone "
             "H < 2000 nT and caution zone 2000 to 6000 nT). Prints the area of each zone; with --date2, "
             "the areas at both dates and the change. Boundaries go to GeoJSON (cut at the antimeridian, "
             "closed round the poles), a map to PNG, the grid to netCDF."
@@ -47,15 +49,37 @@ def register(subparsers) -> None:
     budget = parser.add_argument_group(
         "heading-reference error budget (map of the combined error of a slaved flux-gate compass)")
     budget.add_argument("--budget-png", metavar="FILE", help="map of the combined error budget with the limit contour")
-    budget.add_argument("--limit", type=float, default=2.0, metavar="DEG", help="error limit in degrees (default 2)")
-    budget.add_argument("--bank", type=float, default=0.0, metavar="DEG", help="bank angle of a coordinated turn (default 0)")
-    budget.add_argument("--accel", type=float, default=0.0, metavar="M_S2", help="longitudinal acceleration, m/s^2 (default 0)")
-    budget.add_argument("--turn-min", type=float, default=1.0, metavar="MIN",
-                        help="how long slaving stays on during the manoeuvre, minutes (default 1)")
-    budget.add_argument("--residual-nt", type=float, default=100.0, metavar="NT",
-                        help="uncompensated aircraft field at the detector, nT (default 100)")
+    add_budget_options(budget)
     add_model_options(parser)
     parser.set_defaults(func=run)
+
+
+def budget_option_name(setting: str) -> str:
+    """The command-line option of an error-budget setting: ``--budget-`` and the field name."""
+    return "--budget-" + setting.replace("_", "-").lower()
+
+
+def add_budget_options(group) -> None:
+    """One option per field of DetectorSettings and Manoeuvre: name, help, unit and default from the fields."""
+    from dataclasses import fields
+
+    from ..detector import DetectorSettings, Manoeuvre
+
+    for cls in (DetectorSettings, Manoeuvre):
+        for spec in fields(cls):
+            meta = spec.metadata
+            group.add_argument(budget_option_name(spec.name), dest=spec.name, type=float, default=None,
+                               metavar=meta["unit"].upper().replace("/", "_PER_").replace("^", ""),
+                               help=f"{meta['doc']}; {meta['unit']} (default {spec.default:g})")
+
+
+def _budget_settings(args) -> dict:
+    from dataclasses import fields
+
+    from ..detector import DetectorSettings, Manoeuvre
+
+    names = [spec.name for cls in (DetectorSettings, Manoeuvre) for spec in fields(cls)]
+    return {name: getattr(args, name) for name in names if getattr(args, name) is not None}
 
 
 def parse_thresholds(text: str) -> list[float]:
@@ -131,15 +155,18 @@ def run(args) -> int:
     return 0
 
 
-def _budget_options(args) -> dict:
-    return {"residual_field_nT": args.residual_nt, "bank_deg": args.bank, "accel_mps2": args.accel,
-            "turn_duration_min": args.turn_min, "limit_deg": args.limit, "model": args.model}
-
-
 def _budget_options_checked(args) -> None:
-    from ..detector import heading_error
+    from ..detector import budget_settings
+    from ..errors import InputError
 
-    heading_error(0.0, 0.0, args.date, allow_extrapolation=args.extrapolate, **_budget_options(args))
+    try:
+        budget_settings(**_budget_settings(args))
+    except InputError as exc:  # name the option the user typed
+        text = str(exc)
+        for name in _budget_settings(args):
+            if text.startswith(name + " "):
+                raise InputError(f"{budget_option_name(name)}{text[len(name):]}") from None
+        raise
 
 
 def _budget_map(args, area) -> None:
@@ -147,7 +174,12 @@ def _budget_map(args, area) -> None:
     from ..units import parse_height_km
 
     grid = heading_error_grid(area, args.date, resolution_deg=args.resolution, alt_km=parse_height_km(args.alt),
-                              allow_extrapolation=args.extrapolate, **_budget_options(args))
-    print(f"error budget beyond {args.limit:g} deg (root-sum-square of residual field, WMM model uncertainty "
-          f"and slaving drift): {grid.attrs['area_exceeding_limit_km2']:,.0f} km^2")
+                              model=args.model, allow_extrapolation=args.extrapolate, **_budget_settings(args))
+    attrs = grid.attrs
+    print(f"error budget beyond {attrs['limit_deg']:g} deg (root-sum-square of residual field, model uncertainty "
+          f"and slaving drift; {attrs['bank_angle_deg']:g} deg bank for {attrs['turn_duration_s']:g} s, slaving cut out "
+          f"above {attrs['slaving_cutout_bank_deg']:g} deg): {attrs['area_exceeding_limit_km2']:,.0f} km^2")
+    if attrs["saturated_by"] != "none":
+        print(f"  saturated: over {100.0 * attrs['saturated_share_beyond_limit']:.0f}% of that area the budget sits at "
+              f"the ceiling of one term (mostly {attrs['saturated_by']}); a larger manoeuvre would not change it")
     save_plot("plot_error_map", grid, args.budget_png)
