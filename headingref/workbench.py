@@ -51,6 +51,9 @@ def render(item: Any) -> dict[str, Any]:
     from matplotlib.figure import Figure
 
     if isinstance(item, Figure):
+        from .plots import plain_text
+
+        plain_text(item)  # user names are drawn as typed, never as mathtext
         buffer = io.BytesIO()
         item.savefig(buffer, format="png", dpi=100, bbox_inches="tight")
         return {"image/png": base64.b64encode(buffer.getvalue()).decode("ascii"), "text/plain": "<figure>"}

@@ -16,74 +16,90 @@
 # %% [markdown]
 # # A place and its field through time
 #
-# The Earth's main field at one place from IGRF-14 (the International Geomagnetic Reference Field, 14th generation), evaluated on the WGS84 ellipsoid: declination (variation, east positive), inclination, horizontal intensity H and its weak-field zone, and the WMM error model for the declination uncertainty. Copy this notebook and change the place and dates.
+# The Earth's main field at one place from IGRF-14 (the International Geomagnetic Reference Field, 14th
+# generation), evaluated on the WGS84 ellipsoid: declination (variation, east positive), inclination,
+# horizontal intensity H and its weak-field zone, and the WMM error model for the declination uncertainty.
 #
-# *Planning and engineering aid only; official publications, charts, the aircraft's approved data and the survey on site govern.*
+# *Planning and engineering aid only, not approved for navigation. Official publications and charts, the
+# aircraft's approved data, the survey on site and licensed practice govern. The field model omits local
+# crustal anomalies.*
+
+# %% [markdown]
+# ## Your inputs
+# Type the place as you would on the command line: decimal degrees (`78.246`), degrees and minutes with a
+# hemisphere letter (`N61°10.5′`, `149 54 30 W`) or the compact trade form (`7814N 01528E`). Heights take a
+# unit (`0 m`, `35000 ft`, `FL350`). The defaults are an invented airfield of the demo scenario.
 
 # %%
+PLACE_LAT = "N78°14.8′"
+PLACE_LON = "015 28 00 E"
+HEIGHT = "0 m"
+DATE = "2026-12-02"
+MODEL = None  # None for IGRF-14, or a model name / coefficient file
+
+# %%
+# %matplotlib inline
+import ipywidgets as widgets
 import numpy as np
 import pandas as pd
-import matplotlib.pyplot as plt
-import headingref
+from IPython.display import display
 
-PLACE = {"lat": 78.246, "lon": 15.466}  # an invented airfield's coordinates (demo scenario: Svalbrekka)
-DATE = "2026-12-02"
+import headingref
+from headingref.plots.field import declination_map_figure, field_history_figure
+from headingref.units import format_dm, parse_coordinate, parse_height_km
+from headingref.workbench import date_picker, explorer, status_line, styled
+
+lat = parse_coordinate(PLACE_LAT, "lat")
+lon = parse_coordinate(PLACE_LON, "lon")
+alt_km = parse_height_km(HEIGHT, default_unit=None)
+now = headingref.field(lat, lon, DATE, alt_km=alt_km, model=MODEL)
+row = now.iloc[0]
+print(f"{format_dm(lat, 'N', 'S', 1)} {format_dm(lon, 'E', 'W', 1)} on {DATE}: variation {format_dm(row.declination_deg)}, "
+      f"changing {row.declination_deg_per_year * 60:+.1f}′/yr, uncertainty ±{row.declination_uncertainty_deg:.2f}°, "
+      f"H {row.horizontal_nT:,.0f} nT ({row.zone})")
 
 # %% [markdown]
 # ## The field on one date
-# One row, all elements and their annual rates (analytic, from the model's secular variation).
+# Every element and its annual rate (analytic, from the model's secular variation).
 
 # %%
-now = headingref.field(PLACE["lat"], PLACE["lon"], DATE)
-now.T
-
-# %%
-from headingref.units import format_dm
-row = now.iloc[0]
-print(f"variation {format_dm(row.declination_deg)}, changing {row.declination_deg_per_year * 60:+.1f}′/yr; "
-      f"uncertainty {row.declination_uncertainty_deg:.2f}°; H {row.horizontal_nT:.0f} nT ({row.zone})")
+styled(now.T.rename(columns={0: "value"}).reset_index(names="element"))
 
 # %% [markdown]
 # ## Through time, 1900 to 2030
-# IGRF is linear in time between its 5-year epochs; the last interval is its predicted secular variation.
+# IGRF is linear in time between its 5-year epochs; its last interval is the predicted secular variation.
 
 # %%
-dates = pd.date_range("1900-01-01", "2030-01-01", freq="3MS")
-history = headingref.field(PLACE["lat"], PLACE["lon"], dates)
-fig, axes = plt.subplots(3, 1, figsize=(9, 8), sharex=True)
-axes[0].plot(history.decimal_year, history.declination_deg)
-axes[0].set_ylabel("declination (°, E+)")
-axes[1].plot(history.decimal_year, history.horizontal_nT)
-axes[1].axhline(6000, ls="--", c="k", lw=0.8)
-axes[1].set_ylabel("H (nT)")
-axes[2].plot(history.decimal_year, history.declination_uncertainty_deg)
-axes[2].set_ylabel("D uncertainty (°)")
-axes[2].set_xlabel("year")
-fig.suptitle("IGRF-14 at the chosen place")
-plt.show()
+history = headingref.field(lat, lon, pd.date_range("1900-01-01", "2030-01-01", freq="3MS"), alt_km=alt_km, model=MODEL)
+display(field_history_figure(history, title="IGRF-14 at the chosen place"))
 
 # %% [markdown]
 # ## Explore
-# Move the date; the table follows (ipywidgets).
+# Pick a date and a height; the elements follow. A place in a weak-field zone is flagged above the table.
 
 # %%
-import ipywidgets as widgets
+COLUMNS = ["zone", "declination_deg", "declination_deg_per_year", "inclination_deg", "horizontal_nT",
+           "declination_uncertainty_deg"]
 
-def show(year=2026.9, alt_km=0.0):
-    cols = ["declination_deg", "declination_deg_per_year", "inclination_deg", "horizontal_nT",
-            "declination_uncertainty_deg", "zone"]
-    display(headingref.field(PLACE["lat"], PLACE["lon"], year, alt_km=alt_km)[cols])
 
-widgets.interact(show, year=widgets.FloatSlider(value=2026.9, min=1900, max=2030, step=0.1),
-                 alt_km=widgets.FloatSlider(value=0, min=0, max=15, step=0.5));
+def show(day, height_km):
+    table = headingref.field(lat, lon, day, alt_km=height_km, model=MODEL)
+    items = [styled(table[COLUMNS])]
+    if (table.zone != "normal").any():
+        items.insert(0, status_line(f"H {table.horizontal_nT.iloc[0]:,.0f} nT: {table.zone.iloc[0]} zone, "
+                                    "magnetic heading reference degraded"))
+    return items
+
+
+explorer(show, {"day": date_picker(DATE, "date"),
+                "height_km": widgets.FloatSlider(value=alt_km, min=0.0, max=15.0, step=0.5,
+                                             description="height (km)")})
 
 # %% [markdown]
 # ## A grid around the place
 # `field_grid` evaluates a regular latitude-longitude grid in one call and returns an xarray Dataset.
 
 # %%
-grid = headingref.field_grid(np.arange(70, 86, 0.25), np.arange(-20, 50, 0.25), DATE)
-grid.declination_deg.plot.contourf(levels=np.arange(-20, 41, 2), cmap="RdBu_r", figsize=(9, 5))
-plt.plot(PLACE["lon"], PLACE["lat"], "k*", ms=12)
-plt.title("declination (°, east positive)")
-plt.show()
+grid = headingref.field_grid(np.arange(max(lat - 8, -89), min(lat + 8, 89.01), 0.25),
+                             np.arange(lon - 35, lon + 35.01, 0.25), DATE, model=MODEL)
+display(declination_map_figure(grid, place=(lat, lon)))

@@ -52,3 +52,16 @@ def test_date_picker_starts_on_the_given_day():
 
 def test_status_line_escapes_user_text():
     assert "&lt;b&gt;" in status_line("<b>base</b>")["text/html"]
+
+
+def test_field_history_figure_draws_the_table_and_the_wmm_thresholds():
+    import headingref
+    from headingref.plots.field import field_history_figure
+
+    history = headingref.field(78.25, 15.47, ["2020-01-01", "2025-01-01"])
+    fig = field_history_figure(history, title="Apron $2 pad $3")
+    top, middle, _ = fig.axes[:3]
+    assert list(top.lines[0].get_ydata()) == list(history.declination_deg)
+    # caution and blackout thresholds of H: 6000 and 2000 nT (WMM2025 technical report, section on blackout zones)
+    assert sorted(line.get_ydata()[0] for line in middle.lines[1:]) == [2000.0, 6000.0]
+    assert fig._suptitle.get_text() == "Apron $2 pad $3" and not fig._suptitle.get_parse_math()
