@@ -15,7 +15,7 @@ Layout (every section is optional; a missing section's job is left out of the re
     model = "IGRF-14"                  # or a coefficient file (.shc / .COF)
     allow_extrapolation = false
 
-    [routes]        spacing_nm, path, grid, alt, and [[routes.plan]] name, file[, alt]
+    [routes]        spacing_nm, path, grid, alt, and [[routes.plan]] name, file[, grid, alt]
     [zones]         cap, edge_lat_deg, step_deg, blackout_nT, caution_nT, compare_date
     [error_budget]  residual_field_nT, joint_limit_deg, slaving_rate_deg_per_min,
                     slaving_cutout_bank_deg, limit_deg (detector.DetectorSettings) and
@@ -83,13 +83,16 @@ SCHEMA: dict[str, dict[str, Key]] = {
     "routes": {
         "spacing_nm": Key("float", 10.0, high=500.0, doc="sample spacing along legs, NM", **_POSITIVE),
         "path": Key("choice", "geodesic", choices=("geodesic", "rhumb"), doc="path between waypoints"),
-        "grid": Key("grid", "polar", doc="grid for grid courses: polar, polar:LON, lcc:LAT1,LAT2,LON0, utm:ZONE, EPSG:NNNN"),
-        "alt": Key("height", 0.0, doc="altitude of waypoints that give none: km, or '35000 ft', 'FL350'"),
+        "grid": Key("grid", "auto", doc="grid for grid courses: auto (polar grid of each route's nearest pole), polar, "
+                    "polar-south, polar:LON, lcc:LAT1,LAT2,LON0, utm:ZONE, EPSG:NNNN"),
+        "alt": Key("height", 0.0, high=30.0, doc="altitude of waypoints that give none: km, or '35000 ft', 'FL350'"),
         "plan": Key("plans", required=True, doc="the routes, as [[routes.plan]] tables with name and file"),
     },
     "routes.plan": {
         "name": Key("str", required=True, doc="route name"),
-        "file": Key("path", required=True, doc="waypoint CSV: name, lat, lon[, alt]"),
+        "file": Key("path", required=True, doc="waypoint CSV: name, lat, lon[, alt with a unit, or alt_ft, alt_m, alt_km]"),
+        "grid": Key("grid", None, doc="this route's grid (default: the [routes] grid)"),
+        "alt": Key("height", None, high=30.0, doc="this route's altitude of waypoints that give none (default: the [routes] alt)"),
     },
     "zones": {
         "cap": Key("choice", "north", choices=("north", "south"), doc="polar cap to map"),
@@ -177,6 +180,23 @@ class Scenario:
             paths += [plan["file"] for plan in self.routes["plan"]]
         paths += [section["file"] for section in (self.compass_bases, self.swing, self.runways) if section]
         return paths
+
+    def route_options(self, plan: dict) -> dict:
+        """Keyword arguments of :func:`headingref.route` for one ``[[routes.plan]]`` entry.
+
+        The plan's own ``grid`` and ``alt`` win over the ``[routes]`` ones. The grid ``auto``
+        (default) is passed as is: each route gets the polar grid of the pole it comes nearest
+        to, so northern and southern routes can share one scenario.
+        """
+        settings = self.routes or {}
+        default = {key: spec.default for key, spec in SCHEMA["routes"].items()}
+        pick = {key: settings.get(key, default[key]) for key in ("spacing_nm", "path", "grid", "alt")}
+        return {
+            "alt_km": plan["alt"] if plan.get("alt") is not None else pick["alt"],
+            "grid": plan["grid"] if plan.get("grid") is not None else pick["grid"],
+            "spacing_nm": pick["spacing_nm"],
+            "path": pick["path"],
+        }
 
     def heading_error_options(self, manoeuvre: bool = True) -> dict:
         """The ``[error_budget]`` section as keyword arguments of :func:`headingref.heading_error`
@@ -279,16 +299,17 @@ def _value(value: Any, section: str, key: str, spec: Key, where: str, folder: Pa
         if isinstance(value, bool):
             raise InputError(f"{where}: {label} = {value!r} is not a height; give km, or text such as '35000 ft' or 'FL350'")
         try:
-            return float(parse_height_km(value))
+            return float(parse_height_km(value, max_km=spec.high if spec.high is not None else 1000.0))
         except InputError as exc:
             raise InputError(f"{where}: {label}: {exc}") from None
     if kind == "grid":
         if not isinstance(value, str):
             raise InputError(f"{where}: {label} = {value!r} must be text; {spec.doc}")
-        from .headings import parse_grid
+        from .headings import AUTO_GRID, parse_grid
 
         try:
-            parse_grid(value)
+            if value.strip().lower() != AUTO_GRID:  # auto: resolved per route from its latitudes
+                parse_grid(value)
         except InputError as exc:
             raise InputError(f"{where}: {label}: {exc}") from None
         return value.strip()

@@ -25,7 +25,7 @@ def register(subparsers) -> None:
             "survey, round it for marking (nearest 0.5 deg by default; nearest minute for the record), find when "
             "the marked value drifts beyond the tolerance and when the base falls due for resurvey, and list "
             "setting-out points along the marked magnetic heading lines. The survey on the site governs. "
-            "Sites CSV columns: name, lat, lon, surveyed_variation, survey_date [, tolerance_deg, resurvey_years, alt]."
+            "Sites CSV columns: name, lat, lon, surveyed_variation, survey_date [, tolerance_deg, resurvey_years] and a height: alt with a unit (35 m, 120 ft) or alt_m / alt_ft."
         ),
         examples=EXAMPLES,
     )
@@ -35,14 +35,15 @@ def register(subparsers) -> None:
     parser.add_argument("--lon", help="single site: longitude (-149.9, 149 54 W)")
     parser.add_argument("--surveyed-variation", help="single site: surveyed variation (12.5W, 12°30′W, E3.2, -12.5)")
     parser.add_argument("--survey-date", help="single site: date of the survey")
-    parser.add_argument("--alt", default="0", help="single site: height above the ellipsoid (km, or 35 m)")
+    parser.add_argument("--alt", default="0", help="single site: height above the ellipsoid (km, or with a unit: 35 m, 120 ft; at most 30 km)")
     parser.add_argument("--date", required=True, help="planned swing date (YYYY-MM-DD or decimal year)")
     parser.add_argument("--tolerance", type=finite_float, default=None, metavar="DEG", help="tolerance on the marked variation for sites that give none (default 0.5)")
     parser.add_argument("--resurvey-years", type=finite_float, default=None, metavar="YEARS", help="fixed resurvey interval after the survey, for sites that give none")
     parser.add_argument("--mark-step", type=finite_float, default=0.5, metavar="DEG", help="rounding step of the marked variation (default 0.5; 1 for whole degrees)")
     parser.add_argument("--lines", metavar="LIST", help="magnetic headings of the lines to set out (default 0,30,...,330)")
     parser.add_argument("--distances", default="50,100", metavar="LIST", help="distances of the setting-out points from the centre, metres (default 50,100)")
-    parser.add_argument("--grid", help="grid for grid azimuths: polar, polar:LON, lcc:LAT1,LAT2,LON0, utm:33N, EPSG:NNNN")
+    parser.add_argument("--grid", help="grid for grid azimuths: auto (polar grid of each base's hemisphere), polar, polar-south, polar:LON, "
+                        "lcc:LAT1,LAT2,LON0, utm:33N, EPSG:NNNN")
     parser.add_argument("--output", metavar="CSV", help="upkeep table, one row per site")
     parser.add_argument("--setting-out", metavar="CSV", help="setting-out points, one row per site, line and distance")
     add_model_options(parser)

@@ -21,7 +21,10 @@ def register(subparsers) -> None:
             "its distance, its true, magnetic and grid courses, the variation and grivation (east positive) at "
             "the start, middle and end, the least horizontal field, the largest declination uncertainty and "
             "the stretches in the caution (H < 6000 nT) and blackout (H < 2000 nT) zones. "
-            "Route CSV columns: name, lat, lon [, alt] (alt in km, or with a unit: 450 m, 35000 ft, FL350)."
+            "Route CSV columns: name, lat, lon and an optional height: alt with a unit in every value (450 m, "
+            "35000 ft, FL350, FL350 ISA-20) or alt_ft / alt_m / alt_km holding plain numbers in that unit; a bare "
+            "number under alt is refused. Coordinates: decimal degrees, degrees/minutes/seconds with N/S/E/W, or "
+            "the compact forms 7443N 09458W and N7443.0 W09458.0."
         ),
         examples=EXAMPLES,
     )
@@ -29,12 +32,13 @@ def register(subparsers) -> None:
     parser.add_argument("--date", required=True, help="date of the flight (YYYY-MM-DD or decimal year)")
     parser.add_argument(
         "--grid",
-        help="grid for grid courses and grivation: polar, polar:LON, polar-south[:LON], lcc:LAT1,LAT2,LON0, "
-        "utm:ZONE[N|S], tm:LON0, EPSG:NNNN (default: polar grid on Greenwich of the route's hemisphere)",
+        help="grid for grid courses and grivation: auto, polar, polar:LON, polar-south[:LON], lcc:LAT1,LAT2,LON0, "
+        "utm:ZONE[N|S], tm:LON0, EPSG:NNNN (default auto: polar grid on Greenwich of the pole the route comes "
+        "nearest to; a polar grid given here and used over 60 deg from its pole warns)",
     )
     parser.add_argument("--rhumb", action="store_true", help="follow rhumb lines (constant true course) instead of geodesics")
     parser.add_argument("--spacing", type=float, default=10.0, metavar="NM", help="greatest distance between samples (default 10 NM)")
-    parser.add_argument("--alt", default="0", help="altitude of waypoints without one (km, or 35000 ft, FL350; default 0)")
+    parser.add_argument("--alt", default="0", help="altitude of waypoints without one (km, or 35000 ft, FL350; at most 30 km; default 0)")
     parser.add_argument("--output", required=True, metavar="CSV", help="legs table")
     parser.add_argument("--samples", metavar="CSV", help="every sample point along the route")
     parser.add_argument("--geojson", metavar="FILE", help="legs as GeoJSON lines (cut at the antimeridian) and waypoints")
