@@ -17,8 +17,9 @@ Conventions
 - A flight level ``FLnnn`` is a pressure altitude, ``nnn * 100 ft`` in the ICAO
   Standard Atmosphere; plain ``FL350`` is taken as 35,000 ft of height. That is an
   approximation: in a cold column (ISA-35, low QNH) FL350 can lie about 1.5 km below
-  10.67 km, which changes the total field by about 35 nT at high latitude (the radial
-  gradient of F is about -3F/r, some -27 nT/km for F = 57,000 nT) and the declination by
+  10.67 km, which changes the total field by about 35 nT at high latitude (33-39 nT at
+  70-85° N with IGRF-14 for 2026-12-02; the radial gradient of F is about -3F/r, some
+  -25 nT/km) and the declination by
   far less than the model's own uncertainty. ``FL350 ISA-20`` gives the temperature
   deviation of the column and is converted hypsometrically
   (:func:`pressure_altitude_height_km`, ICAO Doc 7488/3).
@@ -173,7 +174,7 @@ def _plain_number(text: str) -> float | None:
         return None
 
 
-_COMPACT_RE = re.compile(r"^\s*(?P<pre>[NSEWnsew])?(?P<digits>\d{4,7})(?P<frac>[.,]\d+)?(?P<post>[NSEWnsew])?\s*$")
+_COMPACT_RE = re.compile(r"^\s*(?P<pre>[NSEWnsew])?(?P<digits>\d{4,7})(?P<frac>[.,]\d+)?(?P<post>[NSEWnsew])?\s*$", re.ASCII)
 
 
 def _coordinate_accepted(kind: str) -> str:
