@@ -439,3 +439,42 @@ def test_output_schema_and_zone_dtype(chain_result):
     # worst zone of a leg is the max of its samples' zones (ordered normal < caution < blackout)
     worst = samples.groupby("leg", observed=True).zone.max()
     assert list(worst.astype(str)) == list(legs.zone.astype(str))
+
+
+def _scenario(tmp_path, routes_extra="", plan_extra=""):
+    from headingref.scenario import load_scenario
+
+    (tmp_path / "north.csv").write_text("name,lat,lon,alt\nNA,69.7,18.9,0 ft\nNB,78.2,15.5,FL350\n", encoding="utf-8")
+    (tmp_path / "south.csv").write_text("name,lat,lon,alt\nDEPART,-42.88,147.33,0 ft\nICEEDGE,-66.28,110.53,FL310\n",
+                                        encoding="utf-8")
+    (tmp_path / "s.toml").write_text(
+        'analysis_date = "2026-12-02"\n[routes]\n' + routes_extra
+        + '[[routes.plan]]\nname = "N"\nfile = "north.csv"\n'
+        + '[[routes.plan]]\nname = "S"\nfile = "south.csv"\n' + plan_extra,
+        encoding="utf-8",
+    )
+    return load_scenario(tmp_path / "s.toml")
+
+
+def test_scenario_default_grid_serves_both_caps(tmp_path):
+    # Snyder 1987 polar stereographic convergence: north grid C = +lon, south grid C = -lon (lon0 = 0)
+    sc = _scenario(tmp_path)
+    assert sc.routes["grid"] == "auto"
+    north, south = (route(str(plan["file"]), DATE, **sc.route_options(plan)) for plan in sc.routes["plan"])
+    assert north.legs.attrs["grid"] == "polar:0" and south.legs.attrs["grid"] == "polar-south:0"
+    assert np.max(angle_diff(south.samples.grid_course_deg, south.samples.true_course_deg + south.samples.lon_deg)) < 1e-6
+    assert np.max(angle_diff(north.samples.grid_course_deg, north.samples.true_course_deg - north.samples.lon_deg)) < 1e-6
+
+
+def test_scenario_route_keeps_its_own_grid_and_alt(tmp_path):
+    sc = _scenario(tmp_path, routes_extra='grid = "polar"\nalt = "FL300"\n', plan_extra='grid = "polar-south:90"\nalt = "2 km"\n')
+    options = {plan["name"]: sc.route_options(plan) for plan in sc.routes["plan"]}
+    assert options["N"]["grid"] == "polar" and options["S"]["grid"] == "polar-south:90"
+    assert options["N"]["alt_km"] == pytest.approx(9.144)  # 30,000 ft x 0.3048 m (1959 definition)
+    assert options["S"]["alt_km"] == pytest.approx(2.0)
+
+
+@pytest.mark.parametrize("extra,match", [("alt = 350\n", "FL350"), ('grid = "mercator"\n', "grid")])
+def test_scenario_bad_route_keys(tmp_path, extra, match):
+    with pytest.raises(InputError, match=match):
+        _scenario(tmp_path, routes_extra=extra)
