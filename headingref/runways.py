@@ -160,6 +160,14 @@ def format_designator(number: int, suffix: str = "") -> str:
     return f"{int(number):02d}{suffix}"
 
 
+_NUMBER_TEXT = np.array([f"{n:02d}" for n in range(37)], dtype=object)
+
+
+def _designator_texts(numbers: np.ndarray, suffixes: Any = "") -> np.ndarray:
+    """Vectorised :func:`format_designator` (numbers 0..36; object array of text)."""
+    return _NUMBER_TEXT[np.asarray(numbers, dtype=np.int64)] + np.asarray(suffixes, dtype=object)
+
+
 def parse_designator(text: Any) -> tuple[int, str]:
     """Split a published designator into number (1..36) and suffix ('', 'L', 'C' or 'R').
 
@@ -394,26 +402,40 @@ ACCEPTED_COLUMNS = _REQUIRED + _OPTIONAL + _PER_RUNWAY + _PER_RUNWAY_OPTIONAL
 """Every column name the runway reader knows (the left-hand names of a ``--columns`` mapping)."""
 
 class _Problems:
-    """Per-row error and warning messages."""
+    """Per-row error and warning messages (stored only for rows that have any)."""
 
     def __init__(self, count: int):
-        self.errors: list[list[str]] = [[] for _ in range(count)]
-        self.warnings: list[list[str]] = [[] for _ in range(count)]
+        self.count = count
+        self._errors: dict[int, list[str]] = {}
+        self._warnings: dict[int, list[str]] = {}
 
     def error(self, rows: Any, message: str | Sequence[str]) -> None:
-        self._add(self.errors, rows, message)
+        self._add(self._errors, rows, message)
 
     def warn(self, rows: Any, message: str | Sequence[str]) -> None:
-        self._add(self.warnings, rows, message)
+        self._add(self._warnings, rows, message)
 
     @staticmethod
-    def _add(store: list[list[str]], rows: Any, message: str | Sequence[str]) -> None:
+    def _add(store: dict[int, list[str]], rows: Any, message: str | Sequence[str]) -> None:
         rows = np.flatnonzero(rows) if np.asarray(rows).dtype == bool else np.atleast_1d(rows)
         for j, i in enumerate(rows):
-            store[int(i)].append(message if isinstance(message, str) else message[j])
+            store.setdefault(int(i), []).append(message if isinstance(message, str) else message[j])
 
     def has_error(self) -> np.ndarray:
-        return np.array([bool(e) for e in self.errors], dtype=bool)
+        out = np.zeros(self.count, dtype=bool)
+        out[list(self._errors)] = True
+        return out
+
+    def has_warning(self) -> np.ndarray:
+        out = np.zeros(self.count, dtype=bool)
+        out[list(self._warnings)] = True
+        return out
+
+    def reasons(self) -> np.ndarray:
+        out = np.full(self.count, "", dtype=object)
+        for i in set(self._errors) | set(self._warnings):
+            out[i] = "; ".join(self._errors.get(i, []) + self._warnings.get(i, []))
+        return out
 
 
 
@@ -547,10 +569,21 @@ def _elevations_km(frame: pd.DataFrame, problems: _Problems) -> np.ndarray:
 
 
 def _designators(frame: pd.DataFrame, problems: _Problems) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    numbers = np.zeros(len(frame), dtype=np.int64)
-    suffixes = np.full(len(frame), "", dtype=object)
-    valid = np.zeros(len(frame), dtype=bool)
-    for i, cell in enumerate(frame["runway"].tolist()):
+    """Published designators as number and suffix; the common forms vectorised, the rest by :func:`parse_designator`."""
+    count = len(frame)
+    numbers = np.zeros(count, dtype=np.int64)
+    suffixes = np.full(count, "", dtype=object)
+    valid = np.zeros(count, dtype=bool)
+    cells = frame["runway"].astype(object)
+    text = cells.map(lambda v: str(int(v)) if isinstance(v, float) and v.is_integer() else ("" if v is None or v != v else str(v)))
+    parts = text.str.replace(" ", "", regex=False).str.upper().str.extract(r"^(\d{1,2})([LCR]?)$")
+    number = pd.to_numeric(parts[0], errors="coerce").to_numpy(dtype=np.float64)
+    quick = (number >= 1) & (number <= 36)
+    numbers[quick] = number[quick].astype(np.int64)
+    suffixes[quick] = parts[1].to_numpy(dtype=object)[quick]
+    valid[quick] = True
+    for i in np.flatnonzero(~quick):
+        cell = cells.iat[i]
         try:
             numbers[i], suffixes[i] = parse_designator("" if cell is None or cell != cell else cell)
             valid[i] = True
@@ -585,8 +618,8 @@ def _pair_ends(
         {
             "pos": np.arange(count),
             "airport": airport,
-            "key": [format_designator(n, s) for n, s in zip(numbers, suffixes, strict=True)],
-            "recip": [format_designator((n + 17) % 36 + 1, _RECIPROCAL_SUFFIX.get(s, "")) for n, s in zip(numbers, suffixes, strict=True)],
+            "key": _designator_texts(numbers, suffixes),
+            "recip": _designator_texts((numbers + 17) % 36 + 1, [_RECIPROCAL_SUFFIX.get(s, "") for s in suffixes]),
         }
     )[valid]
     duplicated = keys.duplicated(["airport", "key"], keep=False).to_numpy()
@@ -1110,8 +1143,8 @@ def _changes(ends: _Ends, runways: _Runways, var: _Variation, judge: _Judgement,
     out = pd.DataFrame({
         "row": end, "input_row": np.asarray(ends.labels, dtype=object)[end], "airport": ends.airport[end],
         "runway": ends.published[end], "runway_id": runways.runway_id[end], "change_date": np.asarray(dates, dtype=object),
-        "designator_before": [format_designator(n, s) for n, s in zip(before, suffix, strict=True)],
-        "next_designator": [format_designator(n, s) for n, s in zip(after, suffix, strict=True)],
+        "designator_before": _designator_texts(before, suffix),
+        "next_designator": _designator_texts(after, suffix),
         "years_to_change": day / 365.2425,
     }, columns=list(CHANGE_COLUMNS))
     return out.sort_values(["change_date", "airport", "runway_id", "row"], kind="stable").reset_index(drop=True)
@@ -1148,8 +1181,8 @@ def _assemble(ends: _Ends, runways: _Runways, var: _Variation, judge: _Judgement
     """The output table (:data:`OUTPUT_COLUMNS`)."""
     count, problems = ends.count, ends.problems
     errors = problems.has_error()
-    status = np.where(errors, "error", np.where([bool(w) for w in problems.warnings], "warning", "ok"))
-    reason = np.array(["; ".join(e + w) for e, w in zip(problems.errors, problems.warnings, strict=True)], dtype=object)
+    status = np.where(errors, "error", np.where(problems.has_warning(), "warning", "ok"))
+    reason = problems.reasons()
     suffix_kept = np.where(ends.designator_ok, ends.suffixes, "")
     change_date = np.full(count, "", dtype=object)
     next_designator = np.full(count, "", dtype=object)
@@ -1174,7 +1207,7 @@ def _assemble(ends: _Ends, runways: _Runways, var: _Variation, judge: _Judgement
             "variation_deg": var.variation,
             "magnetic_bearing_deg": np.where(np.isfinite(var.variation), judge.magnetic, np.nan),
             "runway_magnetic_deg": judge.runway_magnetic,
-            "designator_implied": [format_designator(n, s) if d else "" for n, s, d in zip(judge.implied, suffix_kept, defined, strict=True)],
+            "designator_implied": np.where(defined, _designator_texts(judge.implied, suffix_kept), ""),
             "designator_matches": pd.array(np.where(judge.judged, judge.matches, pd.NA), dtype="boolean"),
             "verdict": np.where(errors, "", judge.verdict),
             "on_boundary": pd.array(np.where(defined, judge.within_band, pd.NA), dtype="boolean"),
