@@ -12,12 +12,13 @@
   25(1), 1-16, doi:10.1029/RG025i001p00001); the south pole is its antipode. The dipole axis is
   a direction from the Earth's centre, so its natural latitude is GEOCENTRIC: column
   ``lat_geocentric``. Published tables differ: the WHOI centred-dipole table
-  (deeptow.whoi.edu/cdpole.html) and NOAA NCEI's geomagnetic-pole lists give the geocentric
-  latitude (from memory for NCEI; the WHOI values are checked in ``tests/test_poles.py``),
+  (deeptow.whoi.edu/cdpole.html), the Kyoto WDC's geomagnetic (dipole) coordinates and NOAA
+  NCEI's geomagnetic-pole lists give the geocentric latitude (from memory for NCEI; the WHOI
+  values are checked in ``tests/test_poles.py``),
   while Alken et al. (2021, Earth Planets Space 73:49), Table 4, lists the geodetic one. The
   column ``lat`` is geodetic WGS84 like every latitude in the package: the WGS84 surface point
   on the dipole axis, ``tan(lat) = tan(lat_c) / (1 - e^2)``. The two differ by at most
-  0.19 deg (at 45 deg), about 0.04 deg near 79 N. Dip poles carry both too (their
+  0.19 deg (at 45 deg), about 0.06 deg near 80 N. Dip poles carry both too (their
   ``lat_geocentric`` is that of the point found, at ``alt_km``).
 - :func:`pole_tracks`: both kinds over a range of years.
 

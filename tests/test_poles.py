@@ -26,7 +26,7 @@ ALKEN_2021_TABLE4 = {
     1985.0: (77.40, -102.61, -65.13, 139.18, 79.04, -70.90),
 }
 # WHOI "centered dipole" table (deeptow.whoi.edu/cdpole.html), geocentric latitudes from DGRF.
-WHOI_CD_POLES = {1900.0: (78.61, -68.79), 1985.0: (78.97, -70.90)}
+WHOI_CD_POLES = {1900.0: (78.61, -68.79), 1985.0: (78.97, -70.90), 2015.0: (80.31, -72.63), 2020.0: (80.59, -73.17)}
 
 
 @pytest.fixture(scope="module")
@@ -81,6 +81,19 @@ def test_geomagnetic_poles_match_published_positions(epoch):
         assert table.loc["north", "lon"] == pytest.approx(glon, abs=0.012)
 
 
+@pytest.mark.parametrize("epoch", sorted(WHOI_CD_POLES))
+def test_geomagnetic_pole_geocentric_latitude_matches_the_whoi_table(epoch):
+    # WHOI centred-dipole table (deeptow.whoi.edu/cdpole.html): geocentric latitudes from the
+    # DGRF/IGRF, rounded to 0.01 deg; the geodetic lat of the same pole is ~0.06 deg larger
+    north = headingref.geomagnetic_poles(epoch).set_index("pole").loc["north"]
+    lat, lon = WHOI_CD_POLES[epoch]
+    assert north.lat_geocentric == pytest.approx(lat, abs=0.012)
+    if epoch <= 1985.0:  # definitive epochs; the table's 2015/2020 longitudes come from older
+        # IGRF generations (2020: -73.17, 0.5 deg from atan2(-h11, -g11) of IGRF-14's DGRF 2020)
+        assert north.lon == pytest.approx(lon, abs=0.012)
+    assert north.lat - lat > 0.04  # the geodetic column would not match the geocentric table
+
+
 def test_geomagnetic_pole_closed_form_matches_chaosmagpy_dipole_axis():
     # chaosmagpy.coordinate_utils.igrf_dipole('2015'): unit vector to the north geomagnetic pole
     # from IGRF-12 at 2015.0 (IGRF-14 keeps DGRF 2015 within a few nT of it)
@@ -90,6 +103,45 @@ def test_geomagnetic_pole_closed_form_matches_chaosmagpy_dipole_axis():
     north = headingref.geomagnetic_poles(2015.0).set_index("pole").loc["north"]
     assert north.lat_geocentric == pytest.approx(lat_c, abs=0.02)
     assert north.lon == pytest.approx(lon, abs=0.02)
+
+
+@pytest.mark.parametrize("epoch", ["2020-01-01", "2025-01-01"])
+def test_geomagnetic_pole_from_ppigrf_coefficients_geocentric_and_geodetic(epoch):
+    from ppigrf.ppigrf import read_shc
+    from pyproj import Transformer
+
+    # ppigrf's own copy of the IGRF-14 coefficients, read independently of headingref's loader
+    g, h = read_shc()
+    g10, g11, h11 = (float(g.loc[epoch][(1, 0)]), float(g.loc[epoch][(1, 1)]), float(h.loc[epoch][(1, 1)]))
+    # Fraser-Smith (1987), Rev. Geophys. 25(1): the centred dipole's axis is -(g11, h11, g10)/B0 in
+    # Earth-centred x, y, z; where it leaves the northern hemisphere is the north geomagnetic pole
+    axis = -np.array([g11, h11, g10]) / math.sqrt(g10**2 + g11**2 + h11**2)
+    lat_c = math.degrees(math.asin(axis[2]))
+    lon = math.degrees(math.atan2(axis[1], axis[0]))
+    row = headingref.geomagnetic_poles(epoch).set_index("pole").loc["north"]
+    assert row.lat_geocentric == pytest.approx(lat_c, abs=1e-6)  # geocentric: the axis's own latitude
+    assert row.lon == pytest.approx(lon, abs=1e-6)
+    # geodetic: the WGS84 surface point on that axis, found with pyproj (ECEF EPSG:4978 -> EPSG:4979)
+    a, e2 = 6378137.0, 0.00669437999014  # WGS84 (NIMA TR8350.2)
+    b = a * math.sqrt(1.0 - e2)
+    c, s_ = math.cos(math.radians(lat_c)), math.sin(math.radians(lat_c))
+    r = a * b / math.hypot(b * c, a * s_)
+    _, lat_gd, height = Transformer.from_crs("EPSG:4978", "EPSG:4979", always_xy=True).transform(
+        r * c * math.cos(math.radians(lon)), r * c * math.sin(math.radians(lon)), r * s_)
+    assert abs(height) < 1e-3 and row.lat == pytest.approx(lat_gd, abs=1e-9)
+    # first order, geodetic - geocentric = (e^2 / 2) sin(2 lat) rad (Torge & Mueller, Geodesy): ~0.06 deg near 80 N
+    assert row.lat - row.lat_geocentric == pytest.approx(math.degrees(e2 / 2.0 * math.sin(2.0 * math.radians(lat_c))), abs=1e-3)
+
+
+def test_dip_pole_geocentric_latitude_matches_pyproj():
+    from pyproj import Transformer
+
+    # geodetic (lat, lon, h) -> ECEF with pyproj, geocentric latitude atan2(z, hypot(x, y))
+    poles = headingref.dip_poles("2025-01-01", alt_km=10.0)
+    to_ecef = Transformer.from_crs("EPSG:4979", "EPSG:4978", always_xy=True)
+    for row in poles.itertuples():
+        x, y, z = to_ecef.transform(row.lon, row.lat, 10_000.0)
+        assert row.lat_geocentric == pytest.approx(math.degrees(math.atan2(z, math.hypot(x, y))), abs=1e-9)
 
 
 def test_geodetic_latitude_conversion_matches_pyproj():
@@ -108,7 +160,7 @@ def test_geodetic_latitude_conversion_matches_pyproj():
 
 def test_pole_tracks_table():
     tracks = pole_tracks("2020-01-01", "2024-01-01", step_years=2)
-    assert list(tracks.columns[:5]) == ["date", "pole", "kind", "lat", "lon"]
+    assert list(tracks.columns) == ["date", "pole", "kind", "lat", "lon", "decimal_year", "lat_geocentric", "horizontal_nT"]
     assert len(tracks) == 3 * 4  # 3 dates x (2 dip + 2 geomagnetic)
     north = tracks[(tracks.kind == "dip") & (tracks.pole == "north")]
     # the north dip pole moved toward Siberia at roughly 40-55 km/yr in 2020-2024
@@ -138,7 +190,7 @@ def test_cli_poles_years_to_csv(tmp_path, capsys):
     out, png = tmp_path / "poles.csv", tmp_path / "poles.png"
     assert main(["poles", "--years", "1985:1990", "--step", "5", "--output", str(out), "--plot", str(png)]) == 0
     table = pd.read_csv(out)
-    assert list(table.columns[:5]) == ["date", "pole", "kind", "lat", "lon"]
+    assert list(table.columns[:5]) == ["date", "pole", "kind", "lat", "lon"] and "lat_geocentric" in table.columns
     assert set(table.kind) == {"dip", "geomagnetic"} and set(table.pole) == {"north", "south"}
     row = table[(table.kind == "dip") & (table.pole == "north") & (table.date == "1985-01-01")].iloc[0]
     assert row.lat == pytest.approx(77.40, abs=0.012) and row.lon == pytest.approx(-102.61, abs=0.012)  # Alken 2021 Table 4

@@ -10,7 +10,9 @@ EXAMPLES = """\
   headingref poles --years 2020:2025 --step 0.5 --output poles.csv
 
 Columns: date, pole (north|south), kind (dip|geomagnetic), lat, lon (degrees, geodetic WGS84,
-east positive), decimal_year, horizontal_nT (H at the dip pole found)."""
+east positive), decimal_year, lat_geocentric (degrees; the geocentric latitude that centred-dipole
+tables such as WHOI's and NOAA NCEI's list for geomagnetic poles), horizontal_nT (H at the dip
+pole found; empty for geomagnetic poles)."""
 
 
 def register(subparsers) -> None:
@@ -54,7 +56,7 @@ def run(args) -> int:
 
     from ..io import write_csv
     from ..notices import CAUTION
-    from ..poles import dip_poles, geomagnetic_poles, pole_tracks
+    from ..poles import TRACK_COLUMNS, dip_poles, geomagnetic_poles, pole_tracks
     from ..units import format_dm
     from .common import check_outputs
 
@@ -66,9 +68,8 @@ def run(args) -> int:
     else:
         dip = dip_poles(args.date, model=args.model, allow_extrapolation=args.extrapolate)
         geo = geomagnetic_poles(args.date, model=args.model, allow_extrapolation=args.extrapolate)
-        table = pd.concat([dip, geo[["date", "pole", "kind", "lat", "lon", "decimal_year"]]], ignore_index=True)
-    columns = ["date", "pole", "kind", "lat", "lon", "decimal_year", "horizontal_nT"]
-    table = table[columns]
+        table = pd.concat([dip, geo], ignore_index=True)
+    table = table[list(TRACK_COLUMNS)]
     if args.output:
         write_csv(args.output, table, float_format="%.6f")
     view = table[["date", "pole", "kind"]].copy()
@@ -76,6 +77,7 @@ def run(args) -> int:
     view["longitude"] = [format_dm(v, "E", "W", 1) for v in table.lon]
     view["lat_deg"] = table.lat.round(3)
     view["lon_deg"] = table.lon.round(3)
+    view["lat_geocentric_deg"] = table.lat_geocentric.round(3)
     print(view.to_string(index=False))
     if args.output:
         print(f"wrote {args.output} ({len(table)} rows)")
