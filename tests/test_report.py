@@ -3,11 +3,14 @@
 from __future__ import annotations
 
 import base64
+import errno
+import hashlib
 import json
+import os
 import re
 import shutil
-import sys
 import warnings
+from pathlib import Path
 
 import numpy as np
 import pandas as pd
@@ -45,7 +48,7 @@ def test_html_has_every_section_and_embedded_images(demo):
     result, page = demo
     for section in SECTIONS:
         assert f'id="{section}"' in page, section
-    assert not result.skipped
+    assert not result.failed
     images = re.findall(r'src="data:image/png;base64,([^"]+)"', page)
     assert len(images) >= 8
     for data in images:
@@ -102,11 +105,13 @@ def test_runway_table_and_summary_equal_independent_recomputation(demo):
     geod = Geodesic.WGS84
     out_of_date = set()
     for (_, row), (_, given) in zip(table.iterrows(), inputs.iterrows(), strict=True):
-        line = geod.Inverse(given.lat, given.lon, given.end_lat, given.end_lon)
-        assert row.true_bearing_deg == pytest.approx(line["azi1"] % 360.0, abs=1e-6)  # geographiclib
-        mid = geod.Direct(given.lat, given.lon, line["azi1"], line["s12"] / 2.0)
+        # true azimuth of the centre line at its midpoint, variation at the same point: geographiclib
+        # (Karney 2013) for the geodesic between the thresholds
+        line = geod.InverseLine(given.lat, given.lon, given.end_lat, given.end_lon)
+        mid = line.Position(line.s13 / 2.0)
+        assert row.true_bearing_deg == pytest.approx(mid["azi2"] % 360.0, abs=1e-6)
         variation = float(headingref.field(mid["lat2"], mid["lon2"], "2026-12-02").declination_deg.iloc[0])
-        magnetic = (line["azi1"] - variation) % 360.0
+        magnetic = (mid["azi2"] - variation) % 360.0
         assert row.magnetic_bearing_deg == pytest.approx(magnetic, abs=1e-3)
         implied = _designator(magnetic)
         assert row.designator_implied.rstrip("LCR") == implied
@@ -188,12 +193,26 @@ def _small_scenario(tmp_path, extra=""):
     return path
 
 
-def test_missing_library_part_is_skipped_with_a_note(tmp_path, monkeypatch):
-    monkeypatch.setitem(sys.modules, "headingref.runways", None)  # as if not installed
-    result = build_report(_small_scenario(tmp_path), tmp_path / "out", progress=False)
-    assert "runways" in result.skipped
+def test_failing_job_is_a_shown_failed_section_not_a_silent_gap(tmp_path, monkeypatch, capsys):
+    # A library function renamed or broken: the section is shown as failed with the reason, in the
+    # summary and in the result, and the command exits non-zero (never a silently missing figure).
+    import headingref.report.runways as job
+
+    def broken(*args, **kwargs):
+        raise RuntimeError("check_runways went away")
+
+    monkeypatch.setattr(job, "check_runways", broken)
+    with pytest.warns(UserWarning, match="section not made: RuntimeError: check_runways went away"):
+        result = build_report(_small_scenario(tmp_path), tmp_path / "out", progress=False)
+    assert result.failed == {"runways": "RuntimeError: check_runways went away"}
     page = result.html.read_text(encoding="utf-8")
-    assert "Skipped: headingref.runways is not available" in page
+    assert 'class="failed"' in page and page.count("check_runways went away") == 2  # summary and section
+    assert page.index("Sections that could not be made") < page.index('id="runways"')
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        assert main(["report", str(_small_scenario(tmp_path)), "--out", str(tmp_path / "out2"), "--no-progress"]) == 1
+    err = capsys.readouterr().err
+    assert "section runways could not be made: RuntimeError: check_runways went away" in err
 
 
 def test_failed_run_writes_nothing(tmp_path):
@@ -256,3 +275,173 @@ def test_large_runway_batch_keeps_the_summary_short(tmp_path):
     page = result.html.read_text(encoding="utf-8")
     shown = page.split('id="runways"')[1].count("<tr") - 1  # header row
     assert shown < 260  # only the ends needing attention are listed in the page
+
+
+# --------------------------------------------------------------------------- issue 12: nothing lost, nothing overwritten
+def _digest(folder: Path) -> dict[str, str]:
+    return {str(p.relative_to(folder)): hashlib.sha256(p.read_bytes()).hexdigest() for p in sorted(folder.rglob("*")) if p.is_file()}
+
+
+def _leftovers(folder: Path) -> list[str]:
+    return [p.name for p in folder.rglob(".headingref-report-*")]
+
+
+@pytest.fixture()
+def demo_copy(tmp_path):
+    folder = tmp_path / "study"
+    shutil.copytree(DEMO, folder)
+    return folder
+
+
+def test_report_into_the_scenarios_own_folder_is_refused(demo_copy, tmp_path, capsys):
+    # issue 12 item 1: --out the scenario's folder would replace the input runways.csv and compass_bases.csv
+    before = _digest(demo_copy)
+    for out in (demo_copy, demo_copy / "routes", tmp_path / "." / "study" / ".." / "study"):
+        with pytest.raises(InputError, match="holds the scenario's input"):
+            build_report(demo_copy / "scenario.toml", out, progress=False)
+    (tmp_path / "link").symlink_to(demo_copy, target_is_directory=True)  # links are resolved
+    assert main(["report", str(demo_copy / "scenario.toml"), "--out", str(tmp_path / "link"), "--no-progress"]) == 2
+    err = capsys.readouterr().err.strip()
+    assert err.count("\n") == 0 and "holds the scenario's input" in err
+    assert _digest(demo_copy) == before and _leftovers(tmp_path) == []
+
+
+def test_demo_into_the_bundled_demo_folder_is_refused(demo_copy, tmp_path, monkeypatch, capsys):
+    # `demo --out data/demo` would destroy the bundled demo; the demo command is pointed at a copy here
+    import headingref.scenario
+
+    monkeypatch.setattr(headingref.scenario, "DEMO_SCENARIO", demo_copy / "scenario.toml")
+    before = _digest(demo_copy)
+    assert main(["demo", "--out", str(demo_copy), "--no-progress"]) == 2
+    assert "holds the scenario's input" in capsys.readouterr().err
+    assert _digest(demo_copy) == before
+
+
+def test_folder_holding_an_input_or_other_files_is_refused(tmp_path):
+    # An output folder that contains an input named like an output (runways.csv) or any other
+    # file: the report replaces the whole folder, so it must be new, empty or an earlier report.
+    out = tmp_path / "out"
+    out.mkdir()
+    shutil.copy(DEMO / "runways.csv", out / "runways.csv")
+    path = tmp_path / "s.toml"
+    path.write_text('analysis_date = "2026-12-02"\n[runways]\nfile = "out/runways.csv"\nhorizon_years = 1\n', encoding="utf-8")
+    with pytest.raises(InputError, match="holds the scenario's input"):
+        build_report(path, out, progress=False)
+    other = tmp_path / "notes"
+    other.mkdir()
+    (other / "minutes.txt").write_text("keep me", encoding="utf-8")
+    with pytest.raises(InputError, match=r"not an earlier report \(minutes.txt\)"):
+        build_report(_small_scenario(tmp_path), other, progress=False)
+    assert (other / "minutes.txt").read_text(encoding="utf-8") == "keep me"
+
+
+def test_earlier_report_is_replaced_as_a_whole(tmp_path):
+    out = tmp_path / "out"
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        build_report(_small_scenario(tmp_path), out, progress=False)
+        (out / "stale_from_last_time.csv").write_text("x\n1\n", encoding="utf-8")
+        swing = tmp_path / "sw.toml"
+        shutil.copy(DEMO / "swing_readings.csv", tmp_path / "sw.csv")
+        swing.write_text('analysis_date = "2026-12-02"\n[swing]\nfile = "sw.csv"\n', encoding="utf-8")
+        result = build_report(swing, out, progress=False)
+    # the folder now holds exactly this report's files: nothing of the earlier one is mixed in
+    assert sorted(p.name for p in out.iterdir()) == sorted(p.name for p in result.files)
+    assert "runways.csv" not in {p.name for p in result.files}
+    assert _leftovers(tmp_path) == []
+
+
+def test_disk_full_or_interrupt_keeps_the_old_report_and_leaves_no_staging(tmp_path, monkeypatch):
+    # issue 12 items 5 and 6: one-line error, the report folder is the old one or the new one
+    import headingref.report.build as build
+    import headingref.report.folder as folder
+
+    out = tmp_path / "out"
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        build_report(_small_scenario(tmp_path), out, progress=False)
+    before = _digest(out)
+
+    def full(*args, **kwargs):
+        raise OSError(errno.ENOSPC, os.strerror(errno.ENOSPC))
+
+    monkeypatch.setattr(build, "write_text", full)
+    with pytest.raises(InputError, match="cannot write the report into .*No space left on device") as info:
+        build_report(_small_scenario(tmp_path), out, progress=False)
+    assert "\n" not in str(info.value)
+    assert _digest(out) == before and _leftovers(tmp_path) == []
+    monkeypatch.undo()
+
+    from headingref.cli.common import Terminated
+
+    def terminated(ctx):
+        raise Terminated()  # SIGTERM, as the command line raises it
+
+    monkeypatch.setattr(build.runways, "job", terminated)
+    with pytest.raises(KeyboardInterrupt):
+        build_report(_small_scenario(tmp_path), out, progress=False)
+    assert _digest(out) == before and _leftovers(tmp_path) == []
+    monkeypatch.undo()
+
+    real_replace, calls = os.replace, []
+
+    def failing_second_rename(src, dst):
+        calls.append(src)
+        if len(calls) == 2:  # old report set aside, the new one cannot be renamed in
+            raise OSError(errno.EIO, os.strerror(errno.EIO))
+        return real_replace(src, dst)
+
+    monkeypatch.setattr(folder.os, "replace", failing_second_rename)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        with pytest.raises(InputError, match="Input/output error"):
+            build_report(_small_scenario(tmp_path), out, progress=False)
+    assert _digest(out) == before and _leftovers(tmp_path) == []  # the old report was put back
+
+
+def test_unusable_runway_rows_are_listed_not_a_crash(tmp_path):
+    # issue 12 item 2: designator 37 (ICAO Annex 14 Vol I: runway numbers 01 to 36, from memory)
+    # and a latitude 'nan' are rows the check cannot use; the report lists them as `runways` does.
+    text = (DEMO / "runways.csv").read_text(encoding="utf-8").rstrip("\n")
+    text += "\nJXZZ,37,69.6,18.9,69.62,18.9\nJXZY,09,nan,18.9,69.7,18.9\n"
+    (tmp_path / "rw.csv").write_text(text, encoding="utf-8")
+    path = tmp_path / "s.toml"
+    path.write_text('analysis_date = "2026-12-02"\n[runways]\nfile = "rw.csv"\nhorizon_years = 2\n', encoding="utf-8")
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        result = build_report(path, tmp_path / "out", progress=False)
+    lines = len(text.splitlines())
+    line = [s for s in result.summary["runways"] if "not checked" in s]
+    assert len(line) == 1 and line[0].startswith("2 runway row(s) not checked")
+    assert f"rw.csv line {lines - 1}" in line[0] and f"rw.csv line {lines}" in line[0]
+    page = result.html.read_text(encoding="utf-8")
+    assert "Rows not checked (2)" in page and "37" in page and "nan" in page
+    assert not result.failed
+
+
+def test_library_arguments_of_the_wrong_type_name_the_argument(tmp_path):
+    # issue 12 items 7 and 8
+    with pytest.raises(InputError, match="scenario = None"):
+        build_report(None, tmp_path / "out", progress=False)
+    with pytest.raises(InputError, match="out_dir = None"):
+        build_report(DEMO_SCENARIO, None, progress=False)
+    with pytest.raises(InputError, match="out_dir = ''.*empty"):
+        build_report(DEMO_SCENARIO, "", progress=False)
+    assert not (tmp_path / "out").exists()
+
+
+def test_user_text_is_escaped_in_the_page_and_plain_in_the_summary(tmp_path):
+    # issue 12 item 4: names are text, never markup (HTML 5 escaping of < > & and quotes)
+    shutil.copy(DEMO / "swing_readings.csv", tmp_path / "sw.csv")
+    path = tmp_path / "s.toml"
+    name = '<script>alert(1)</script> Apron $2 pad $3 & "B"'
+    path.write_text(f'title = "<b>Study</b> & co"\nanalysis_date = "2026-12-02"\n[swing]\nfile = "sw.csv"\n'
+                    f"base = '{name}'\n", encoding="utf-8")
+    result = build_report(path, tmp_path / "out", progress=False)
+    page = result.html.read_text(encoding="utf-8")
+    assert "<script" not in page and "<b>Study" not in page
+    assert "&lt;script&gt;alert(1)&lt;/script&gt; Apron $2 pad $3 &amp; &#34;B&#34;" in page
+    assert "<title>&lt;b&gt;Study&lt;/b&gt; &amp; co</title>" in page
+    (line,) = result.summary["swing"]
+    assert line.startswith(f"Compass swing on {name}: ")  # plain text, not HTML
+    assert "<b>" not in result.summary_text()

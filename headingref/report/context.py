@@ -51,3 +51,13 @@ class Context:
         if b["acceleration_mps2"]:
             text += f" with {b['acceleration_mps2']:g} m/s² along-track acceleration"
         return text
+
+    @property
+    def slaving(self) -> str:
+        """Whether the gyro is slaved during the manoeuvre, in words."""
+        b = self.budget
+        cutout = b["slaving_cutout_bank_deg"]
+        if abs(b["bank_angle_deg"]) > cutout:
+            return (f"slaving cut out above {cutout:g}° of bank, so the gyro holds its heading and the detector's tilt "
+                    "error does not reach it")
+        return f"slaving on at {b['slaving_rate_deg_per_min']:g}°/min, dragging the gyro toward the tilted detector"

@@ -43,8 +43,8 @@ def job(ctx: Context) -> Section:
         parts=[Part(text=[
             f"The heading-reference error budget at {alt:.1f} km over the {cap} cap (to about {edge:.0f}°): residual "
             f"aircraft field {b['residual_field_nT']:g} nT (error up to asin(ΔB/H)), the WMM declination uncertainty, and "
-            f"in the turn the detector tilt ({ctx.manoeuvre}; the error grows with the tangent of the inclination) and the "
-            f"gyro being dragged by slaving at {b['slaving_rate_deg_per_min']:g}°/min for {b['turn_duration_s']:g} s. "
+            f"in the turn ({ctx.manoeuvre} for {b['turn_duration_s']:g} s) the detector's tilt error, which grows with the "
+            f"tangent of the inclination, as far as slaving carries it into the gyro ({ctx.slaving}). "
             f"The contour marks where the combined error exceeds {b['limit_deg']:g}°."],
             tables=[Table(table, _COLUMNS)], figures=figures)],
         files=[OutputFile("error_budget_areas.csv", table)],

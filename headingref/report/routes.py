@@ -155,7 +155,7 @@ def job(ctx: Context) -> Section:
         f"field {ctx.scenario.model_name} on {ctx.date}. Courses are at the start of each leg (true, magnetic = true − "
         f"variation, grid = true − convergence). The error budget is for a slaved flux-gate detector with a "
         f"{b['residual_field_nT']:g} nT residual aircraft field: steady level flight, and a {ctx.manoeuvre} lasting "
-        f"{b['turn_duration_s']:g} s with slaving on (root-sum-square of the terms), against a limit of {b['limit_deg']:g}°."
+        f"{b['turn_duration_s']:g} s ({ctx.slaving}); root-sum-square of the terms, against a limit of {b['limit_deg']:g}°."
     ]))
     summary: list[SummaryItem] = []
     features: list[dict] = []
