@@ -12,6 +12,19 @@ Two public-domain coefficient formats are read:
   ``n m g h gdot hdot`` (nT, nT/yr) and a closing line of 9s. ``g(t) = g(t0) + (t - t0) gdot``,
   valid from ``t0`` to ``t0 + 5``.
 
+Files of any degree up to :data:`MAX_DEGREE` are read (WMMHR2025 is degree 133); see
+:data:`MAX_DEGREE` for why the limit is where it is.
+
+Models by name (:data:`MODEL_NAMES`, :func:`list_models`): ``IGRF-14`` (the SHC file shipped with
+``ppigrf``), ``WMM2015``, ``WMM2015v2``, ``WMM2020``, ``WMM2025`` and ``WMMHR2025`` (the
+public-domain .COF files of NOAA NCEI / BGS shipped with ``pygeomag``, a runtime dependency). A
+name is resolved inside :func:`load_model`, so every ``model=`` argument, CLI ``--model`` and
+scenario ``model`` key accepts a name or a path.
+
+Each model carries its declination error model (:class:`ErrorModel`, ``Model.error_spans``):
+``sqrt(a^2 + (b/H)^2)`` degrees (1 sigma) with the edition's own ``a``, ``b``; see
+:data:`WMM_ERROR_MODELS` and :func:`error_spans_for`.
+
 Both become a :class:`Model`: a piecewise-linear set of Schmidt semi-normalised Gauss
 coefficients on intervals ``[start_k, start_{k+1})``. The annual rate used for the ``*_per_year``
 outputs is the exact derivative of that piecewise-linear law (the interval's slope); at an
@@ -33,7 +46,7 @@ from __future__ import annotations
 import functools
 import os
 import warnings
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 import numpy as np
@@ -46,6 +59,87 @@ MAX_COEFFICIENT_NT = 1e7
 g10, is about -31,500 nT (IGRF, 1900); a value a few hundred times larger is a typo or a corrupt file,
 and values near 1e308 would overflow the synthesis into infinite fields."""
 EPOCH_RANGE = (1000.0, 3000.0)  # the decimal years headingref.units.decimal_year accepts
+MAX_DEGREE = 1000
+"""Highest spherical-harmonic degree a coefficient file may have.
+
+Why 1,000: the synthesis uses the standard Schmidt semi-normalised recursion (see
+:mod:`headingref.synthesis`), whose sectoral seed ``P_m^m ~ sin^m(theta)`` underflows double
+precision (1e-308) once ``m log10(1/sin theta) > 308``. A term of degree n and order m matters
+only where ``sin theta > m/n`` (outside that band P_n^m is exponentially small), so the seed that
+matters underflows only when ``n s log10(1/s) > 308`` for some s, i.e. (the maximum of
+``s log10(1/s)`` is 0.16 at s = 1/e) from about degree 1,900. Beyond that a scaled recursion
+(Holmes and Featherstone 2002, J. Geodesy 76:279-299, doi:10.1007/s00190-002-0216-2) is needed;
+1,000 keeps a factor of two of margin. It also bounds memory: four coefficient arrays of
+(n+1)^2 doubles per interval, 32 MB at degree 1,000. Degree 133 (WMMHR2025) is checked against
+pygeomag's high-resolution synthesis in tests/test_highres.py."""
+
+
+@dataclass(frozen=True)
+class ErrorModel:
+    """A declination error model ``sqrt(const_deg^2 + (scale_nT / H)^2)`` degrees (1 sigma), H in nT.
+
+    ``label`` names the edition whose constants these are (and says "proxy" when they are applied
+    to another model); ``source`` cites the publication and where the constants were checked.
+    """
+
+    const_deg: float
+    scale_nT: float
+    label: str
+    source: str
+
+    def declination_deg(self, horizontal_nT) -> np.ndarray:
+        """The error model at horizontal intensities in nT (infinite where H = 0)."""
+        h = np.asarray(horizontal_nT, dtype=np.float64)
+        with np.errstate(divide="ignore"):
+            return np.sqrt(self.const_deg**2 + (self.scale_nT / h) ** 2)
+
+
+_PYGEOMAG_NOTE = "same constants in pygeomag 1.1.0, geomag.py, GeoMagUncertaintyResult"
+WMM_ERROR_MODELS = {
+    # Chulliat et al. (2015), The US/UK World Magnetic Model for 2015-2020, NOAA NCEI, uncertainty section
+    "WMM2015": ErrorModel(0.23, 5430.0, "WMM2015", "WMM2015 technical report (Chulliat et al. 2015), "
+                          "declination uncertainty; " + _PYGEOMAG_NOTE + "._error_model_wmm_2015"),
+    # Chulliat et al. (2020), The US/UK World Magnetic Model for 2020-2025, NOAA NCEI, uncertainty section
+    "WMM2020": ErrorModel(0.26, 5625.0, "WMM2020", "WMM2020 technical report (Chulliat et al. 2020), "
+                          "declination uncertainty; " + _PYGEOMAG_NOTE + "._error_model_wmm_2020"),
+    # The US/UK World Magnetic Model for 2025-2030, NOAA NCEI / BGS, uncertainty section
+    "WMM2025": ErrorModel(0.26, 5417.0, "WMM2025", "WMM2025 technical report (NOAA NCEI / BGS 2024), "
+                          "declination uncertainty; " + _PYGEOMAG_NOTE + "._error_model_wmm_2025"),
+    # The World Magnetic Model High Resolution 2025 technical report, NOAA NCEI / CIRES
+    "WMMHR2025": ErrorModel(0.25, 5205.0, "WMMHR2025", "WMMHR2025 technical report (NOAA NCEI / CIRES 2024), "
+                            "declination uncertainty; " + _PYGEOMAG_NOTE + "._error_model_wmmhr_2025"),
+}
+"""The published declination error models, ``a`` (deg) and ``b`` (nT) per edition."""
+WMM_ERROR_MODELS["WMM2015v2"] = ErrorModel(
+    0.23, 5430.0, "WMM2015 (applied to WMM2015v2)",
+    "WMM2015 technical report constants, which pygeomag 1.1.0 also applies to WMM2015v2 (2015.0-2020.0)")
+
+_PROXY_EDITIONS = ((2015.0, 2020.0, "WMM2015"), (2020.0, 2025.0, "WMM2020"), (2025.0, 2030.0, "WMM2025"))
+FIRST_ERROR_MODEL_YEAR = _PROXY_EDITIONS[0][0]
+
+
+def error_spans_for(name: str) -> tuple[tuple[float, float, ErrorModel], ...]:
+    """The declination error model(s) of the model called ``name``, as ``(from, to, ErrorModel)`` spans.
+
+    A WMM edition (name in :data:`WMM_ERROR_MODELS`) has its own published error model for every
+    date it is evaluated at. Any other model (IGRF, or a file of unknown edition) has no published
+    declination error model; headingref applies, as a **proxy**, the WMM edition whose five-year
+    span contains the date (WMM2015 for 2015.0-2020.0, WMM2020 for 2020.0-2025.0, WMM2025 for
+    2025.0-2030.0, the later edition at a boundary; labelled "proxy"). Both models are fitted to
+    the same kind of data for the same epoch and neither models the crustal field, which dominates
+    the WMM error budget, so the WMM error is a fair measure of how far a main-field-only model can be
+    from the real declination. Before 2015.0 no error model is given (NaN): the WMM constants describe
+    a field measured by satellites, not a historical field such as IGRF's 1900.
+    """
+    key = name.replace("-", "").upper().replace("V2", "v2")
+    if key in WMM_ERROR_MODELS:
+        return ((-np.inf, np.inf, WMM_ERROR_MODELS[key]),)
+    spans = []
+    for i, (lo, hi, edition) in enumerate(_PROXY_EDITIONS):
+        base = WMM_ERROR_MODELS[edition]
+        proxy = ErrorModel(base.const_deg, base.scale_nT, f"{edition} (proxy for {name})", base.source)
+        spans.append((lo, np.inf if i == len(_PROXY_EDITIONS) - 1 else hi, proxy))
+    return tuple(spans)
 
 
 @dataclass(frozen=True, eq=False)
@@ -67,6 +161,8 @@ class Model:
         Validity, decimal years.
     source : str
         The file the model was read from.
+    error_spans : tuple of (from, to, ErrorModel)
+        Declination error model(s) by date (see :func:`error_spans_for`); no span, no error model.
     """
 
     name: str
@@ -81,6 +177,50 @@ class Model:
     source: str = ""
     reference_radius_km: float = REFERENCE_RADIUS_KM
     meta: dict = field(default_factory=dict)
+    error_spans: tuple = ()
+
+    def __post_init__(self):
+        if not self.error_spans:
+            object.__setattr__(self, "error_spans", error_spans_for(self.name))
+
+    def error_model(self, year: float) -> ErrorModel | None:
+        """The declination error model applied at one decimal year (None before the first)."""
+        for lo, hi, em in self.error_spans:
+            if lo <= year < hi:
+                return em
+        return None
+
+    def error_constants(self, years) -> tuple[np.ndarray, np.ndarray]:
+        """``(a_deg, b_nT)`` of the error model at each date; NaN where there is none."""
+        years = np.asarray(years, dtype=np.float64)
+        a = np.full(years.shape, np.nan)
+        b = np.full(years.shape, np.nan)
+        for lo, hi, em in self.error_spans:
+            inside = (years >= lo) & (years < hi)
+            a[inside] = em.const_deg
+            b[inside] = em.scale_nT
+        return a, b
+
+    def error_label(self, years=None) -> str:
+        """Which error model(s) the declination uncertainty uses, in words (for table/column attrs)."""
+        first = min(lo for lo, _, _ in self.error_spans)
+        if years is None:
+            labels = [f"{em.label}" + (f" from {lo:g}" if np.isfinite(lo) else "") for lo, _, em in self.error_spans]
+            early = np.isfinite(first)
+        else:
+            years = np.atleast_1d(np.asarray(years, dtype=np.float64))
+            labels = list(dict.fromkeys(em.label for lo, hi, em in self.error_spans
+                                        if np.any((years >= lo) & (years < hi))))
+            early = bool(np.any(years < first))
+        if early:
+            labels.append(f"none before {first:g} (NaN)")
+        return "sqrt(a^2 + (b/H)^2) deg, 1 sigma, constants of " + "; ".join(labels)
+
+    @property
+    def sv_nmax(self) -> int:
+        """Highest degree with a non-zero rate (secular variation) in any interval."""
+        nonzero = np.any((self.g_rate != 0) | (self.h_rate != 0), axis=(0, 2))
+        return int(np.nonzero(nonzero)[0].max()) if nonzero.any() else 0
 
     def check_dates(self, years: np.ndarray, allow_extrapolation: bool = False) -> None:
         """Raise :class:`DateRangeError` (or warn, if allowed) for dates outside validity."""
@@ -148,8 +288,9 @@ def _read_shc(path: Path, text: str) -> Model:
         epochs = np.array([float(v) for v in lines[1].split()])
     except (ValueError, IndexError):
         raise _fail(path, "the parameter line or the epoch line is malformed") from None
-    if nmin != 1 or not 1 <= nmax <= 60:
-        raise _fail(path, f"degrees {nmin} to {nmax} are not supported (need N_MIN 1, N_MAX up to 60)")
+    if nmin != 1 or not 1 <= nmax <= MAX_DEGREE:
+        raise _fail(path, f"degrees {nmin} to {nmax} are not supported (need N_MIN 1 and N_MAX 1 to {MAX_DEGREE}; "
+                          "see headingref.model.MAX_DEGREE for why)")
     if ntimes != len(epochs) or ntimes < 1 or np.any(np.diff(epochs) <= 0) or not np.all(np.isfinite(epochs)):
         raise _fail(path, f"expected {ntimes} increasing epochs, found {len(epochs)}")
     values = np.zeros((2, ntimes, nmax + 1, nmax + 1))
@@ -214,8 +355,11 @@ def _read_cof(path: Path, text: str) -> Model:
             vals = [float(v) for v in parts[2:]]
         except (ValueError, IndexError):
             raise _fail(path, f"line {number} is not 'n m g h gdot hdot': {line.strip()[:60]!r}") from None
-        if len(vals) != 4 or not np.all(np.isfinite(vals)) or not (1 <= n <= 60 and 0 <= m <= n):
-            raise _fail(path, f"line {number} is not 'n m g h gdot hdot' with 0 <= m <= n: {line.strip()[:60]!r}")
+        if n > MAX_DEGREE:
+            raise _fail(path, f"line {number} has degree {n}, above the highest supported degree {MAX_DEGREE} "
+                              "(see headingref.model.MAX_DEGREE for why)")
+        if len(vals) != 4 or not np.all(np.isfinite(vals)) or not (1 <= n and 0 <= m <= n):
+            raise _fail(path, f"line {number} is not 'n m g h gdot hdot' with 1 <= n and 0 <= m <= n: {line.strip()[:60]!r}")
         if (n, m) in seen:
             raise _fail(path, f"line {number} repeats degree/order ({n}, {m}) of line {seen[n, m]}")
         seen[n, m] = number
@@ -230,7 +374,7 @@ def _read_cof(path: Path, text: str) -> Model:
         arr[:, 0, n, m] = (g, h, gd, hd)
     _check_values(path, arr, "coefficient or rate")
     _check_validity(path, epoch, epoch + 5.0)
-    display = name.replace("WMM-", "WMM") if name.upper().startswith("WMM") else name
+    display = name.replace("-", "") if name.upper().startswith("WMM") else name  # WMMHR-2025 -> WMMHR2025
     return Model(display, nmax, np.array([epoch]), arr[0], arr[1], arr[2], arr[3], epoch, epoch + 5.0, str(path))
 
 
@@ -239,6 +383,64 @@ def default_coefficient_file() -> Path:
     import ppigrf
 
     return Path(ppigrf.__file__).with_name("IGRF14.shc")
+
+
+def _pygeomag_file(filename: str) -> Path:
+    try:
+        import pygeomag
+    except ImportError:
+        raise ModelFileError(f"the WMM files are read from the pygeomag package, which is not installed "
+                             f"(pip install pygeomag), so {filename} is unavailable; give the path of a .COF file") from None
+    return Path(pygeomag.__file__).with_name("wmm") / filename
+
+
+MODEL_NAMES = {
+    # name: (file finder, where the public-domain file comes from)
+    "IGRF-14": (default_coefficient_file, "IAGA V-MOD IGRF-14 (2024), file IGRF14.shc shipped with ppigrf"),
+    "WMM2015": (lambda: _pygeomag_file("WMM_2015.COF"), "NOAA NCEI / BGS WMM2015 (Dec 2014), file WMM_2015.COF shipped with pygeomag"),
+    "WMM2015v2": (lambda: _pygeomag_file("WMM_2015v2.COF"), "NOAA NCEI / BGS WMM2015v2 (Sep 2018 out-of-cycle release), file WMM_2015v2.COF shipped with pygeomag"),
+    "WMM2020": (lambda: _pygeomag_file("WMM_2020.COF"), "NOAA NCEI / BGS WMM2020 (Dec 2019), file WMM_2020.COF shipped with pygeomag"),
+    "WMM2025": (lambda: _pygeomag_file("WMM_2025.COF"), "NOAA NCEI / BGS WMM2025 (Nov 2024), file WMM_2025.COF shipped with pygeomag"),
+    "WMMHR2025": (lambda: _pygeomag_file("WMMHR_2025.COF"), "NOAA NCEI / CIRES WMMHR2025 (Nov 2024, degree 133), file WMMHR_2025.COF shipped with pygeomag"),
+}
+"""Models known by name; names are matched ignoring case and hyphens (``wmm-2025``, ``igrf14``)."""
+
+
+def _name_key(text: str) -> str:
+    return text.replace("-", "").replace("_", "").replace(" ", "").upper()
+
+
+_NAME_KEYS = {_name_key(name): name for name in MODEL_NAMES}
+
+
+def model_name(text: str) -> str | None:
+    """The canonical name (a key of :data:`MODEL_NAMES`) that ``text`` spells, or None."""
+    return _NAME_KEYS.get(_name_key(text))
+
+
+def model_file(name: str) -> Path:
+    """The coefficient file of a named model (see :data:`MODEL_NAMES`)."""
+    canonical = model_name(name)
+    if canonical is None:
+        raise ModelFileError(f"model {name!r} is not a known name; give one of {', '.join(MODEL_NAMES)} or a file path")
+    return MODEL_NAMES[canonical][0]()
+
+
+def list_models():
+    """The named models as a DataFrame: name, validity, degree, secular-variation degree, error model, source.
+
+    Columns: ``name``, ``valid_from``, ``valid_to`` (decimal years), ``nmax`` (degree),
+    ``sv_nmax`` (highest degree with secular variation), ``error_model`` (which declination error
+    model headingref applies), ``source`` (the file and its publisher).
+    """
+    import pandas as pd
+
+    rows = []
+    for name, (_, origin) in MODEL_NAMES.items():
+        model = load_model(name)
+        rows.append({"name": name, "valid_from": model.valid_from, "valid_to": model.valid_to, "nmax": model.nmax,
+                     "sv_nmax": model.sv_nmax, "error_model": model.error_label(), "source": origin})
+    return pd.DataFrame(rows)
 
 
 @functools.lru_cache(maxsize=16)
@@ -264,24 +466,38 @@ _DEFAULT: Model | None = None
 
 
 def load_model(path: str | os.PathLike | None = None) -> Model:
-    """Load a coefficient file (SHC or WMM .COF); ``None`` gives IGRF-14 from ``ppigrf``.
+    """Load a model by name (:data:`MODEL_NAMES`) or a coefficient file (SHC or WMM .COF).
 
-    Raises :class:`~headingref.errors.ModelFileError` naming the file and the fault.
-    Models are cached by path and modification time.
+    ``None`` gives IGRF-14 from ``ppigrf``; a name such as ``"WMMHR2025"`` (case and hyphens
+    ignored) gives the named model, its name taking precedence over a file of the same name in the
+    working folder; anything else is a path. Raises :class:`~headingref.errors.ModelFileError`
+    naming the file and the fault. Models are cached by path and modification time.
     """
     global _DEFAULT
     if isinstance(path, Model):
         return path
     if path is None:
         if _DEFAULT is None:
-            _DEFAULT = load_model(default_coefficient_file())
+            _DEFAULT = _load_file(default_coefficient_file())
         return _DEFAULT
     if not isinstance(path, (str, os.PathLike)):
-        raise ModelFileError(f"model {path!r} is not understood; give None (IGRF-14), a Model or the path of a .shc or .COF file")
+        raise ModelFileError(f"model {path!r} is not understood; give None (IGRF-14), a Model, a model name "
+                             f"({', '.join(MODEL_NAMES)}) or the path of a .shc or .COF file")
+    canonical = model_name(path) if isinstance(path, str) else None
+    if canonical == "IGRF-14":
+        return load_model(None)
+    if canonical is not None:
+        named = _load_file(model_file(canonical))
+        return named if named.name == canonical else replace(named, name=canonical, error_spans=error_spans_for(canonical))
+    return _load_file(path)
+
+
+def _load_file(path: str | os.PathLike) -> Model:
     p = Path(path)
     try:
         if not p.is_file():
-            raise ModelFileError(f"coefficient file {str(p)!r} does not exist; give an IGRF-format .shc or a WMM .COF file")
+            raise ModelFileError(f"coefficient file {str(p)!r} does not exist; give a model name ({', '.join(MODEL_NAMES)}), "
+                                 "an IGRF-format .shc or a WMM .COF file")
         key = (str(p.resolve()), p.stat().st_mtime)
     except OSError as exc:  # name too long, no permission
         raise ModelFileError(f"coefficient file {str(p)!r} cannot be read: {exc.strerror or exc}") from None

@@ -77,7 +77,8 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "title": Key("str", "headingref scenario", doc="report title"),
         "operator": Key("str", "", doc="operator or organisation"),
         "analysis_date": Key("date", required=True, doc="date of the study (ISO date or decimal year)"),
-        "model": Key("model", None, doc="IGRF-14 (default) or a coefficient file (.shc or WMM .COF)"),
+        "model": Key("model", None, doc="a model name (IGRF-14 default, WMM2015, WMM2015v2, WMM2020, WMM2025, WMMHR2025; "
+                     "see `headingref models`) or a coefficient file (.shc or WMM .COF)"),
         "allow_extrapolation": Key("bool", False, doc="evaluate the model outside its validity (warns)"),
     },
     "routes": {
@@ -147,7 +148,8 @@ class Scenario:
     """A validated scenario.
 
     Each section is a dict of its keys (defaults filled in), or None when the file has no such
-    section. Paths are absolute. ``model`` is None for IGRF-14 or the coefficient file's path.
+    section. Paths are absolute. ``model`` is None for IGRF-14, a model name (str, see
+    :data:`headingref.model.MODEL_NAMES`) or the coefficient file's path.
     """
 
     path: Path
@@ -155,7 +157,7 @@ class Scenario:
     operator: str
     analysis_date: str
     decimal_year: float
-    model: Path | None
+    model: Path | str | None
     allow_extrapolation: bool
     routes: dict | None = None
     zones: dict | None = None
@@ -171,7 +173,7 @@ class Scenario:
 
     @property
     def model_name(self) -> str:
-        return "IGRF-14" if self.model is None else self.model.name
+        return "IGRF-14" if self.model is None else self.model if isinstance(self.model, str) else self.model.name
 
     def input_paths(self) -> list[Path]:
         """Every file the scenario reads: the TOML itself, a coefficient file and each section's files."""
@@ -317,9 +319,14 @@ def _value(value: Any, section: str, key: str, spec: Key, where: str, folder: Pa
         return _path(value, label, spec, where, folder)
     if kind == "model":
         if not isinstance(value, str) or not value.strip():
-            raise InputError(f"{where}: {label} = {value!r}; give \"IGRF-14\" or a coefficient file name")
+            raise InputError(f"{where}: {label} = {value!r}; give a model name (`headingref models`) or a coefficient file name")
         if value.strip().lower() in DEFAULT_MODEL_NAMES:
             return None
+        from .model import model_name
+
+        named = model_name(value.strip())
+        if named is not None:  # a model known by name (headingref.model.MODEL_NAMES)
+            return None if named == "IGRF-14" else named
         return _path(value, label, spec, where, folder)
     if kind == "plans":
         if not isinstance(value, list) or not value or not all(isinstance(v, dict) for v in value):

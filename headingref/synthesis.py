@@ -14,10 +14,13 @@ and their theta-derivatives by the product rule. Geodetic WGS84 input is convert
 radius and colatitude exactly (``p = (N + h) cos(lat)``, ``z = (N (1 - e^2) + h) sin(lat)``), and the
 geocentric (X', Y', Z') is rotated by the angle between the two verticals (WMM2020 report eq. 17).
 
-Two kernels:
+Kernels:
 
-- :func:`scattered`: any points, each with its own time (interval index and offset), order-by-order
-  recursion held in registers so that nothing is allocated per point; parallel over points.
+- :func:`scattered_uniform`: points sharing one coefficient set, in SIMD blocks of 64 points, with
+  the radial factor folded into the recursion, the longitude factored out of the degree sums and
+  the rate sums cut at the highest degree with secular variation (the degree-133 path);
+  :func:`scattered` applies it to points with their own dates (the field is linear in the
+  coefficients), and a point-by-point kernel to a handful of points.
 - :func:`grid_row_terms` + a matrix product: on a regular grid the Legendre part depends only on
   latitude and the trigonometric part only on longitude, so each latitude row reduces to
   ``2 (nmax + 1)`` Fourier coefficients per component, and the whole grid is one BLAS product.
@@ -135,9 +138,38 @@ def _degree_step(a1, a2, st, ct, p1, dp1, p2, dp2):
     return a1 * ct * p1 - a2 * p2, a1 * (ct * dp1 - st * p1) - a2 * dp2
 
 
-@nb.njit(parallel=True, cache=True, fastmath=True)
 def scattered(lat_deg, lon_deg, alt_km, k_index, dt_years, g, h, g_rate, h_rate, k1, k2, diag, a_ref, out):
-    """Field and its rate at scattered points.
+    """Field and its rate at scattered points, each with its own date.
+
+    ``out`` (6, npts) receives X, Y, Z (nT) and dX/dt, dY/dt, dZ/dt (nT/yr), geodetic frame;
+    ``k_index``/``dt_years`` locate each point's date in the model's piecewise-linear intervals.
+    The field is linear in the coefficients, and within interval k they are ``g_k + dt gdot_k``, so
+    ``B(t) = B(g_k) + dt B(gdot_k)``: the points of each interval go through
+    :func:`scattered_uniform` once with ``(g_k, gdot_k)``, and the per-point date is one
+    multiply-add. Fewer points than one SIMD block use the point-by-point kernel.
+    """
+    npts = lat_deg.shape[0]
+    if npts < _BLOCK:
+        _scattered_each(lat_deg, lon_deg, alt_km, k_index, dt_years, g, h, g_rate, h_rate, k1, k2, diag, a_ref, out)
+        return
+    intervals = np.unique(k_index)
+    for k in intervals:
+        if len(intervals) == 1:
+            sel = slice(None)
+            part = out
+        else:
+            sel = np.nonzero(k_index == k)[0]
+            part = np.empty((6, sel.size))
+        scattered_uniform(np.ascontiguousarray(lat_deg[sel]), np.ascontiguousarray(lon_deg[sel]),
+                          np.ascontiguousarray(alt_km[sel]), g[k], h[k], g_rate[k], h_rate[k], k1, k2, diag, a_ref, part)
+        part[:3] += dt_years[sel] * part[3:]
+        if part is not out:
+            out[:, sel] = part
+
+
+@nb.njit(parallel=True, cache=True, fastmath=True)
+def _scattered_each(lat_deg, lon_deg, alt_km, k_index, dt_years, g, h, g_rate, h_rate, k1, k2, diag, a_ref, out):
+    """Field and its rate at scattered points, point by point (few points).
 
     ``out`` (6, npts) receives X, Y, Z (nT) and dX/dt, dY/dt, dZ/dt (nT/yr), geodetic frame.
     ``k_index``/``dt_years`` locate each point's date in the model's piecewise-linear intervals.
@@ -333,95 +365,139 @@ def angles(xyz: np.ndarray, out: np.ndarray, h_undefined_nT: float) -> None:
 _BLOCK = 64
 
 
+@nb.njit(cache=True)
+def _sv_degree(g_rate, h_rate):
+    """Highest degree with a non-zero rate (0 if none): above it the rate sums are skipped."""
+    nmax = g_rate.shape[0] - 1
+    for n in range(nmax, 0, -1):
+        for m in range(n + 1):
+            if g_rate[n, m] != 0.0 or h_rate[n, m] != 0.0:
+                return n
+    return 0
+
+
 @nb.njit(parallel=True, cache=True, fastmath=True)
 def scattered_uniform(lat_deg, lon_deg, alt_km, g, h, g_rate, h_rate, k1, k2, diag, a_ref, out):
-    """As :func:`scattered`, for points that share one date (coefficients ``g``.. at that date,
-    shape (nmax+1, nmax+1)).
+    """Field of one coefficient set ``g, h`` (nT) and of its rates ``g_rate, h_rate`` (nT/yr) at
+    scattered points, shape (nmax+1, nmax+1) each; ``out`` (6, npts) as in :func:`scattered`.
 
-    Points are processed in blocks of 64 with the block as the innermost loop, so the recursion
-    for each (n, m) runs over contiguous rows of one fixed-size scratch array that the compiler
-    turns into SIMD instructions (the last block is padded by repeating its last point). Twice
-    as fast per core as :func:`scattered`.
+    Used for points that share one date (``g``.. the coefficients at that date) and, through
+    :func:`scattered`, for many points with their own dates. Three changes from a term-by-term sum keep the
+    work per (n, m) small: (1) the radial factor is folded into the recursion,
+    ``Q_n^m = (a/r)^(n+2) P_n^m``, ``Q_n^m = K1 (a/r) cos(theta) Q_{n-1}^m - K2 (a/r)^2 Q_{n-2}^m`` (the
+    recursion of the module docstring times (a/r)^(n+2)); (2) for each order m the sums over degree are
+    formed with the Gauss coefficients alone (``sum_n g_nm Q_n^m`` ...) and multiplied by cos(m lon),
+    sin(m lon) once per order (the usual factorisation of the synthesis, e.g. Langel 1987, sec. 4.2);
+    (3) the rate sums stop at the highest degree with secular variation (15 for WMMHR2025). Points are
+    processed in blocks of 64 with the block innermost, so the compiler uses SIMD instructions.
     """
     nmax = g.shape[0] - 1
+    sv = _sv_degree(g_rate, h_rate)
     npts = lat_deg.shape[0]
     nblocks = (npts + _BLOCK - 1) // _BLOCK
     for blk in nb.prange(nblocks):
         start = blk * _BLOCK
         valid = min(_BLOCK, npts - start)
         w = _BLOCK
-        sc = np.empty((23, _BLOCK))
-        st, ct, sin_psi, cos_psi = sc[0], sc[1], sc[2], sc[3]
-        ratio, cl, sl, cm, sm = sc[4], sc[5], sc[6], sc[7], sc[8]
-        pmm, dpmm, rm, rn = sc[9], sc[10], sc[11], sc[12]
-        p1, dp1, p2, dp2 = sc[13], sc[14], sc[15], sc[16]
-        xs, ys, zs, dxs, dys, dzs = sc[17], sc[18], sc[19], sc[20], sc[21], sc[22]
+        sc = np.empty((34, _BLOCK))
+        st, cr, sr, r2 = sc[0], sc[1], sc[2], sc[3]
+        sin_psi, cos_psi, cl, sl, cm, sm = sc[4], sc[5], sc[6], sc[7], sc[8], sc[9]
+        qmm, dqmm, q1, dq1, q2, dq2 = sc[10], sc[11], sc[12], sc[13], sc[14], sc[15]
+        xg, xh, yg, yh, zg, zh = sc[16], sc[17], sc[18], sc[19], sc[20], sc[21]
+        vxg, vxh, vyg, vyh, vzg, vzh = sc[22], sc[23], sc[24], sc[25], sc[26], sc[27]
+        xs, ys, zs, dxs, dys, dzs = sc[28], sc[29], sc[30], sc[31], sc[32], sc[33]
         for b in range(w):
             j = start + min(b, valid - 1)
-            r, st[b], ct[b], sin_psi[b], cos_psi[b] = _geocentric(lat_deg[j], alt_km[j])
-            ratio[b] = a_ref / r
+            r, st[b], ct, sin_psi[b], cos_psi[b] = _geocentric(lat_deg[j], alt_km[j])
+            ratio = a_ref / r
+            cr[b] = ct * ratio
+            sr[b] = st[b] * ratio
+            r2[b] = ratio * ratio
             sl[b], cl[b] = sincos_deg(lon_deg[j])
             cm[b] = 1.0
             sm[b] = 0.0
-            pmm[b] = 1.0
-            dpmm[b] = 0.0
-            rm[b] = ratio[b] * ratio[b]
+            qmm[b] = ratio * ratio  # Q_0^0 = (a/r)^2
+            dqmm[b] = 0.0
             xs[b] = ys[b] = zs[b] = dxs[b] = dys[b] = dzs[b] = 0.0
         for m in range(nmax + 1):
-            if m == 1:
-                for b in range(w):
-                    pmm[b] = st[b]
-                    dpmm[b] = ct[b]
-            elif m >= 2:
-                dm = diag[m]
-                for b in range(w):
-                    pnew = dm * st[b] * pmm[b]
-                    dpmm[b] = dm * (ct[b] * pmm[b] + st[b] * dpmm[b])
-                    pmm[b] = pnew
             if m >= 1:
+                dm = 1.0 if m == 1 else diag[m]
                 for b in range(w):
+                    qnew = dm * sr[b] * qmm[b]
+                    dqmm[b] = dm * (cr[b] * qmm[b] + sr[b] * dqmm[b])
+                    qmm[b] = qnew
                     cnew = cm[b] * cl[b] - sm[b] * sl[b]
                     sm[b] = sm[b] * cl[b] + cm[b] * sl[b]
                     cm[b] = cnew
-                    rm[b] *= ratio[b]
             for b in range(w):
-                p1[b] = pmm[b]
-                dp1[b] = dpmm[b]
-                p2[b] = 0.0
-                dp2[b] = 0.0
-                rn[b] = rm[b]
-            # order 0 starts at degree 1 (there is no degree 0): its first step advances from P_0^0
+                q1[b] = qmm[b]
+                dq1[b] = dqmm[b]
+                q2[b] = 0.0
+                dq2[b] = 0.0
+                xg[b] = xh[b] = yg[b] = yh[b] = zg[b] = zh[b] = 0.0
+                vxg[b] = vxh[b] = vyg[b] = vyh[b] = vzg[b] = vzh[b] = 0.0
             for n in range(max(m, 1), nmax + 1):
                 gv = g[n, m]
                 hv = h[n, m]
-                gr = g_rate[n, m]
-                hr = h_rate[n, m]
+                g1 = (n + 1) * gv
+                h1 = (n + 1) * hv
                 a1 = k1[n, m]
                 a2 = k2[n, m]
-                fm = float(m)
-                fn1 = float(n + 1)
                 step = n > m
-                for b in range(w):
-                    if step:
-                        pn = a1 * ct[b] * p1[b] - a2 * p2[b]
-                        dpn = a1 * (ct[b] * dp1[b] - st[b] * p1[b]) - a2 * dp2[b]
-                        p2[b] = p1[b]
-                        dp2[b] = dp1[b]
-                        p1[b] = pn
-                        dp1[b] = dpn
-                        rn[b] *= ratio[b]
-                    rp = rn[b] * p1[b]
-                    rdp = rn[b] * dp1[b]
-                    cos_part = gv * cm[b] + hv * sm[b]
-                    cos_rate = gr * cm[b] + hr * sm[b]
-                    sin_part = gv * sm[b] - hv * cm[b]
-                    sin_rate = gr * sm[b] - hr * cm[b]
-                    xs[b] += cos_part * rdp
-                    dxs[b] += cos_rate * rdp
-                    ys[b] += fm * sin_part * rp
-                    dys[b] += fm * sin_rate * rp
-                    zs[b] -= fn1 * cos_part * rp
-                    dzs[b] -= fn1 * cos_rate * rp
+                if n <= sv:
+                    gr = g_rate[n, m]
+                    hr = h_rate[n, m]
+                    g1r = (n + 1) * gr
+                    h1r = (n + 1) * hr
+                    for b in range(w):
+                        if step:
+                            qn = a1 * cr[b] * q1[b] - a2 * r2[b] * q2[b]
+                            dqn = a1 * (cr[b] * dq1[b] - sr[b] * q1[b]) - a2 * r2[b] * dq2[b]
+                            q2[b] = q1[b]
+                            dq2[b] = dq1[b]
+                            q1[b] = qn
+                            dq1[b] = dqn
+                        q = q1[b]
+                        dq = dq1[b]
+                        xg[b] += gv * dq
+                        xh[b] += hv * dq
+                        yg[b] += gv * q
+                        yh[b] += hv * q
+                        zg[b] += g1 * q
+                        zh[b] += h1 * q
+                        vxg[b] += gr * dq
+                        vxh[b] += hr * dq
+                        vyg[b] += gr * q
+                        vyh[b] += hr * q
+                        vzg[b] += g1r * q
+                        vzh[b] += h1r * q
+                else:
+                    for b in range(w):
+                        if step:
+                            qn = a1 * cr[b] * q1[b] - a2 * r2[b] * q2[b]
+                            dqn = a1 * (cr[b] * dq1[b] - sr[b] * q1[b]) - a2 * r2[b] * dq2[b]
+                            q2[b] = q1[b]
+                            dq2[b] = dq1[b]
+                            q1[b] = qn
+                            dq1[b] = dqn
+                        q = q1[b]
+                        dq = dq1[b]
+                        xg[b] += gv * dq
+                        xh[b] += hv * dq
+                        yg[b] += gv * q
+                        yh[b] += hv * q
+                        zg[b] += g1 * q
+                        zh[b] += h1 * q
+            fm = float(m)
+            for b in range(w):
+                c = cm[b]
+                s = sm[b]
+                xs[b] += xg[b] * c + xh[b] * s
+                ys[b] += fm * (yg[b] * s - yh[b] * c)
+                zs[b] -= zg[b] * c + zh[b] * s
+                dxs[b] += vxg[b] * c + vxh[b] * s
+                dys[b] += fm * (vyg[b] * s - vyh[b] * c)
+                dzs[b] -= vzg[b] * c + vzh[b] * s
         for b in range(valid):
             i = start + b
             out[0, i] = xs[b] * cos_psi[b] - zs[b] * sin_psi[b]

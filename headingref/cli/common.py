@@ -20,7 +20,9 @@ def add_command(subparsers, name: str, help_text: str, description: str, example
 
 
 def add_model_options(parser: argparse.ArgumentParser) -> None:
-    parser.add_argument("--model", metavar="FILE", help="coefficient file (.shc spherical-harmonic or WMM .COF); default IGRF-14")
+    parser.add_argument("--model", metavar="NAME|FILE",
+                        help="model name (IGRF-14, WMM2015, WMM2015v2, WMM2020, WMM2025, WMMHR2025; see 'headingref models') "
+                             "or coefficient file (.shc spherical-harmonic or WMM .COF); default IGRF-14")
     parser.add_argument(
         "--extrapolate",
         action="store_true",
