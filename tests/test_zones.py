@@ -244,6 +244,11 @@ def test_plot_zone_map_shades_and_outlines():
     grid = heading_error_grid("north", DATE, resolution_deg=1.0, limit_deg=2.0)
     fig = plot_error_map(grid)
     assert f"{grid.attrs['area_exceeding_limit_km2']:,.0f}" in fig.axes[0].get_title()
+    assert not any("Saturated" in t.get_text() for t in fig.axes[0].texts)  # 25 deg bank: slaving cut out
+    # 8 deg of bank, under the cut-out: the drift sits at 3 deg/min x 1 min almost everywhere beyond 2 deg
+    saturated = heading_error_grid("north", DATE, resolution_deg=2.0, bank_angle_deg=8.0)
+    notes = [t.get_text() for t in plot_error_map(saturated).axes[0].texts]
+    assert any("Saturated" in t and "slaving drift" in t for t in notes)
 
 
 def test_cli_zones_budget_map_and_early_option_check(tmp_path, capsys):

@@ -159,8 +159,29 @@ def plot_pole_tracks(tracks, *, title: str | None = None, figsize: tuple[float, 
     return fig
 
 
+_SATURATION_WORDS = {
+    "slaving_rate": "the slaving drift at its ceiling (slaving rate x turn duration)",
+    "residual_field": "the residual aircraft field (at least H: no heading)",
+    "model_uncertainty": "the model uncertainty (capped at 180 deg)",
+}
+
+
+def _saturation_note(ds) -> str:
+    """One sentence when the budget beyond the limit is saturated by one term (hatched), else ''."""
+    term = ds.attrs.get("saturated_by", "none")
+    if term == "none" or "saturated_by" not in ds:
+        return ""
+    share = 100.0 * float(ds.attrs.get("saturated_share_beyond_limit", 0.0))
+    return (f"Saturated (hatched): over {share:.0f}% of the area beyond the limit\nthe budget is set by "
+            f"{_SATURATION_WORDS.get(term, term)};\na larger manoeuvre would not change it.")
+
+
 def plot_error_map(ds, *, title: str | None = None, vmax_deg: float = 10.0, figsize: tuple[float, float] = (7.5, 7.5)):
-    """The combined error budget (root-sum-square, degrees) with the limit contour."""
+    """The combined error budget (root-sum-square, degrees) with the limit contour.
+
+    Where the budget is saturated by one term (``saturated_by`` of
+    :func:`headingref.detector.heading_error_grid`) the map is hatched and a note says which term.
+    """
     from .basemap import draw_coastlines, map_axes
 
     kind = ds.attrs.get("area_kind", "north")
@@ -180,6 +201,13 @@ def plot_error_map(ds, *, title: str | None = None, vmax_deg: float = 10.0, figs
                          shading="nearest", zorder=0.5)
     if np.nanmax(values) > limit > np.nanmin(values):
         ax.contour(x, y, values, levels=[limit], colors="#0b3954", linewidths=1.4, zorder=3)
+    note = _saturation_note(ds)
+    if note:  # hatch where one term sits at its ceiling, and say so
+        saturated = np.asarray(ds["saturated_by"].values) > 0
+        if saturated.any() and not saturated.all():
+            ax.contourf(x, y, saturated.astype(float), levels=[0.5, 1.5], colors="none", hatches=["////"], zorder=2)
+        ax.text(0.01, 0.99, note, transform=ax.transAxes, ha="left", va="top", fontsize=7, zorder=7,
+                bbox={"facecolor": "white", "alpha": 0.85, "edgecolor": "0.6"})
     draw_coastlines(ax, to_map)
     bar = ax.figure.colorbar(mesh, ax=ax, shrink=0.75, extend="max")
     bar.set_label("heading error budget, root-sum-square (deg)")
