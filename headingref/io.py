@@ -11,11 +11,11 @@
 
 from __future__ import annotations
 
+import collections
 import contextlib
 import contextvars
 import csv
 import io as _io
-import math
 import os
 import re
 import shutil
@@ -29,7 +29,7 @@ import numpy as np
 import pandas as pd
 
 from .errors import InputError
-from .units import decimal_year, parse_coordinate
+from .units import decimal_year, parse_coordinate, parse_number
 
 MAX_TABLE_BYTES = 200 * 1024 * 1024
 
@@ -101,7 +101,8 @@ def read_table(
         raise InputError(f"{label} line {reader.line_num}: {exc}") from None
     if header is None:
         raise InputError(f"{label}: no header row; it needs columns {', '.join(required)}")
-    dupes = sorted({name for name in header if header.count(name) > 1 and name})
+    counts = collections.Counter(header)  # linear: a 100,000-column header is checked at once
+    dupes = sorted(name for name, count in counts.items() if count > 1 and name)
     if dupes:
         raise InputError(f"{label}: column(s) {', '.join(dupes)} appear more than once in the header")
     missing = [name for name in required if name not in header]
@@ -144,11 +145,9 @@ def float_column(
             values[i] = default
             continue
         try:
-            value = float(cell.replace("−", "-"))
-        except ValueError:
-            raise InputError(f"{_where(table, line)}: {column} {cell!r} is not a number") from None
-        if not math.isfinite(value):
-            raise InputError(f"{_where(table, line)}: {column} {cell!r} is not a finite number")
+            value = parse_number(cell, column)
+        except InputError as exc:
+            raise InputError(f"{_where(table, line)}: {exc}") from None
         if (low is not None and value < low) or (high is not None and value > high):
             raise InputError(
                 f"{_where(table, line)}: {column} {cell!r} is outside {low:g} to {high:g}{(' ' + unit) if unit else ''}"

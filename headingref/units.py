@@ -55,6 +55,49 @@ NAUTICAL_MILE_M = 1852.0  # international nautical mile, exact by definition (19
 _DATE_HELP = "an ISO date such as 2026-12-02 (optionally with a time), or a decimal year such as 2026.92"
 
 
+# One strict reading of a number for everything a user types or a CSV holds: plain ASCII decimal,
+# an optional sign (the typographic minus U+2212 too), an optional exponent, surrounding blanks.
+# Python's float() is far more lenient: it takes "6_1" as 61, Arabic-Indic and full-width digits,
+# "nan" and "inf"; a typo or a locale quirk would then pass as a valid value.
+_NUMBER_RE = re.compile(r"[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]+)?", re.ASCII)
+NUMBER_HELP = "a plain decimal number such as 12, -3.5 or 1.2e3"
+
+
+def is_number_text(text: str) -> bool:
+    """True if ``text`` (blanks and a U+2212 minus allowed) is a plain ASCII decimal number."""
+    return bool(_NUMBER_RE.fullmatch(text.strip().replace("\u2212", "-")))
+
+
+def parse_number(text: Any, what: str = "value", *, allow_nan: bool = False) -> float:
+    """Read one number strictly and return it as a finite float.
+
+    Accepted: plain ASCII decimal digits with an optional sign, decimal point and exponent
+    (``12``, ``-3.5``, ``+.5``, ``1.2e3``, ``−4`` with the typographic minus), blanks around.
+    Refused with an :class:`InputError` naming ``what``: digit group underscores (``6_1``), digits
+    of other scripts (Arabic-Indic, full-width), hexadecimal, ``nan`` and ``inf`` (``allow_nan``
+    lets ``nan`` through for a parameter that documents it), and finite text that overflows.
+    Numbers (int, float, numpy) pass through the same finiteness check; bool is refused.
+    """
+    if isinstance(text, (bool, np.bool_)):
+        raise InputError(f"{what} {text!r} is not a number; give {NUMBER_HELP}")
+    if isinstance(text, (int, float, np.integer, np.floating)):
+        value = float(text)
+    elif isinstance(text, str):
+        cleaned = text.strip().replace("\u2212", "-")
+        if allow_nan and cleaned.lower() == "nan":
+            return math.nan
+        if not _NUMBER_RE.fullmatch(cleaned):
+            raise InputError(f"{what} {text!r} is not a number; give {NUMBER_HELP}")
+        value = float(cleaned)
+    else:
+        raise InputError(f"{what} {text!r} of type {type(text).__name__} is not a number; give {NUMBER_HELP}")
+    if math.isnan(value) and allow_nan:
+        return value
+    if not math.isfinite(value):
+        raise InputError(f"{what} {text!r} is not a finite number; give {NUMBER_HELP}")
+    return value
+
+
 def _as_datetime64(value: Any) -> np.datetime64 | None:
     """Return a UTC naive datetime64[us] for a date-like scalar, None for a number."""
     if isinstance(value, (bool, np.bool_)):
@@ -63,11 +106,7 @@ def _as_datetime64(value: Any) -> np.datetime64 | None:
         return None
     if isinstance(value, str):
         text = value.strip()
-        try:
-            float(text)
-        except ValueError:
-            pass
-        else:
+        if is_number_text(text):
             return None
         if not re.match(r"^\d{4}-\d{1,2}(-\d{1,2})?([ T].*)?$", text):
             raise InputError(f"date {value!r} is not understood; give {_DATE_HELP}")
@@ -117,7 +156,7 @@ def decimal_year(dates: Any) -> np.ndarray | float:
             value = value.item()
         dt64 = _as_datetime64(value)
         if dt64 is None:
-            year = float(value)
+            year = float(value.strip().replace("\u2212", "-")) if isinstance(value, str) else float(value)
             if not math.isfinite(year) or not 1000.0 <= year <= 3000.0:
                 raise InputError(f"date {value!r} is not a plausible decimal year; give {_DATE_HELP}")
             return year
@@ -163,15 +202,12 @@ _COORD_RE = re.compile(
         (?:(?P<min>\d+(?:[.,]\d*)?)\s*(?:′|'|’|m|min|:|\s)?\s*)?
         (?:(?P<sec>\d+(?:[.,]\d*)?)\s*(?:″|"|”|''|s|sec)?\s*)?
         (?P<post>[NSEWnsew])?\s*$""",
-    re.VERBOSE,
+    re.VERBOSE | re.ASCII,  # \d: ASCII digits only (not Arabic-Indic or full-width ones)
 )
 
 
 def _plain_number(text: str) -> float | None:
-    try:
-        return float(text.strip().replace("−", "-"))
-    except ValueError:
-        return None
+    return float(text.strip().replace("−", "-")) if is_number_text(text) else None
 
 
 _COMPACT_RE = re.compile(r"^\s*(?P<pre>[NSEWnsew])?(?P<digits>\d{4,7})(?P<frac>[.,]\d+)?(?P<post>[NSEWnsew])?\s*$", re.ASCII)
@@ -314,7 +350,7 @@ def _parse_coordinate_match(match: re.Match, raw: str, name: str, letters: str) 
 _HEIGHT_RE = re.compile(
     r"^\s*(?:(?P<fl>FL)\s*(?P<flnum>\d{1,3})(?:\s+ISA\s*(?P<dt>[-+−]\s*\d+(?:\.\d*)?)\s*(?:K|C|°C)?)?"
     r"|(?P<num>[-+]?\d+(?:\.\d*)?(?:[eE][-+]?\d+)?|[-+]?\.\d+)\s*(?P<unit>km|m|ft|feet|')?)\s*$",
-    re.IGNORECASE,
+    re.IGNORECASE | re.ASCII,  # \d: ASCII digits only
 )
 
 HEIGHT_MIN_KM = -1.0

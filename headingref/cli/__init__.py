@@ -22,7 +22,9 @@ COMMANDS = ["field", "route", "zones", "poles", "base", "swing", "runways", "nav
 
 
 def build_parser() -> argparse.ArgumentParser:
-    parser = argparse.ArgumentParser(
+    from .common import OneLineParser
+
+    parser = OneLineParser(
         prog="headingref",
         description="Geomagnetic variation and heading-reference workbench (IGRF-14 / WMM).",
         epilog=CAUTION,

@@ -8,15 +8,59 @@ import contextlib
 from ..notices import CAUTION
 
 
+class OneLineParser(argparse.ArgumentParser):
+    """An ArgumentParser whose refusals are one line, like every other headingref error.
+
+    argparse prints the whole usage block before its message; headingref prints
+    ``headingref COMMAND: error: ...`` and points to ``--help`` instead (status 2, as argparse).
+    """
+
+    def error(self, message: str):
+        self.exit(2, f"{self.prog}: error: {strip_controls(message)} (see {self.prog} --help)\n")
+
+
 def add_command(subparsers, name: str, help_text: str, description: str, examples: str) -> argparse.ArgumentParser:
-    """Add a sub-command whose help ends with examples and the safety caution."""
-    return subparsers.add_parser(
+    """Add a sub-command whose help ends with examples and the safety caution.
+
+    Its options declared ``type=float`` or ``type=int`` are read strictly (:func:`strict_float`,
+    :func:`strict_int`), not by Python's lenient ``float``/``int``.
+    """
+    parser = subparsers.add_parser(
         name,
         help=help_text,
         description=description,
         epilog=f"examples:\n{examples}\n\n{CAUTION}",
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
+    # argparse looks a ``type`` up in the parser's registry before calling it ("type" registry,
+    # argparse.ArgumentParser.register), so every float/int option of every command goes through here.
+    parser.register("type", float, strict_float)
+    parser.register("type", int, strict_int)
+    return parser
+
+
+def strict_float(text: str) -> float:
+    """Option value as a finite float: plain ASCII decimal only (``headingref.units.parse_number``).
+
+    Python's ``float`` would take ``6_1``, Arabic-Indic or full-width digits, and ``nan`` (which
+    turns a limit such as ``--max-deviation`` off: every comparison with NaN is false).
+    """
+    from ..errors import InputError
+    from ..units import NUMBER_HELP, parse_number
+
+    try:
+        return parse_number(text, "value")
+    except InputError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a plain finite number; give {NUMBER_HELP}") from None
+
+
+def strict_int(text: str) -> int:
+    """Option value as an integer written in plain ASCII digits (an optional sign)."""
+    import re
+
+    if not re.fullmatch(r"[+-]?[0-9]+", text.strip(), flags=re.ASCII):
+        raise argparse.ArgumentTypeError(f"{text!r} is not a whole number in plain digits (such as 20)")
+    return int(text)
 
 
 def add_model_options(parser: argparse.ArgumentParser) -> None:

@@ -25,6 +25,7 @@ import numpy as np
 from ..errors import InputError
 from ..runways import RunwayCheck, designator_from_magnetic, format_designator, magnetic_bearing_series
 from ..units import decimal_year
+from . import plain_text
 from .swing import save_figure
 
 __all__ = ["choose_rows", "runway_bearing_figure", "save_figure"]
@@ -133,7 +134,7 @@ def runway_bearing_figure(result: RunwayCheck, runways: Sequence[str] | None = N
         f"±{tolerance:g}° 'on boundary' band",
         fontsize=9,
     )
-    return fig
+    return plain_text(fig)  # airport and runway names from the user's table are drawn as typed
 
 
 def _wrapped_degrees_text(value: float, _position=None) -> str:
