@@ -22,6 +22,14 @@ KEY, TITLE, TOPIC = "zones", "Weak-field zones and magnetic poles", "zones"
 _POLE_COLUMNS = {"date": "date", "pole": "pole", "kind": "kind", "lat": "lat °", "lon": "lon °", "horizontal_nT": "H at point nT"}
 
 
+def _area_header(column: str) -> str:
+    """'area_km2_2016-12-02' -> 'area 2016-12-02 km²'; units as the other tables show them."""
+    if column.startswith("area_km2_"):
+        return f"area {column.removeprefix('area_km2_')} km²"
+    return {"area_km2": "area km²", "change_km2": "change km²", "change_percent": "change %", "lower_nT": "from nT",
+            "upper_nT": "below nT", "decimal_year": "decimal year"}.get(column, column)
+
+
 def cap_area(ctx: Context) -> tuple[float, float, float, float]:
     """(lat_min, lat_max, lon_min, lon_max) of the scenario's cap."""
     z = ctx.scenario.zones
@@ -64,7 +72,7 @@ def job(ctx: Context) -> Section:
                 "A flux-gate detector senses only H; as H falls its signal shrinks and any disturbing field turns the sensed "
                 "direction further. Poles: dip poles where H = 0; geomagnetic poles of the centred dipole."],
                 figures=[figure_from(figure, "weak-field zone map", "Weak-field zones, pole tracks and routes.")]),
-            Part("Zone areas", tables=[Table(areas)]),
+            Part("Zone areas", tables=[Table(areas, {c: _area_header(c) for c in areas.columns})]),
             Part("Poles", tables=[Table(poles, _POLE_COLUMNS)]),
         ],
         files=[OutputFile("zones.geojson", collection), OutputFile("zone_areas.csv", areas),
