@@ -11,7 +11,8 @@ samples (:func:`headingref.field.field_arrays`). Sign conventions are those of
 
 Public API
 ----------
-:func:`route` -> :class:`RouteResult` ``(legs, samples)``; :func:`read_waypoints`;
+:func:`route` -> :class:`RouteResult` ``(legs, samples)``; :func:`read_waypoints` (CSV, and GPX,
+KML or GeoJSON through :mod:`headingref.route_files`);
 :func:`route_geojson` (legs as GeoJSON lines cut at the antimeridian, RFC 7946 3.1.9);
 :func:`rhumb_inverse`, :func:`meridian_distance_m` (the rhumb-line pieces).
 
@@ -47,6 +48,7 @@ import pyproj
 from .errors import InputError
 from .headings import grivation_deg, normalize_heading, resolve_grid, warn_if_far_from_pole, wrap_angle
 from .io import coordinate_column, read_table
+from .route_files import ROUTE_FILE_SUFFIXES, read_route_file
 from .units import NAUTICAL_MILE_M, ROUTE_HEIGHT_MAX_KM, decimal_year, height_column, parse_coordinate, parse_height_km
 
 __all__ = ["LEG_COLUMNS", "SAMPLE_COLUMNS", "RouteResult", "meridian_distance_m", "read_waypoints", "rhumb_inverse", "route", "route_geojson"]
@@ -111,7 +113,7 @@ def _waypoints_from_records(waypoints: Any) -> tuple[list, np.ndarray, np.ndarra
         else:
             raise InputError(f"{label}: {rec!r} is not understood; give a dict with name, lat, lon[, alt]")
         name = f"WP{i + 1}" if _blank(name) else str(name)
-        label = f"waypoint {i + 1} ({name})"
+        label = str(rec["where"]) if isinstance(rec, dict) and rec.get("where") else f"waypoint {i + 1} ({name})"
         try:
             lat_list.append(parse_coordinate(la, "lat"))
             lon_list.append(parse_coordinate(lo, "lon"))
@@ -124,7 +126,7 @@ def _waypoints_from_records(waypoints: Any) -> tuple[list, np.ndarray, np.ndarra
     return names, np.array(lat_list, dtype=np.float64), np.array(lon_list, dtype=np.float64), heights, units, where
 
 
-def read_waypoints(waypoints: Any, alt_km: float = 0.0) -> pd.DataFrame:
+def read_waypoints(waypoints: Any, alt_km: float = 0.0, route_name: str | None = None) -> pd.DataFrame:
     """Waypoints as a DataFrame ``name, lat_deg, lon_deg, alt_km, where``.
 
     ``waypoints`` is a CSV path (columns ``name, lat, lon`` and an optional height column),
@@ -135,7 +137,15 @@ def read_waypoints(waypoints: Any, alt_km: float = 0.0) -> pd.DataFrame:
     a bare number there is refused). Heights above 30 km
     (:data:`headingref.units.ROUTE_HEIGHT_MAX_KM`) are refused as unit slips. A missing
     height takes ``alt_km``. ``where`` names the row for error messages.
+
+    A path ending in ``.gpx``, ``.kml``, ``.geojson`` or ``.json`` is read by
+    :func:`headingref.route_files.read_route_file` (heights in metres as those formats define
+    them); ``route_name`` picks one of several routes, tracks or lines there.
     """
+    if isinstance(waypoints, (str, os.PathLike)) and Path(waypoints).suffix.lower() in ROUTE_FILE_SUFFIXES:
+        waypoints = read_route_file(waypoints, route_name)
+    elif route_name is not None:
+        raise InputError(f"route name {route_name!r} applies to GPX, KML or GeoJSON files, not to {waypoints!r}")
     if isinstance(waypoints, (str, os.PathLike)):
         table = read_table(Path(waypoints), required=["name", "lat", "lon"], optional=["alt", "alt_ft", "alt_m", "alt_km"],
                            what="route")
@@ -539,6 +549,7 @@ def route(
     path: str = "geodesic",
     model: Any = None,
     allow_extrapolation: bool = False,
+    route_name: str | None = None,
 ) -> RouteResult:
     """Legs and samples of a route in true, magnetic and grid references, with the field along it.
 
@@ -564,6 +575,8 @@ def route(
     path : ``"geodesic"`` or ``"rhumb"``
     model : Model, optional
         Field model (default IGRF-14).
+    route_name : str, optional
+        Which route, track or line of a GPX, KML or GeoJSON file (one of several).
 
     Returns
     -------
@@ -583,7 +596,7 @@ def route(
         (normal < caution < blackout) in both tables.
     """
     spacing = _check_options(path, spacing_nm)
-    wps = read_waypoints(waypoints, alt_km=parse_height_km(alt_km, max_km=ROUTE_HEIGHT_MAX_KM))
+    wps = read_waypoints(waypoints, alt_km=parse_height_km(alt_km, max_km=ROUTE_HEIGHT_MAX_KM), route_name=route_name)
     year = decimal_year(date)
     legs = _leg_geometry(wps, path)
     track = _sample_track(legs, spacing)

@@ -91,7 +91,9 @@ SCHEMA: dict[str, dict[str, Key]] = {
     },
     "routes.plan": {
         "name": Key("str", required=True, doc="route name"),
-        "file": Key("path", required=True, doc="waypoint CSV: name, lat, lon[, alt with a unit, or alt_ft, alt_m, alt_km]"),
+        "file": Key("path", required=True, doc="waypoint CSV (name, lat, lon[, alt with a unit, or alt_ft, alt_m, alt_km]) "
+                    "or a GPX, KML or GeoJSON route file"),
+        "route": Key("str", None, doc="which route, track or line of a GPX/KML/GeoJSON file holding several"),
         "grid": Key("grid", None, doc="this route's grid (default: the [routes] grid)"),
         "alt": Key("height", None, high=30.0, doc="this route's altitude of waypoints that give none (default: the [routes] alt)"),
     },
@@ -198,6 +200,7 @@ class Scenario:
             "grid": plan["grid"] if plan.get("grid") is not None else pick["grid"],
             "spacing_nm": pick["spacing_nm"],
             "path": pick["path"],
+            "route_name": plan.get("route"),
         }
 
     def heading_error_options(self, manoeuvre: bool = True) -> dict:

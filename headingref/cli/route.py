@@ -6,7 +6,8 @@ EXAMPLES = """\
   headingref route --input route.csv --date 2026-12-02 --output legs.csv
   headingref route --input route.csv --date 2026-12-02 --grid polar:-45 --spacing 5 --alt FL350 \\
       --output legs.csv --samples samples.csv --geojson route.geojson --plot route.png --profile profile.png
-  headingref route --input route.csv --date 2027.5 --rhumb --grid lcc:60,75,15 --output legs.csv"""
+  headingref route --input route.csv --date 2027.5 --rhumb --grid lcc:60,75,15 --output legs.csv
+  headingref route --input plan.gpx --route "TM101" --date 2026-12-02 --output legs.csv"""
 
 
 def register(subparsers) -> None:
@@ -28,7 +29,9 @@ def register(subparsers) -> None:
         ),
         examples=EXAMPLES,
     )
-    parser.add_argument("--input", required=True, metavar="CSV", help="waypoints in order: name, lat, lon [, alt]")
+    parser.add_argument("--input", required=True, metavar="FILE",
+                        help="waypoints in order: a CSV (name, lat, lon [, alt]) or a GPX, KML or GeoJSON route file")
+    parser.add_argument("--route", metavar="NAME", help="which route, track or line of a GPX/KML/GeoJSON file holding several")
     parser.add_argument("--date", required=True, help="date of the flight (YYYY-MM-DD or decimal year)")
     parser.add_argument(
         "--grid",
@@ -74,7 +77,7 @@ def run(args) -> int:
     import json
 
     from ..field import BLACKOUT_NT, CAUTION_NT
-    from ..io import write_csv, write_text
+    from ..io import all_or_nothing, write_csv, write_text
     from ..notices import CAUTION
     from ..routes import route, route_geojson
     from .common import check_outputs
@@ -90,6 +93,7 @@ def run(args) -> int:
         path="rhumb" if args.rhumb else "geodesic",
         model=args.model,
         allow_extrapolation=args.extrapolate,
+        route_name=args.route,
     )
     legs = result.legs
     geojson_text = json.dumps(route_geojson(result), indent=1) if args.geojson else None
@@ -108,19 +112,20 @@ def run(args) -> int:
             print(text)
     print(CAUTION)
 
-    write_csv(args.output, legs)
-    if args.samples:
-        write_csv(args.samples, result.samples)
-    if geojson_text is not None:
-        write_text(args.geojson, geojson_text + "\n")
-    if args.plot or args.profile:
-        import matplotlib
+    with all_or_nothing():  # every output, or none (a full disk half-way leaves the old files)
+        write_csv(args.output, legs)
+        if args.samples:
+            write_csv(args.samples, result.samples)
+        if geojson_text is not None:
+            write_text(args.geojson, geojson_text + "\n")
+        if args.plot or args.profile:
+            import matplotlib
 
-        matplotlib.use("Agg")
-        from ..plots.route import plot_route_map, plot_route_profile, save_figure
+            matplotlib.use("Agg")
+            from ..plots.route import plot_route_map, plot_route_profile, save_figure
 
-        if args.plot:
-            save_figure(plot_route_map(result, model=args.model), args.plot)
-        if args.profile:
-            save_figure(plot_route_profile(result), args.profile)
+            if args.plot:
+                save_figure(plot_route_map(result, model=args.model), args.plot)
+            if args.profile:
+                save_figure(plot_route_profile(result), args.profile)
     return 0
