@@ -23,6 +23,7 @@ from typing import Any
 
 import numpy as np
 
+from ..geogrid import CAPS
 from .route import save_figure
 
 __all__ = ["plot_zone_map", "plot_pole_tracks", "plot_error_map", "save_figure"]
@@ -33,7 +34,7 @@ _TRACK_STYLE = {"dip": {"color": "#3a0ca3", "marker": "o"}, "geomagnetic": {"col
 
 def _map_for(ds) -> tuple[str, Any]:
     kind = ds.attrs.get("area_kind", "north")
-    lat_min, lat_max, lon_min, lon_max = ds.attrs.get("area_bounds", [50.0, 90.0, -180.0, 180.0])
+    lat_min, lat_max, lon_min, lon_max = ds.attrs.get("area_bounds", list(CAPS["north"].bounds()))
     if kind == "north":
         return kind, lat_min
     if kind == "south":
@@ -110,7 +111,7 @@ def plot_zone_map(ds, *, tracks=None, title: str | None = None, figsize: tuple[f
     from .basemap import draw_geojson, map_axes, plot_lonlat
 
     kind, extent = _map_for(ds)
-    bounds = list(ds.attrs.get("area_bounds", [50.0, 90.0, -180.0, 180.0]))
+    bounds = list(ds.attrs.get("area_bounds", list(CAPS["north"].bounds())))
     ax, to_map = map_axes(kind, extent, figsize=figsize)
     collection = zone_geojson(ds)
     dates = sorted({f["properties"]["date"] for f in collection["features"]}, reverse=shade_latest)
@@ -149,7 +150,8 @@ def plot_pole_tracks(tracks, *, title: str | None = None, figsize: tuple[float, 
     fig, axes = plt.subplots(1, 2, figsize=figsize)
     for ax, hemisphere in zip(axes, ("north", "south"), strict=True):
         part = tracks[tracks.pole == hemisphere]
-        edge = float(np.floor(min(np.abs(part.lat).min() - 5.0, 60.0) / 5.0) * 5.0) if len(part) else 60.0
+        cap_edge = CAPS[hemisphere].edge_lat_deg
+        edge = float(np.floor(min(np.abs(part.lat).min() - 5.0, cap_edge) / 5.0) * 5.0) if len(part) else cap_edge
         ax, to_map = map_axes(hemisphere, edge, ax=ax)
         _draw_tracks(ax, to_map, part, hemisphere)
         if ax.get_legend_handles_labels()[0]:  # nothing labelled (e.g. one date, or no pole in this cap)
