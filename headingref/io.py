@@ -256,8 +256,16 @@ def _same_file(fd: int, path: Path) -> bool:
 
 
 def _cannot_write(target: Path, exc: BaseException) -> InputError:
-    reason = getattr(exc, "strerror", None) or str(exc) or type(exc).__name__
-    return InputError(f"cannot write {str(target)!r}: {reason}")
+    return InputError(f"cannot write {str(target)!r}: {one_line_reason(exc)}")
+
+
+def one_line_reason(exc: BaseException) -> str:
+    """The reason of a system error on one line: its strerror, else its text with line breaks folded.
+
+    Some writers (HDF5 through h5py) put a multi-line report in the message of an OSError.
+    """
+    reason = " ".join(str(getattr(exc, "strerror", None) or exc).split()) or type(exc).__name__
+    return reason if len(reason) <= 300 else reason[:297] + "..."
 
 
 @contextlib.contextmanager

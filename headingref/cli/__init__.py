@@ -18,7 +18,7 @@ import warnings
 from ..errors import HeadingrefError, HeadingrefWarning
 from ..notices import CAUTION
 
-COMMANDS = ["field", "route", "zones", "poles", "base", "swing", "runways", "navaids", "report", "demo"]
+COMMANDS = ["field", "route", "zones", "poles", "base", "swing", "runways", "navaids", "report", "demo", "models", "compare"]
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -50,6 +50,7 @@ def _show_warning(message, category, filename, lineno, file=None, line=None):
 
 
 def main(argv: list[str] | None = None) -> int:
+    from ..io import one_line_reason
     from .common import ConsoleText, Terminated, empty_option, sigterm_as_interrupt
 
     parser = build_parser()
@@ -67,7 +68,14 @@ def main(argv: list[str] | None = None) -> int:
     try:
         with sigterm_as_interrupt():
             result = args.func(args)
-            sys.stdout.flush()  # a full disk or closed stream behind stdout shows here, not at exit
+            try:
+                sys.stdout.flush()  # a full disk or closed stream behind stdout shows here, not at exit
+            except BrokenPipeError:
+                raise
+            except OSError as exc:
+                _silence(stdout)
+                print(f"headingref {args.command}: error: writing to standard output: {one_line_reason(exc)}", file=sys.stderr)
+                return 2
     except HeadingrefError as exc:
         print(f"headingref {args.command}: error: {exc}", file=sys.stderr)
         return 2
@@ -87,10 +95,10 @@ def main(argv: list[str] | None = None) -> int:
         where = f" {exc.filename}:" if exc.filename else ""
         try:
             stdout.flush()
-        except (OSError, ValueError):
+        except (OSError, ValueError):  # the error came from a print to a full or closed stdout
             where = " writing to standard output:"
             _silence(stdout)
-        print(f"headingref {args.command}: error:{where} {exc.strerror or exc}", file=sys.stderr)
+        print(f"headingref {args.command}: error:{where} {one_line_reason(exc)}", file=sys.stderr)
         return 2
     finally:
         sys.stdout, sys.stderr = stdout, stderr

@@ -15,15 +15,22 @@ EXAMPLES = """\
   headingref swing --input four_cardinal.csv --coefficients ABCE"""
 
 
-def finite_float(text: str) -> float:
-    """argparse type: a plain finite decimal number (refuses nan, inf, 1_0 and non-ASCII digits)."""
-    import argparse
+def finite_float(text, what: str = "value") -> float:
+    """A plain finite decimal number (refuses nan, inf, 1_0, exponents and non-ASCII digits), or
+    InputError naming the option: a one-line error, not argparse's usage block."""
     import re
 
     cleaned = str(text).strip().replace("−", "-")
     if not re.fullmatch(r"[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)", cleaned):
-        raise argparse.ArgumentTypeError(f"{text!r} is not a plain finite decimal number (e.g. 10 or 2.5)")
+        raise InputError(f"{what} {text!r} is not a plain finite decimal number (e.g. 10 or 2.5)")
     return float(cleaned)
+
+
+def option_number(value, what: str):
+    """An option's value through :func:`finite_float` (None and numbers already parsed pass through)."""
+    if value is None or isinstance(value, float):
+        return value
+    return finite_float(value, what)
 
 
 def number_list(text: str, what: str) -> list[float]:
@@ -33,7 +40,7 @@ def number_list(text: str, what: str) -> list[float]:
         raise InputError(f"{what} {text!r} is empty; give comma-separated numbers such as 0,30,60")
     try:
         return [finite_float(item) for item in items]
-    except Exception:
+    except InputError:
         raise InputError(f"{what} {text!r}: give comma-separated plain finite numbers such as 0,30,60") from None
 
 
@@ -56,11 +63,11 @@ def register(subparsers) -> None:
     )
     parser.add_argument("--input", required=True, metavar="CSV", help="swing readings (heading and compass reading or deviation columns)")
     parser.add_argument(
-        "--limit", type=finite_float, default=10.0, metavar="DEG",
+        "--limit", default="10", metavar="DEG",
         help="largest deviation allowed as measured (default 10, 14 CFR 23/25/29.1327; tighter for remote-indicating systems)",
     )
     parser.add_argument(
-        "--compensated-limit", type=finite_float, default=None, metavar="DEG",
+        "--compensated-limit", default=None, metavar="DEG",
         help="largest residual allowed after B and C are removed (default: --limit)",
     )
     parser.add_argument(
@@ -72,7 +79,7 @@ def register(subparsers) -> None:
     parser.add_argument("--coefficients", default="ABCDE", help="coefficients to fit (default ABCDE; ABCE for four cardinal headings)")
     parser.add_argument("--card-headings", metavar="LIST", help="magnetic headings on the card (default 0,30,...,330)")
     parser.add_argument("--compensated", action="store_true", help="make the card for the compass after B and C are removed (keeps A, D, E)")
-    parser.add_argument("--max-deviation", type=finite_float, default=30.0, metavar="DEG", help="refuse readings further than this from their heading (default 30)")
+    parser.add_argument("--max-deviation", default="30", metavar="DEG", help="refuse readings further than this from their heading (default 30)")
     parser.add_argument("--date", help="date of the swing (YYYY-MM-DD), printed on the card")
     parser.add_argument("--aircraft", default="", help="aircraft registration, printed on the card")
     parser.add_argument("--compass", default="", help="compass type and serial number, printed on the card")
@@ -108,7 +115,7 @@ def _details(args, result_date):
 
 
 def run(args) -> int:
-    from ..io import write_csv, write_text
+    from ..io import all_or_nothing, write_csv, write_text
     from ..swing import analyse_swing, card_html, read_swing_csv
     from .common import check_outputs
 
@@ -117,18 +124,20 @@ def run(args) -> int:
     if args.date is not None and not args.date.strip():
         raise InputError("--date is empty; give the swing date as YYYY-MM-DD")
     magnetic, compass, rows = read_swing_csv(args.input)
-    card_headings = number_list(args.card_headings, "--card-headings") if args.card_headings else None
+    card_headings = number_list(args.card_headings, "--card-headings (card headings)") if args.card_headings else None
+    limits = {name: option_number(getattr(args, attr), option) for name, attr, option in (
+        ("limit_deg", "limit", "--limit"), ("compensated_limit_deg", "compensated_limit", "--compensated-limit"),
+        ("max_plausible_deviation_deg", "max_deviation", "--max-deviation"))}
     result = analyse_swing(
         magnetic,
         compass,
-        limit_deg=args.limit,
-        compensated_limit_deg=args.compensated_limit,
+        **{k: v for k, v in limits.items() if k != "max_plausible_deviation_deg"},
         verdict_on=args.verdict_on,
         method=args.method,
         card_headings_deg=card_headings,
         coefficients=args.coefficients,
         card_after_compensation=args.compensated,
-        max_plausible_deviation_deg=args.max_deviation,
+        max_plausible_deviation_deg=limits["max_plausible_deviation_deg"],
         rows=rows,
     )
     details = _details(args, args.date)
@@ -158,19 +167,20 @@ def run(args) -> int:
     print(f"correction card, curve {result.card_terms()}:")
     print("  for magnetic  " + " ".join(result.card.for_magnetic))
     print("  steer compass " + " ".join(result.card.steer_compass))
-    if args.output:
-        write_csv(args.output, result.summary_row())
-    if args.card:
-        write_csv(args.card, result.card)
-    if args.residuals:
-        write_csv(args.residuals, result.readings)
-    if args.card_html:
-        write_text(args.card_html, card_html(result, details))
-    if args.plot or args.card_plot:
-        from ..plots.swing import card_figure, deviation_figure, save_figure
+    with all_or_nothing():  # every output, or none
+        if args.output:
+            write_csv(args.output, result.summary_row())
+        if args.card:
+            write_csv(args.card, result.card)
+        if args.residuals:
+            write_csv(args.residuals, result.readings)
+        if args.card_html:
+            write_text(args.card_html, card_html(result, details))
+        if args.plot or args.card_plot:
+            from ..plots.swing import card_figure, deviation_figure, save_figure
 
-        if args.plot:
-            save_figure(deviation_figure(result), args.plot)
-        if args.card_plot:
-            save_figure(card_figure(result, details=details), args.card_plot)
+            if args.plot:
+                save_figure(deviation_figure(result), args.plot)
+            if args.card_plot:
+                save_figure(card_figure(result, details=details), args.card_plot)
     return 0

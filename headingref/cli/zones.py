@@ -106,7 +106,7 @@ def save_plot(function_name: str, data, target: str) -> None:
 
 
 def run(args) -> int:
-    from ..io import atomic_path
+    from ..io import all_or_nothing, atomic_path
     from ..notices import CAUTION
     from ..units import parse_height_km
     from ..zones import write_geojson, zone_areas, zone_change, zone_geojson, zones
@@ -140,17 +140,18 @@ def run(args) -> int:
     place = f"{args.cap} cap" if args.cap else f"region {args.region}"
     print(f"Weak-field zones, {place}, grid {args.resolution:g} deg, model {ds.attrs.get('model', 'IGRF-14')} (areas in km^2)")
     print(text)
-    if args.geojson:
-        write_geojson(args.geojson, collection)
-        print(f"wrote {args.geojson} ({len(collection['features'])} features)")
-    if args.netcdf:
-        with atomic_path(args.netcdf) as tmp:
-            ds.to_netcdf(tmp, engine="h5netcdf")
-        print(f"wrote {args.netcdf}")
-    if args.png:
-        save_plot("plot_zone_map", ds, args.png)
-    if args.budget_png:
-        _budget_map(args, area)
+    with all_or_nothing():  # every output, or none
+        if args.geojson:
+            write_geojson(args.geojson, collection)
+            print(f"wrote {args.geojson} ({len(collection['features'])} features)")
+        if args.netcdf:
+            with atomic_path(args.netcdf) as tmp:
+                ds.to_netcdf(tmp, engine="h5netcdf")
+            print(f"wrote {args.netcdf}")
+        if args.png:
+            save_plot("plot_zone_map", ds, args.png)
+        if args.budget_png:
+            _budget_map(args, area)
     print("\n" + CAUTION, file=sys.stderr)
     return 0
 
