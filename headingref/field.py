@@ -11,14 +11,27 @@ Conventions: geodetic WGS84 latitude/longitude (degrees) and height above the el
 declination east positive, inclination down positive; X north, Y east, Z down (nT); rates per
 year are analytic (from the coefficients' slopes), not differences of two dates.
 
-Declination uncertainty follows the model's own error model, ``sqrt(a^2 + (b/H)^2)`` degrees with H
-in nT and a, b of the WMM edition (its technical report's uncertainty section; for IGRF the WMM edition
-of the same epoch as a labelled proxy, NaN before 2015; see :func:`headingref.model.error_spans_for`);
-tables and grids name it in the attribute ``declination_uncertainty_model``. Zones follow the WMM
+Declination uncertainty follows the WMM error model, ``sqrt(0.26^2 + (5417/H)^2)`` degrees with H
+in nT (WMM2020 and WMM2025 technical reports, section on uncertainty). Zones follow the same
 reports: ``blackout`` where H < 2000 nT (compasses unreliable), ``caution`` where 2000 <= H < 6000 nT,
 else ``normal``. Declination is undefined at the geographic poles and where H = 0 (below
-0.01 nT here): it is NaN there, with the reason in ``declination_flag``, and a warning is issued;
-where H is below 0.01 nT the declination uncertainty is infinite (the error model's limit).
+0.01 nT here): it is NaN there, with the reason in ``declination_flag``, and a warning is issued.
+
+Near a dip pole the declination is defined but gives no heading. Where H < 100 nT
+(:data:`NO_DECLINATION_NT`) ``declination_flag`` reads "no usable declination: H below 100 nT",
+the declination uncertainty is 180 degrees (:data:`NO_HEADING_DEG`: any direction; NaN stays NaN
+where the model has no error model) and the annual rate of declination is NaN. Why 100 nT: the
+WMM error model's term ``b/H`` degrees is the angle subtended by a horizontal error of
+``b*pi/180`` nT across H, i.e. 91 to 98 nT for the editions' b = 5205 to 5625 nT (WMM2015-WMM2025
+technical reports, uncertainty sections; pygeomag's copy of the WMM2025 error model has
+sigma_Y = 89 nT and sigma_H = 133 nT). Below about 100 nT that error is as long as H itself,
+sigma_D passes one radian and the linearised model no longer holds: the direction of H, the
+declination, is not known at all. This lies deep inside the WMM blackout zone (H < 2000 nT, where
+sigma_D is already 2.7 degrees). The declination value is kept there, flagged (it is the model's
+value and continuous, so isogonic maps and routes still draw); its rate is not, because there it
+measures the pole sweeping past (over 100,000 arcminutes a year at 2 nT), not a change a chart can
+carry. :func:`field_grid` carries the same flags as its ``declination_flag`` variable. Longitudes
+given as numbers may lie in -360 to 360 degrees; latitudes in -90 to 90.
 
 >>> import headingref
 >>> df = headingref.field([60.0, 82.5], [25.0, -62.3], "2026-12-02")
@@ -45,6 +58,14 @@ CAUTION_NT = 6000.0  # WMM2020/WMM2025 technical reports: Caution Zone, 2000 <= 
 UNCERTAINTY_CONST_DEG = 0.26  # WMM error model, declination: sqrt(0.26^2 + (5417/H)^2) deg
 UNCERTAINTY_SCALE_NT = 5417.0
 H_UNDEFINED_NT = 0.01  # below this the horizontal direction is numerically meaningless
+NO_DECLINATION_NT = 100.0
+"""Below this H (nT) no usable declination: the WMM error model's horizontal error, b*pi/180 = 91-98 nT
+(b = 5205-5625 nT, WMM2015-WMM2025 reports), is as long as H (module docstring)."""
+NO_HEADING_DEG = 180.0  # declination uncertainty where there is no usable declination: any direction
+LON_LIMIT_DEG = 360.0  # numeric longitudes are accepted in -360..360 (the synthesis takes their sine and cosine)
+MAX_GRID_NODES = 10_000_000
+"""Largest field_grid (latitudes x longitudes x dates): about 122 bytes a node (15 float64 elements,
+zone and flag), so 1.2 GB of results; a 0.1 degree global grid (6.5 million nodes) fits."""
 ZONE_NAMES = ("normal", "caution", "blackout")
 ZONE_DTYPE = pd.CategoricalDtype(list(ZONE_NAMES), ordered=True)
 
@@ -86,8 +107,7 @@ UNITS = {
     "north_nT_per_year": "nT/year",
     "east_nT_per_year": "nT/year",
     "down_nT_per_year": "nT/year",
-    "declination_uncertainty_deg": "degree (1 sigma; the model's error model, see attribute declination_uncertainty_model; "
-                                   "NaN where the model gives none, e.g. IGRF before 2015)",
+    "declination_uncertainty_deg": "degree (WMM error model, 1 sigma)",
 }
 
 _CONSTANTS: dict[int, tuple[np.ndarray, np.ndarray, np.ndarray]] = {}
@@ -99,33 +119,14 @@ def _constants(nmax: int):
     return _CONSTANTS[nmax]
 
 
-def declination_uncertainty_deg(horizontal_nT: Any, model: Model | str | None = None, year: Any = None) -> np.ndarray:
-    """Declination uncertainty (degrees, 1 sigma): ``sqrt(a^2 + (b/H)^2)``, H in nT.
+def declination_uncertainty_deg(horizontal_nT: Any) -> np.ndarray:
+    """WMM error model for declination (degrees, 1 sigma): ``sqrt(0.26^2 + (5417/H)^2)``, H in nT.
 
-    With no ``model``, WMM2025's constants ``a = 0.26 deg, b = 5417 nT`` (WMM2025 technical report,
-    uncertainty section). With a ``model`` (name, path or Model) and the decimal ``year``(s), the
-    model's own error model at that date (:meth:`headingref.model.Model.error_constants`: each WMM
-    edition's published constants; for IGRF and other files the WMM edition of the same epoch as a
-    labelled proxy, and NaN before 2015.0, where no error model is given). Infinite where H = 0.
+    Source: WMM2020 and WMM2025 technical reports (NOAA NCEI / BGS), uncertainty section.
     """
     h = np.asarray(horizontal_nT, dtype=np.float64)
-    if model is None:
-        a, b = UNCERTAINTY_CONST_DEG, UNCERTAINTY_SCALE_NT
-    else:
-        if year is None:
-            raise InputError("declination_uncertainty_deg: give the decimal year(s) with the model")
-        a, b = load_model(model).error_constants(year)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        return np.sqrt(a**2 + (b / h) ** 2)
-
-
-def _error_constants(model: Model, years: np.ndarray):
-    """The model's error-model constants for the derive kernel: two floats when every date shares
-    one (the common case), else two per-point arrays."""
-    a, b = model.error_constants(years)
-    if a.size and np.all(a == a.flat[0]) and np.all(b == b.flat[0]):
-        return float(a.flat[0]), float(b.flat[0])
-    return a, b
+    with np.errstate(divide="ignore"):
+        return np.sqrt(UNCERTAINTY_CONST_DEG**2 + (UNCERTAINTY_SCALE_NT / h) ** 2)
 
 
 def classify_zone(horizontal_nT: Any, blackout_nT: float = BLACKOUT_NT, caution_nT: float = CAUTION_NT) -> np.ndarray:
@@ -137,23 +138,31 @@ def classify_zone(horizontal_nT: Any, blackout_nT: float = BLACKOUT_NT, caution_
     return np.asarray(ZONE_NAMES, dtype=object)[codes]
 
 
-def _coordinates(values: Any, kind: str) -> np.ndarray:
-    arr = np.asarray(values)
+def _coordinates(values: Any, kind: str, argument: str | None = None) -> np.ndarray:
+    """Latitudes (``kind='lat'``, -90..90) or longitudes (``'lon'``, -360..360) as float64 degrees.
+
+    One vectorised test, ``|x| <= limit``, which NaN and infinities fail too; the message is
+    worked out only when something failed. Text is parsed by :func:`headingref.units.parse_coordinate`.
+    """
+    name = "latitude" if kind == "lat" else "longitude"
+    where = f"{argument}: " if argument else ""
+    try:
+        arr = np.asarray(values)
+    except ValueError:  # ragged nested sequences
+        raise InputError(f"{where}{name}s must be a number or a flat sequence of numbers") from None
     if arr.dtype.kind in "OUS":
         flat = [parse_coordinate(v, kind) for v in arr.ravel()]
         arr = np.asarray(flat, dtype=np.float64).reshape(arr.shape)
-    elif arr.dtype.kind not in "fiub" or arr.dtype.kind == "b":
-        raise InputError(f"{'latitude' if kind == 'lat' else 'longitude'} values of type {arr.dtype} are not numbers")
-    arr = arr.astype(np.float64)
-    name = "latitude" if kind == "lat" else "longitude"
-    bad = ~np.isfinite(arr)
-    if bad.any():
-        raise InputError(f"{name} {arr.ravel()[np.argmax(bad.ravel())]!r} (point {int(np.argmax(bad.ravel()))}) is not a finite number")
-    if kind == "lat":
-        out = np.abs(arr) > 90.0
-        if out.any():
-            i = int(np.argmax(out.ravel()))
-            raise InputError(f"latitude {arr.ravel()[i]:g} (point {i}) is outside -90 to 90 degrees")
+    elif arr.dtype.kind not in "fiu":
+        raise InputError(f"{where}{name} values of type {arr.dtype} are not numbers")
+    arr = arr.astype(np.float64, copy=False)
+    limit = 90.0 if kind == "lat" else LON_LIMIT_DEG
+    ok = np.abs(arr) <= limit
+    if not ok.all():
+        i = int(np.argmin(ok.ravel()))
+        value = float(arr.ravel()[i])
+        problem = "is not a finite number" if not np.isfinite(value) else f"is outside -{limit:g} to {limit:g} degrees"
+        raise InputError(f"{where}{name} {value!r} (point {i}) {problem}")
     return arr
 
 
@@ -210,52 +219,60 @@ def _synthesise(model: Model, lat, lon, alt, years) -> tuple[np.ndarray, np.ndar
         synthesis.scattered(lat, lon, alt, k, dt, model.g, model.h, model.g_rate, model.h_rate, k1, k2, diag,
                             model.reference_radius_km, xyz)
     zone = np.empty(n, dtype=np.int8)
-    _derive(xyz, derived, zone, _error_constants(model, years))
+    _derive(xyz, derived, zone)
     return table, zone
 
 
-def _derive(xyz: np.ndarray, out: np.ndarray, zone: np.ndarray,
-            error: tuple = (UNCERTAINTY_CONST_DEG, UNCERTAINTY_SCALE_NT)) -> None:
-    # error: the model's declination error constants (a_deg, b_nT), floats or one per point (NaN: none)
-    a, b = error
-    scalar = np.ndim(a) == 0
-    synthesis.derive(xyz, H_UNDEFINED_NT, a if scalar else 0.0, b if scalar else 0.0, BLACKOUT_NT, CAUTION_NT, out, zone)
-    if not scalar:
-        with np.errstate(divide="ignore", invalid="ignore"):
-            np.sqrt(a**2 + (b / out[2]) ** 2, out=out[8])
+def _derive(xyz: np.ndarray, out: np.ndarray, zone: np.ndarray) -> None:
+    synthesis.derive(xyz, H_UNDEFINED_NT, UNCERTAINTY_CONST_DEG, UNCERTAINTY_SCALE_NT, BLACKOUT_NT, CAUTION_NT, out, zone)
     synthesis.angles(xyz, out, H_UNDEFINED_NT)
-    # The WMM error model sqrt(a^2 + (b/H)^2) tends to infinity as H -> 0: where the kernel
-    # leaves it NaN (H below H_UNDEFINED_NT) the uncertainty is infinite, not unknown, unless the
-    # model gives no error model at that date (NaN a).
-    out[8][~(out[2] >= H_UNDEFINED_NT) & ~np.isnan(a)] = np.inf
+    # The WMM error model sqrt(0.26^2 + (5417/H)^2) tends to infinity as H -> 0: where the kernel
+    # leaves it NaN (H below H_UNDEFINED_NT) the uncertainty is infinite, not unknown.
+    out[8][~(out[2] >= H_UNDEFINED_NT)] = np.inf
 
 
 FLAG_REASONS = (
     "",
     "geographic pole: declination undefined",
     f"horizontal field below {H_UNDEFINED_NT:g} nT: declination undefined",
+    f"no usable declination: H below {NO_DECLINATION_NT:g} nT",
 )
 FLAG_DTYPE = pd.CategoricalDtype(list(FLAG_REASONS))
+FLAG_MEANINGS = "declination_defined geographic_pole no_horizontal_field no_usable_declination"
+"""CF ``flag_meanings`` of :data:`FLAG_REASONS` (codes 0-3) in :func:`field_grid`."""
 
 
-def _undefined_reasons(lat: np.ndarray, horizontal: np.ndarray, declination: np.ndarray,
-                       declination_rate: np.ndarray) -> pd.Categorical:
-    """Empty string where D is defined, else why it is not; also blanks D and its rate at geographic poles."""
-    codes = np.zeros(lat.shape, dtype=np.int8)
-    pole = np.abs(lat) == 90.0
-    weak = ~pole & ~(horizontal >= H_UNDEFINED_NT)
-    if pole.any() or weak.any():
-        declination[pole] = np.nan
-        declination_rate[pole] = np.nan  # as field_grid does: no rate for an undefined angle
+def _flag_declination(derived: np.ndarray, pole: np.ndarray | None) -> np.ndarray:
+    """Codes into :data:`FLAG_REASONS` for the points of ``derived`` (rows in :data:`ELEMENTS` order),
+    which it edits in place: at geographic poles (``pole``, a mask or None) D and its rate become NaN;
+    where H < :data:`NO_DECLINATION_NT` the rate of D is NaN and the uncertainty 180 degrees."""
+    horizontal, uncertainty = derived[2], derived[8]
+    codes = np.zeros(horizontal.shape, dtype=np.int8)
+    weak = ~(horizontal >= NO_DECLINATION_NT)
+    if weak.any():
+        codes[weak] = 3
+        codes[~(horizontal >= H_UNDEFINED_NT)] = 2
+        derived[4][weak] = np.nan
+        uncertainty[weak & ~np.isnan(uncertainty)] = NO_HEADING_DEG
+    if pole is not None and pole.any():
+        derived[0][pole] = np.nan
+        derived[4][pole] = np.nan  # no rate for an undefined angle
         codes[pole] = 1
-        codes[weak] = 2
-        warnings.warn(
-            f"declination is undefined at {int(pole.sum())} geographic-pole point(s) and {int(weak.sum())} point(s) "
-            "with no horizontal field; NaN there (see declination_flag)",
-            UndefinedDeclinationWarning,
-            stacklevel=3,
-        )
-    return pd.Categorical.from_codes(codes, dtype=FLAG_DTYPE)
+    return codes
+
+
+def _warn_flags(codes: np.ndarray, stacklevel: int) -> None:
+    """One warning naming how many points have an undefined (NaN) or unusable declination."""
+    counts = np.bincount(codes.ravel(), minlength=len(FLAG_REASONS))
+    parts = [text for count, text in (
+        (counts[1], f"undefined (NaN) at {counts[1]} geographic-pole point(s)"),
+        (counts[2], f"undefined (NaN) at {counts[2]} point(s) with no horizontal field"),
+        (counts[3], f"not usable at {counts[3]} point(s) with H below {NO_DECLINATION_NT:g} nT "
+                    f"(uncertainty {NO_HEADING_DEG:g} degrees, no annual rate)"),
+    ) if count]
+    if parts:
+        warnings.warn(f"declination is {'; '.join(parts)}; see declination_flag", UndefinedDeclinationWarning,
+                      stacklevel=stacklevel + 1)
 
 
 def _evaluate(lat, lon, date, alt_km, model, allow_extrapolation) -> tuple[np.ndarray, np.ndarray, pd.Categorical]:
@@ -265,10 +282,10 @@ def _evaluate(lat, lon, date, alt_km, model, allow_extrapolation) -> tuple[np.nd
     model, (lat_f, lon_f, alt_f, years_f) = _prepare(lat, lon, years, alt_km, model, allow_extrapolation)
     with synthesis.threads_for(lat_f.size):
         table, zone = _synthesise(model, lat_f, lon_f, alt_f, years_f)
-    row = NUMERIC.index
-    flags = _undefined_reasons(lat_f, table[row("horizontal_nT")], table[row("declination_deg")],
-                               table[row("declination_deg_per_year")])
-    return table, zone, flags
+    codes = _flag_declination(table[len(INPUTS) : len(INPUTS) + len(ELEMENTS)], np.abs(table[0]) == 90.0)
+    if codes.any():
+        _warn_flags(codes, stacklevel=3)
+    return table, zone, pd.Categorical.from_codes(codes, dtype=FLAG_DTYPE)
 
 
 def field_arrays(
@@ -345,7 +362,6 @@ def field(
     frame = pd.DataFrame(table.T, columns=list(NUMERIC), copy=False)
     frame["zone"] = pd.Categorical.from_codes(zone, dtype=ZONE_DTYPE)
     frame["declination_flag"] = flags
-    frame.attrs["declination_uncertainty_model"] = load_model(model).error_label(table[3])
     return frame
 
 
@@ -378,11 +394,25 @@ def field_grid(
     import xarray as xr
 
     model = load_model(model) if not isinstance(model, Model) else model
-    lat_a = _coordinates(np.atleast_1d(np.asarray(lats)), "lat").ravel()
-    lon_a = _coordinates(np.atleast_1d(np.asarray(lons)), "lon").ravel()
-    alt = float(_heights(alt_km))
+    lat_a = np.atleast_1d(_coordinates(lats, "lat", "field_grid lats")).ravel()
+    lon_a = np.atleast_1d(_coordinates(lons, "lon", "field_grid lons")).ravel()
+    for argument, values in (("lats", lat_a), ("lons", lon_a)):
+        if values.size == 0:
+            raise InputError(f"field_grid {argument} is empty; give at least one value in degrees")
+    alt = _heights(alt_km)
+    if alt.size != 1:
+        raise InputError(f"field_grid alt_km must be one height in km for the whole grid, got {alt.size} values; "
+                         "call field_grid once per height (or use field() for scattered heights)")
+    alt = float(alt.ravel()[0])
     multi = not isinstance(date, str) and np.ndim(date) > 0
     years = np.atleast_1d(decimal_year(date)).astype(np.float64)
+    nodes = lat_a.size * lon_a.size * years.size
+    if nodes > MAX_GRID_NODES:
+        raise InputError(
+            f"field_grid of {lat_a.size:,} latitudes x {lon_a.size:,} longitudes x {years.size:,} date(s) = {nodes:,} nodes "
+            f"is above the limit of {MAX_GRID_NODES:,} (about {MAX_GRID_NODES * 122 / 1e9:.1f} GB); use a coarser step "
+            "or compute the grid in chunks (a band of latitudes or one date at a time)"
+        )
     model.check_dates(years, allow_extrapolation)
     k1, k2, diag = _constants(model.nmax)
     ncol = model.nmax + 1
@@ -400,15 +430,16 @@ def field_grid(
             g, h, gr, hr = model.coefficients(year)
             synthesis.grid_row_terms(lat_a, alt, g, h, gr, hr, k1, k2, diag, model.reference_radius_km, terms)
             np.matmul(terms.reshape(6 * lat_a.size, 2 * ncol), trig, out=vector[t].reshape(6 * lat_a.size, lon_a.size))
-            _derive(vector[t], derived[t], zone[t], _error_constants(model, np.array([year])))
+            _derive(vector[t], derived[t], zone[t])
     data = {name: derived[:, i].reshape(shape) for i, name in enumerate(ELEMENTS)}
     data.update({name: vector[:, i].reshape(shape) for i, name in enumerate(VECTOR)})
     zone = zone.reshape(shape)
     pole_rows = np.abs(lat_a) == 90.0
-    if pole_rows.any():
-        data["declination_deg"][:, pole_rows, :] = np.nan
-        data["declination_deg_per_year"][:, pole_rows, :] = np.nan
-        warnings.warn("declination is undefined on the geographic-pole row(s) of the grid; NaN there",
+    pole = np.repeat(pole_rows, lon_a.size) if pole_rows.any() else None
+    flags = np.stack([_flag_declination(derived[t], pole) for t in range(len(years))]).reshape(shape)
+    if pole is not None or (flags == 2).any():
+        # no warning for the 'no usable declination' points alone: a polar map holds them by design
+        warnings.warn("declination is undefined on the geographic-pole row(s) of the grid (or where H = 0); NaN there",
                       UndefinedDeclinationWarning, stacklevel=2)
     dims = ("time", "lat", "lon")
     variables = {name: (dims, data[name], {"units": UNITS[name]}) for name in ELEMENTS + VECTOR}
@@ -417,6 +448,11 @@ def field_grid(
         "flag_meanings": "normal caution blackout",
         "long_name": f"WMM zone: blackout H < {BLACKOUT_NT:g} nT, caution H < {CAUTION_NT:g} nT",
     })
+    variables["declination_flag"] = (dims, flags, {
+        "flag_values": np.arange(len(FLAG_REASONS), dtype=np.int8),
+        "flag_meanings": FLAG_MEANINGS,
+        "long_name": "why the declination is undefined or unusable: " + "; ".join(r for r in FLAG_REASONS if r),
+    })
     ds = xr.Dataset(
         variables,
         coords={
@@ -424,7 +460,6 @@ def field_grid(
             "lat": ("lat", lat_a, {"units": "degrees_north", "long_name": "geodetic latitude (WGS84)"}),
             "lon": ("lon", lon_a, {"units": "degrees_east"}),
         },
-        attrs={"model": model.name, "alt_km": alt, "height_reference": "WGS84 ellipsoid",
-               "declination_uncertainty_model": model.error_label(years)},
+        attrs={"model": model.name, "alt_km": alt, "height_reference": "WGS84 ellipsoid"},
     )
     return ds if multi else ds.isel(time=0)

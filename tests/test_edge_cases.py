@@ -182,12 +182,12 @@ def test_at_the_dip_pole(hemisphere):
     east, north, up = ppigrf_enu(pole.lat, pole.lon, 0.0)
     assert math.hypot(east, north) < 5.0 and row.horizontal_nT < 5.0
     assert row.zone == "blackout"  # WMM2025 report: blackout zone H < 2000 nT
-    # WMM error model sqrt(0.26^2 + (5417/H)^2): at H < 5 nT more than 1000 degrees (i.e. meaningless);
-    # below 0.01 nT it used to be NaN, a silent NaN: now its limit, infinity (fixed in field.py)
-    assert row.declination_uncertainty_deg > 1000.0
-    assert row.declination_uncertainty_deg == pytest.approx(math.hypot(0.26, 5417.0 / row.horizontal_nT), rel=1e-9) or (
-        row.horizontal_nT < 0.01 and math.isinf(row.declination_uncertainty_deg))
-    assert np.isfinite(row.declination_deg) or row.declination_flag.startswith("horizontal field below")
+    # WMM error model sqrt(0.26^2 + (5417/H)^2) (WMM2025 report): at H < 5 nT more than 1000 degrees, i.e.
+    # no heading at all: capped at 180 (any direction) and flagged, with no annual rate (issue 11 item 2)
+    assert math.hypot(0.26, 5417.0 / max(row.horizontal_nT, 1e-300)) > 1000.0
+    assert row.declination_uncertainty_deg == 180.0 and math.isnan(row.declination_deg_per_year)
+    assert (np.isfinite(row.declination_deg) and row.declination_flag == "no usable declination: H below 100 nT") or (
+        row.horizontal_nT < 0.01 and row.declination_flag.startswith("horizontal field below"))
     assert abs(row.inclination_deg) > 89.99
     # 50 km away H has grown well above zero, into hundreds of nT (ppigrf): a real minimum
     away = Geodesic.WGS84.Direct(pole.lat, pole.lon, 0.0, 50_000.0)
@@ -197,7 +197,7 @@ def test_at_the_dip_pole(hemisphere):
 @pytest.mark.parametrize("miss_m", [0.0, 2000.0])
 def test_route_over_the_north_dip_pole(miss_m):
     # A leg straight over the dip pole (a sample lands on it, H < 0.01 nT): the documented one-line
-    # refusal; a leg passing 2 km from it: worked, with a blackout stretch and a huge uncertainty.
+    # refusal; a leg passing 2 km from it: worked, with a blackout stretch and no usable declination.
     pole = headingref.dip_poles(DATE).iloc[0]
     centre = Geodesic.WGS84.Direct(pole.lat, pole.lon, 110.0, miss_m)
     a = Geodesic.WGS84.Direct(centre["lat2"], centre["lon2"], 200.0, 150_000.0)
@@ -209,12 +209,26 @@ def test_route_over_the_north_dip_pole(miss_m):
             with pytest.raises(InputError, match="dip pole"):
                 route(waypoints, DATE, spacing_nm=1.0)
             return
-        legs, _ = route(waypoints, DATE, spacing_nm=1.0)
+        result = route(waypoints, DATE, spacing_nm=1.0)
+    legs, samples = result
     assert legs.zone[0] == "blackout" and legs.min_horizontal_nT[0] < 50.0
     assert legs.blackout_stretches_nm[0] != ""
-    # WMM error model at the least H on the leg (H < 50 nT gives more than 100 degrees)
-    assert legs.max_declination_uncertainty_deg[0] == pytest.approx(math.hypot(0.26, 5417.0 / legs.min_horizontal_nT[0]),
-                                                                     rel=1e-9)
+    # WMM error model at the least H on the leg: more than 100 degrees below 50 nT (WMM2025 report), so
+    # the samples there carry the cap, 180 degrees (no heading), not thousands of degrees
+    assert math.hypot(0.26, 5417.0 / legs.min_horizontal_nT[0]) > 100.0
+    assert legs.max_declination_uncertainty_deg[0] == 180.0
+    assert samples.declination_uncertainty_deg.max() == 180.0
+    # the route profile's uncertainty axis stops at the cap (it ran to 35,000 degrees before)
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    from headingref.plots.route import plot_route_profile
+
+    fig = plot_route_profile(result)
+    assert fig.axes[2].get_ylim()[1] <= 190.0
+    plt.close(fig)
 
 
 def test_zero_horizontal_field_helpers():

@@ -299,3 +299,196 @@ def test_sincos_deg_matches_numpy():
     both(x, s, c)
     np.testing.assert_allclose(s, np.sin(np.radians(x)), atol=2e-15, rtol=0)
     np.testing.assert_allclose(c, np.cos(np.radians(x)), atol=2e-15, rtol=0)
+
+
+# --- near the dip pole: no usable declination (issue 11, item 2) --------------------------------
+
+ISSUE_PLACE = (85.28, 132.0, "2027-04-01")  # where `field` printed 3403 deg and 117302'/yr
+
+
+def test_no_usable_declination_at_the_place_of_the_report():
+    import math
+
+    import ppigrf
+
+    from headingref.field import FLAG_REASONS, NO_HEADING_DEG
+
+    lat, lon, date = ISSUE_PLACE
+    with pytest.warns(headingref.UndefinedDeclinationWarning, match="not usable"):
+        row = headingref.field(lat, lon, date).iloc[0]
+    # ppigrf (independent IGRF-14 code) gives the same, nearly vanishing H there (its date convention
+    # differs by hours here; H changes by about 24 nT/yr, so 1 nT covers it)
+    east, north, _ = (float(np.ravel(c)[0]) for c in ppigrf.igrf(lon, lat, 0.0, dt.datetime(2027, 4, 1)))
+    assert row.horizontal_nT == pytest.approx(math.hypot(east, north), abs=1.0)
+    # WMM2025 error model (WMM2025 technical report, uncertainty section; pygeomag the same constants):
+    # over 3000 degrees at this H, i.e. no direction at all: the table caps it at 180 and says why
+    assert math.hypot(0.26, 5417.0 / row.horizontal_nT) > 3000.0
+    assert row.declination_uncertainty_deg == NO_HEADING_DEG
+    assert row.declination_flag == FLAG_REASONS[3] == "no usable declination: H below 100 nT"
+    assert math.isnan(row.declination_deg_per_year)
+    # why no annual rate: ppigrf's declination there turns by more than 40 degrees in one month
+    # (2027-04-01 to 2027-05-01), so no per-year figure describes it
+    e2, n2, _ = (float(np.ravel(c)[0]) for c in ppigrf.igrf(lon, lat, 0.0, dt.datetime(2027, 5, 1)))
+    turn = (math.degrees(math.atan2(e2, n2) - math.atan2(east, north)) + 180.0) % 360.0 - 180.0
+    assert abs(turn) > 40.0
+    # the other elements stay defined: the field is nearly vertical (ppigrf's inclination > 89.99 deg)
+    assert row.inclination_deg > 89.99 and row.zone == "blackout"
+
+
+def test_no_usable_declination_with_wmm2025_matches_pygeomag_h():
+    # pygeomag (independent WMM code), WMM2025 at the same place: H equal to 0.01 nT, inside the WMM
+    # blackout zone (pygeomag's in_blackout_zone), and below 100 nT, so flagged here too
+    from pygeomag import GeoMag
+
+    from headingref.field import NO_DECLINATION_NT
+
+    lat, lon, _ = ISSUE_PLACE
+    year = 2027.2466
+    ref = GeoMag(coefficients_file="wmm/WMM_2025.COF").calculate(glat=lat, glon=lon, alt=0.0, time=year)
+    with pytest.warns(headingref.UndefinedDeclinationWarning):
+        ours = headingref.field(lat, lon, year, model=pygeomag_cof("WMM_2025.COF")).iloc[0]
+    assert ours.horizontal_nT == pytest.approx(ref.h, abs=0.01)
+    assert ref.in_blackout_zone and ref.h < NO_DECLINATION_NT
+    assert ours.declination_flag.startswith("no usable declination")
+    # the declination itself is kept (the model's value, flagged): pygeomag's, to 1e-4 deg
+    assert ours.declination_deg == pytest.approx(ref.d, abs=1e-4)
+
+
+def test_threshold_is_where_the_error_model_horizontal_error_equals_h():
+    # The WMM declination error model sqrt(a^2 + (b/H)^2): the term b/H (degrees) is the angle of a
+    # horizontal error b*pi/180 nT across H. Constants b from each edition's technical report
+    # (WMM2015 5430, WMM2020 5625, WMM2025 5417, WMMHR2025 5205 nT; pygeomag carries the same).
+    import math
+
+    from headingref.field import BLACKOUT_NT, NO_DECLINATION_NT
+
+    error_nT = [b * math.pi / 180.0 for b in (5430.0, 5625.0, 5417.0, 5205.0)]
+    assert 90.0 < min(error_nT) and max(error_nT) < NO_DECLINATION_NT <= 100.0
+    # at the threshold sigma_D is near one radian (linearisation gone); well inside the blackout zone
+    assert all(50.0 < math.hypot(0.26, b / NO_DECLINATION_NT) < 57.3 for b in (5430.0, 5625.0, 5417.0, 5205.0))
+    assert NO_DECLINATION_NT < BLACKOUT_NT / 10
+    # pygeomag's WMM2025 error model: sigma_H = 133 nT, so at 100 nT H is not even known to be non-zero
+    from pygeomag.geomag import GeoMagUncertaintyResult
+
+    assert "133.0" in __import__("inspect").getsource(GeoMagUncertaintyResult._error_model_wmm_2025)
+
+
+def test_flag_boundary_along_a_line_from_the_dip_pole():
+    # Walk away from the dip pole (geographiclib geodesic): the flag holds exactly where H < 100 nT;
+    # outside it the uncertainty is the WMM2025 error model (technical report), inside it 180 degrees.
+    import math
+
+    from geographiclib.geodesic import Geodesic
+
+    from headingref.field import NO_DECLINATION_NT
+
+    pole = headingref.dip_poles("2026-12-02").iloc[0]
+    points = [Geodesic.WGS84.Direct(pole.lat, pole.lon, 45.0, d) for d in np.arange(1_000.0, 120_000.0, 1_000.0)]
+    with pytest.warns(headingref.UndefinedDeclinationWarning):
+        f = headingref.field([p["lat2"] for p in points], [p["lon2"] for p in points], "2026-12-02")
+    weak = f.horizontal_nT < NO_DECLINATION_NT
+    assert weak.any() and (~weak).any()
+    assert (f.declination_flag[weak] == "no usable declination: H below 100 nT").all()
+    assert (f.declination_flag[~weak] == "").all()
+    assert (f.declination_uncertainty_deg[weak] == 180.0).all() and f.declination_deg_per_year[weak].isna().all()
+    outside = f[~weak]
+    expected = np.hypot(0.26, 5417.0 / outside.horizontal_nT)
+    assert np.allclose(outside.declination_uncertainty_deg, expected, rtol=1e-9)
+    assert outside.declination_uncertainty_deg.max() < 57.3 and np.isfinite(outside.declination_deg_per_year).all()
+    assert math.isfinite(f.declination_deg[weak].iloc[0])  # the value is kept, flagged
+
+
+def test_grid_flags_the_dip_pole_disc_like_the_scattered_points():
+    # field_grid over the dip pole: the declination_flag variable (CF flag_values/flag_meanings), NaN
+    # rate and 180-degree cap exactly where H < 100 nT; H at a flagged node equal to ppigrf's
+    import ppigrf
+
+    from headingref.field import FLAG_REASONS
+
+    pole = headingref.dip_poles("2026-12-02").iloc[0]
+    lats = np.linspace(pole.lat - 0.57, pole.lat + 0.63, 25)  # no node on the pole itself (H = 0 there)
+    lons = np.linspace(pole.lon - 3.9, pole.lon + 4.1, 33)
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")  # the 'not usable' points alone do not warn in a grid
+        ds = headingref.field_grid(lats, lons, "2026-12-02")
+    flag, h = ds.declination_flag.values, ds.horizontal_nT.values
+    assert list(ds.declination_flag.attrs["flag_values"]) == [0, 1, 2, 3]
+    assert ds.declination_flag.attrs["flag_meanings"].split()[3] == "no_usable_declination"
+    assert FLAG_REASONS[3] in ds.declination_flag.attrs["long_name"]
+    assert ((flag == 3) == (h < 100.0)).all() and (flag == 3).sum() >= 2
+    assert np.isnan(ds.declination_deg_per_year.values[flag == 3]).all()
+    assert (ds.declination_uncertainty_deg.values <= 180.0).all()
+    i, j = np.argwhere(flag == 3)[0]
+    east, north, _ = (float(np.ravel(c)[0]) for c in ppigrf.igrf(lons[j], lats[i], 0.0, dt.datetime(2026, 12, 2)))
+    assert h[i, j] == pytest.approx(np.hypot(east, north), abs=1.0)
+
+
+def test_cli_near_the_dip_pole_prints_no_heading(capsys):
+    from headingref.cli import main
+
+    lat, lon, date = ISSUE_PLACE
+    assert main(["field", "--lat", str(lat), "--lon", str(lon), "--date", date]) == 0
+    out = capsys.readouterr().out
+    assert "not usable" in out and "undefined" in out and "180.00°" in out
+    assert "3403" not in out and "117302" not in out and "nan" not in out.lower()
+
+
+# --- library bounds: longitudes, grid size, argument types (issue 12, item 7) -------------------
+
+
+@pytest.mark.parametrize("lon", [1e300, -1e300, 360.000001, float("nan"), float("-inf")])
+def test_longitude_must_be_finite_within_360(lon):
+    with pytest.raises(InputError, match="longitude"):
+        headingref.field(10.0, lon, "2026-01-01")
+    with pytest.raises(InputError, match="field_grid lons: longitude"):
+        headingref.field_grid([10.0], [0.0, lon], "2026-01-01")
+
+
+def test_longitude_wrap_within_360_matches_ppigrf():
+    # numbers in -360..360 are accepted and wrap (documented in headingref.field); ppigrf (independent
+    # IGRF-14 code) at the plain longitude gives the same field
+    xyz = _ppigrf_xyz(np.array([10.0]), np.array([-10.0]), np.array([0.0]), dt.datetime(2026, 1, 1))
+    f = headingref.field([10.0, 10.0], [-10.0, 350.0], "2026-01-01")
+    assert np.allclose(f.north_nT, xyz[0][0], atol=1.0) and np.allclose(f.east_nT, xyz[1][0], atol=1.0)
+
+
+@pytest.mark.parametrize("lat", [90.0000001, -91.0, 1e300])
+def test_latitude_must_be_within_90(lat):
+    with pytest.raises(InputError, match="latitude"):
+        headingref.field(lat, 0.0, "2026-01-01")
+
+
+def test_grid_size_guard_refuses_before_allocating():
+    import tracemalloc
+
+    from headingref.field import MAX_GRID_NODES
+
+    lats = np.arange(-90.0, 90.0001, 0.005)  # 36,001 x 72,000 nodes: 174 GiB of float64 results
+    lons = np.arange(-180.0, 180.0, 0.005)
+    tracemalloc.start()
+    try:
+        with pytest.raises(InputError, match=r"above the limit of 10,000,000 .*coarser step .*chunks") as info:
+            headingref.field_grid(lats, lons, "2026-01-01")
+        peak = tracemalloc.get_traced_memory()[1]
+    finally:
+        tracemalloc.stop()
+    assert peak < 20e6 and MAX_GRID_NODES == 10_000_000
+    assert "\n" not in str(info.value)
+    # three dates of a grid that fits once do not fit three times
+    lats, lons = np.linspace(-90, 90, 1801), np.linspace(-180, 180, 3600)
+    with pytest.raises(InputError, match="3 date"):
+        headingref.field_grid(lats, lons, ["2026-01-01", "2027-01-01", "2028-01-01"])
+
+
+@pytest.mark.parametrize("kwargs, message", [
+    ({"alt_km": [0, 1]}, "field_grid alt_km must be one height"),
+    ({"alt_km": "ten"}, "alt_km must be numbers"),
+    ({"alt_km": None}, "alt_km must be numbers"),
+    ({"lats": []}, "field_grid lats is empty"),
+    ({"lons": [[0.0, 1.0], [2.0]]}, "field_grid lons"),
+    ({"lats": [True, False]}, "are not numbers"),
+])
+def test_field_grid_argument_errors_name_the_argument(kwargs, message):
+    args = {"lats": [0.0, 10.0], "lons": [0.0, 10.0], "alt_km": 0.0} | kwargs
+    with pytest.raises(InputError, match=message):
+        headingref.field_grid(args["lats"], args["lons"], "2026-01-01", alt_km=args["alt_km"])
