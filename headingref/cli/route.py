@@ -113,20 +113,19 @@ def run(args) -> int:
     print(CAUTION)
 
     with all_or_nothing():  # every output, or none (a full disk half-way leaves the old files)
-        with all_or_nothing():  # every output, or none (a full disk half-way leaves the old files)
         write_csv(args.output, legs)
-            if args.samples:
-                write_csv(args.samples, result.samples)
-            if geojson_text is not None:
-                write_text(args.geojson, geojson_text + "\n")
-            if args.plot or args.profile:
-                import matplotlib
+        if args.samples:
+            write_csv(args.samples, result.samples)
+        if geojson_text is not None:
+            write_text(args.geojson, geojson_text + "\n")
+        if args.plot or args.profile:
+            import matplotlib
 
-                matplotlib.use("Agg")
-                from ..plots.route import plot_route_map, plot_route_profile, save_figure
+            matplotlib.use("Agg")
+            from ..plots.route import plot_route_map, plot_route_profile, save_figure
 
-                if args.plot:
-                    save_figure(plot_route_map(result, model=args.model), args.plot)
-                if args.profile:
-                    save_figure(plot_route_profile(result), args.profile)
+            if args.plot:
+                save_figure(plot_route_map(result, model=args.model), args.plot)
+            if args.profile:
+                save_figure(plot_route_profile(result), args.profile)
     return 0
