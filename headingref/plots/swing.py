@@ -24,7 +24,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..swing import CardDetails, SwingAnalysis, _card_ident_rows
-from . import save_figure  # noqa: F401  (re-exported: the plotting modules all offer it)
+from . import plain_text, save_figure  # noqa: F401  (save_figure re-exported: the plotting modules all offer it)
 
 _EAST_COLOUR = "#1b6f8a"
 _FIT_COLOUR = "#b5462f"
@@ -73,7 +73,7 @@ def deviation_figure(analysis: SwingAnalysis, title: str | None = None):
     bottom.set_xlabel("magnetic heading, degrees")
     bottom.set_xlim(0.0, 360.0)
     bottom.set_xticks(np.arange(0, 361, 45))
-    return fig
+    return plain_text(fig)  # names from users drawn as typed
 
 
 def card_figure(
@@ -125,4 +125,4 @@ def card_figure(
                 fig.text(x, 0.035, label, ha="left", fontsize=8, **plain)
     if footer:
         fig.text(0.5, 0.005, footer, ha="center", fontsize=8, **plain)
-    return fig
+    return plain_text(fig)  # names from users drawn as typed

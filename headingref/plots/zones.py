@@ -24,6 +24,7 @@ from typing import Any
 import numpy as np
 
 from ..geogrid import CAPS
+from . import plain_text
 from .route import save_figure
 
 __all__ = ["plot_zone_map", "plot_pole_tracks", "plot_error_map", "save_figure"]
@@ -138,7 +139,7 @@ def plot_zone_map(ds, *, tracks=None, title: str | None = None, figsize: tuple[f
     thresholds = ds.attrs.get("thresholds_nT", [2000.0, 6000.0])
     ax.set_title(title or f"Weak horizontal field, H thresholds {', '.join(f'{t:g}' for t in thresholds)} nT "
                  f"({ds.attrs.get('model', 'IGRF')}, {ds.attrs.get('alt_km', 0):g} km)", fontsize=9)
-    return ax.figure
+    return plain_text(ax.figure)  # names from users drawn as typed
 
 
 def plot_pole_tracks(tracks, *, title: str | None = None, figsize: tuple[float, float] = (11.0, 5.8)):
@@ -158,7 +159,7 @@ def plot_pole_tracks(tracks, *, title: str | None = None, figsize: tuple[float, 
             ax.legend(loc="lower left", fontsize=7, framealpha=0.85)
         ax.set_title(f"{hemisphere.capitalize()} poles", fontsize=9)
     fig.suptitle(title or "Dip poles (H = 0) and geomagnetic (centred-dipole) poles", fontsize=10)
-    return fig
+    return plain_text(fig)  # names from users drawn as typed
 
 
 _SATURATION_WORDS = {
@@ -215,4 +216,4 @@ def plot_error_map(ds, *, title: str | None = None, vmax_deg: float = 10.0, figs
     bar.set_label("heading error budget, root-sum-square (deg)")
     area = ds.attrs.get("area_exceeding_limit_km2", float("nan"))
     ax.set_title(title or f"Heading-reference error budget; contour {limit:g}°, beyond it {area:,.0f} km²", fontsize=9)
-    return ax.figure
+    return plain_text(ax.figure)  # names from users drawn as typed
