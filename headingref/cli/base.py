@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from ..errors import InputError
-from .swing import finite_float, number_list
+from .swing import number_list
 
 EXAMPLES = """\
   headingref base --input sites.csv --date 2026-12-02 --output upkeep.csv
@@ -37,9 +37,9 @@ def register(subparsers) -> None:
     parser.add_argument("--survey-date", help="single site: date of the survey")
     parser.add_argument("--alt", default="0", help="single site: height above the ellipsoid (km, or with a unit: 35 m, 120 ft; at most 30 km)")
     parser.add_argument("--date", required=True, help="planned swing date (YYYY-MM-DD or decimal year)")
-    parser.add_argument("--tolerance", type=finite_float, default=None, metavar="DEG", help="tolerance on the marked variation for sites that give none (default 0.5)")
-    parser.add_argument("--resurvey-years", type=finite_float, default=None, metavar="YEARS", help="fixed resurvey interval after the survey, for sites that give none")
-    parser.add_argument("--mark-step", type=finite_float, default=0.5, metavar="DEG", help="rounding step of the marked variation (default 0.5; 1 for whole degrees)")
+    parser.add_argument("--tolerance", type=float, default=None, metavar="DEG", help="tolerance on the marked variation for sites that give none (default 0.5)")
+    parser.add_argument("--resurvey-years", type=float, default=None, metavar="YEARS", help="fixed resurvey interval after the survey, for sites that give none")
+    parser.add_argument("--mark-step", type=float, default=0.5, metavar="DEG", help="rounding step of the marked variation (default 0.5; 1 for whole degrees)")
     parser.add_argument("--lines", metavar="LIST", help="magnetic headings of the lines to set out (default 0,30,...,330)")
     parser.add_argument("--distances", default="50,100", metavar="LIST", help="distances of the setting-out points from the centre, metres (default 50,100)")
     parser.add_argument("--grid", help="grid for grid azimuths: auto (polar grid of each base's hemisphere), polar, polar-south, polar:LON, "
