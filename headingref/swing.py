@@ -875,9 +875,9 @@ def read_swing_csv(path: str | os.PathLike) -> tuple[np.ndarray, np.ndarray, lis
     deviation = _find_column(header, DEVIATION_COLUMNS, label, "deviation")
     if heading is None or (compass is None) == (deviation is None):
         problem = (
-            "no magnetic heading column" if heading is None
+            "missing column(s) magnetic_heading_deg" if heading is None
             else "both a compass reading and a deviation column" if compass is not None
-            else "no compass reading or deviation column"
+            else "missing column(s) compass_reading_deg (or deviation_deg)"
         )
         raise InputError(
             f"{label}: {problem} (found {', '.join(h for h in header if h) or 'none'}); accepted names: heading "
