@@ -1326,6 +1326,9 @@ def check_runways(
     100 m or over 6 km apart, reciprocal ends that disagree, duplicates) get ``status='warning'``.
     One :class:`~headingref.errors.DataQualityWarning` summarises them.
     """
+    if not isinstance(table, (pd.DataFrame, str, os.PathLike)):
+        raise InputError(f"check_runways: table of type {type(table).__name__} is not understood; "
+                         "give a pandas DataFrame or the path of a CSV or .xlsx file")
     settings = _settings(date, horizon_years, model, tolerance_deg, band_sigmas, allow_extrapolation, last_fit)
     ends = _read_ends(table, columns)
     _geometry(ends)
