@@ -376,6 +376,9 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
         Unreadable or malformed TOML; unknown keys (with a suggestion); missing required keys;
         values of the wrong type or out of range; files that do not exist.
     """
+    if not isinstance(path, (str, os.PathLike)):
+        raise InputError(f"load_scenario: path {path!r} of type {type(path).__name__} is not a file name; "
+                         "give the path of a scenario TOML file")
     path = Path(path).expanduser()
     where = f"scenario {path.name}"
     if not path.is_file():
@@ -386,6 +389,8 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
         raise InputError(f"{where}: not UTF-8 text; save the scenario as UTF-8") from None
     except tomllib.TOMLDecodeError as exc:
         raise InputError(f"{where}: not valid TOML ({exc})") from None
+    except RecursionError:  # tomllib recurses once per nesting level ([[[[...]]]] 5,000 deep)
+        raise InputError(f"{where}: arrays or tables nested too deeply; a scenario needs a few levels at most") from None
     path = path.resolve()
     folder = path.parent
     top = _section({k: v for k, v in raw.items() if k not in SECTIONS}, "", where, folder)
