@@ -24,7 +24,8 @@ Layout (every section is optional; a missing section's job is left out of the re
                     setting_out_distances_m
     [swing]         file, base, limit_deg, compensated_limit_deg, verdict_on, method,
                     card_after_compensation, date, aircraft, compass, swung_by, conditions
-    [runways]       file, horizon_years, boundary_band_deg
+    [runways]       file, horizon_years, boundary_band_deg, band_sigmas, columns
+    [navaids]       file, tolerance_deg, horizon_years, columns
 
 Public API: :func:`load_scenario`, :class:`Scenario`, :data:`SCHEMA`, :data:`DEMO_SCENARIO`.
 
@@ -135,9 +136,18 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "conditions": Key("str", "", doc="swing conditions, e.g. 'engines running, radios on' (14 CFR 23.1547)"),
     },
     "runways": {
-        "file": Key("path", required=True, doc="runway CSV: airport, runway, lat, lon and end_lat, end_lon or true_bearing_deg"),
+        "file": Key("path", required=True, doc="runway CSV or .xlsx: airport, runway, lat, lon and end_lat, end_lon or "
+                    "true_bearing_deg (or one row per runway: end1_runway, end1_lat, ... end2_lon)"),
         "horizon_years": Key("float", 10.0, low=0.0, high=50.0, doc="forecast horizon, years"),
-        "boundary_band_deg": Key("float", None, low=0.0, high=2.0, doc="band around a rounding boundary judged 'on the boundary', deg"),
+        "boundary_band_deg": Key("float", None, low=0.0, high=2.0, doc="band either side of a rounding boundary, deg (default 0.25)"),
+        "band_sigmas": Key("float", None, low=0.0, high=5.0, doc="band = this many local declination sigmas instead of boundary_band_deg"),
+        "columns": Key("str", "", doc="column mapping NAME=COLUMN,... (e.g. 'runway=ident,lat=le_lat')"),
+    },
+    "navaids": {
+        "file": Key("path", required=True, doc="VOR CSV or .xlsx: ident, lat, lon, station_declination_deg[, alignment_date, elevation]"),
+        "tolerance_deg": Key("float", 3.0, low=0.0, high=30.0, doc="largest acceptable |variation - station declination|, deg"),
+        "horizon_years": Key("float", 10.0, low=0.0, high=50.0, doc="look-ahead for the realignment date, years"),
+        "columns": Key("str", "", doc="column mapping NAME=COLUMN,... (e.g. 'ident=id')"),
     },
 }
 """Every accepted key by section ('' is the top level)."""
@@ -167,6 +177,7 @@ class Scenario:
     compass_bases: dict | None = None
     swing: dict | None = None
     runways: dict | None = None
+    navaids: dict | None = None
     raw: dict = field(default_factory=dict, repr=False)
 
     @property
@@ -399,6 +410,18 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
     sections = {}
     for name in SECTIONS:
         sections[name] = _section(raw[name], name, where, folder) if name in raw else None
+    for name, module in (("runways", "runways"), ("navaids", "navaids")):  # the column mappings, checked now
+        if sections.get(name) and sections[name]["columns"]:
+            from importlib import import_module
+
+            from .tables import parse_column_mapping
+
+            mod = import_module(f".{module}", __package__)
+            accepted = mod.ACCEPTED_COLUMNS if name == "runways" else mod.REQUIRED + mod.OPTIONAL
+            try:
+                parse_column_mapping(sections[name]["columns"], accepted, f"[{name}] columns")
+            except InputError as exc:
+                raise InputError(f"{where}: {exc}") from None
     zones = sections["zones"]
     if zones and zones["edge_lat_deg"] is None:
         zones["edge_lat_deg"] = CAPS[zones["cap"]].edge_lat_deg
