@@ -51,7 +51,7 @@ from .io import coordinate_column, read_table
 from .route_files import ROUTE_FILE_SUFFIXES, read_route_file
 from .units import NAUTICAL_MILE_M, ROUTE_HEIGHT_MAX_KM, decimal_year, height_column, parse_coordinate, parse_height_km
 
-__all__ = ["LEG_COLUMNS", "SAMPLE_COLUMNS", "RouteResult", "meridian_distance_m", "read_waypoints", "rhumb_inverse", "route", "route_geojson"]
+__all__ = ["LEG_COLUMNS", "SAMPLE_COLUMNS", "WEAK_FIELD_KINDS", "RouteResult", "weak_field_stretches", "meridian_distance_m", "read_waypoints", "rhumb_inverse", "route", "route_geojson"]
 
 GEOD = pyproj.Geod(ellps="WGS84")
 _A = GEOD.a  # WGS84 semi-major axis, m
@@ -282,11 +282,11 @@ SAMPLE_COLUMNS: tuple[str, ...] = (
 """Columns of :attr:`RouteResult.samples`, in order (see :func:`route`)."""
 
 
-def _stretches(dist_nm: np.ndarray, h_nT: np.ndarray, threshold: float) -> str:
-    """Stretches of one leg where H < threshold, as 'from-to' NM; ends by linear interpolation."""
+def _stretch_intervals(dist_nm: np.ndarray, h_nT: np.ndarray, threshold: float) -> list[tuple[float, float]]:
+    """Stretches of one leg where H < threshold, as (from, to) NM along it; ends by linear interpolation of H."""
     below = h_nT < threshold
     if not below.any():
-        return ""
+        return []
     starts = [dist_nm[0]] if below[0] else []
     ends = []
     for i in np.flatnonzero(np.diff(below.astype(np.int8))):
@@ -295,8 +295,12 @@ def _stretches(dist_nm: np.ndarray, h_nT: np.ndarray, threshold: float) -> str:
         (ends if below[i] else starts).append(x)
     if below[-1]:
         ends.append(dist_nm[-1])
-    parts = [f"{a:.1f}-{b:.1f}" for a, b in zip(starts, ends, strict=True)]
-    return "; ".join(parts)
+    return [(float(a), float(b)) for a, b in zip(starts, ends, strict=True)]
+
+
+def _stretches(dist_nm: np.ndarray, h_nT: np.ndarray, threshold: float) -> str:
+    """Stretches of one leg where H < threshold, as 'from-to' NM joined by '; '."""
+    return "; ".join(f"{a:.1f}-{b:.1f}" for a, b in _stretch_intervals(dist_nm, h_nT, threshold))
 
 
 class _Legs(NamedTuple):
@@ -636,24 +640,83 @@ def _json_value(value: Any) -> Any:
     return value
 
 
+def _unit_vectors(lat_deg: np.ndarray, lon_deg: np.ndarray) -> np.ndarray:
+    lat, lon = np.radians(lat_deg), np.radians(lon_deg)
+    return np.stack([np.cos(lat) * np.cos(lon), np.cos(lat) * np.sin(lon), np.sin(lat)], axis=-1)
+
+
+def _interpolate_position(dist: np.ndarray, lat: np.ndarray, lon: np.ndarray, at: float) -> tuple[float, float]:
+    """Position at ``at`` NM between the samples around it (interpolated on the unit sphere, pole- and 180-safe)."""
+    k = int(np.clip(np.searchsorted(dist, at), 1, dist.size - 1))
+    t = 0.0 if dist[k] == dist[k - 1] else (at - dist[k - 1]) / (dist[k] - dist[k - 1])
+    v = _unit_vectors(lat[k - 1 : k + 1], lon[k - 1 : k + 1])
+    p = (1.0 - t) * v[0] + t * v[1]
+    p = p / np.linalg.norm(p)
+    return float(np.degrees(np.arcsin(np.clip(p[2], -1.0, 1.0)))), float(np.degrees(np.arctan2(p[1], p[0])))
+
+
+WEAK_FIELD_KINDS = {"caution": "caution: weak horizontal field", "blackout": "blackout: no usable magnetic reference"}
+"""Kinds of :func:`weak_field_stretches` and their labels in GeoJSON / KML outputs."""
+
+
+def weak_field_stretches(result: RouteResult) -> list[dict]:
+    """The caution and blackout stretches of a route with their geometry.
+
+    One dict per stretch: ``leg, from, to, zone`` (``caution``: H below
+    :data:`headingref.field.CAUTION_NT`, blackout included; ``blackout``: H below
+    :data:`headingref.field.BLACKOUT_NT`), ``from_nm, to_nm`` along the leg, ``min_horizontal_nT``
+    and ``lat_deg, lon_deg`` lists: the samples inside the stretch with its two ends, found by
+    linear interpolation of H (as the legs table's ``*_stretches_nm``) and placed between the
+    samples around them.
+    """
+    from .field import BLACKOUT_NT, CAUTION_NT
+
+    out = []
+    for leg_no, part in result.samples.groupby("leg", sort=True):
+        h = part.horizontal_nT.to_numpy()
+        if not (h < CAUTION_NT).any():
+            continue
+        dist, lat, lon = (part[c].to_numpy() for c in ("distance_along_leg_nm", "lat_deg", "lon_deg"))
+        for zone, threshold in (("caution", CAUTION_NT), ("blackout", BLACKOUT_NT)):
+            for a, b in _stretch_intervals(dist, h, threshold):
+                inside = (dist > a) & (dist < b)
+                ends = [_interpolate_position(dist, lat, lon, x) for x in (a, b)]
+                out.append({
+                    "leg": int(leg_no), "from": part["from"].iloc[0], "to": part["to"].iloc[0], "zone": zone,
+                    "from_nm": a, "to_nm": b,
+                    "min_horizontal_nT": float(h[inside].min()) if inside.any() else float(min(threshold, h.min())),
+                    "lat_deg": [ends[0][0], *lat[inside].tolist(), ends[1][0]],
+                    "lon_deg": [ends[0][1], *lon[inside].tolist(), ends[1][1]],
+                })
+    return out
+
+
+def _line_geometry(lon: np.ndarray, lat: np.ndarray) -> dict:
+    pieces = _split_antimeridian(np.asarray(lon, dtype=np.float64), np.asarray(lat, dtype=np.float64))
+    if len(pieces) == 1:
+        return {"type": "LineString", "coordinates": pieces[0]}
+    return {"type": "MultiLineString", "coordinates": pieces}
+
+
 def route_geojson(result: RouteResult) -> dict:
     """The route as a GeoJSON FeatureCollection (WGS84 lon/lat degrees).
 
     One Feature per leg, a LineString through its samples, or a MultiLineString when the
     leg crosses the antimeridian (cut there, RFC 7946 section 3.1.9), with the leg's row of
-    the legs table as properties; and one Point per waypoint.
+    the legs table as properties; one Feature per weak-field stretch
+    (:func:`weak_field_stretches`, ``properties.kind`` ``caution``/``blackout`` and its label);
+    and one Point per waypoint.
     """
     legs, samples = result.legs, result.samples
     features = []
     for leg_no, part in samples.groupby("leg", sort=True):
-        pieces = _split_antimeridian(part.lon_deg.to_numpy(), part.lat_deg.to_numpy())
-        geometry = (
-            {"type": "LineString", "coordinates": pieces[0]}
-            if len(pieces) == 1
-            else {"type": "MultiLineString", "coordinates": pieces}
-        )
-        props = {"leg": int(leg_no), **{k: _json_value(v) for k, v in legs.iloc[int(leg_no) - 1].items()}}
+        geometry = _line_geometry(part.lon_deg.to_numpy(), part.lat_deg.to_numpy())
+        props = {"kind": "leg", "leg": int(leg_no), **{k: _json_value(v) for k, v in legs.iloc[int(leg_no) - 1].items()}}
         features.append({"type": "Feature", "properties": props, "geometry": geometry})
+    for stretch in weak_field_stretches(result):
+        props = {"kind": stretch["zone"], "label": WEAK_FIELD_KINDS[stretch["zone"]],
+                 **{k: _json_value(v) for k, v in stretch.items() if k not in ("lat_deg", "lon_deg", "zone")}}
+        features.append({"type": "Feature", "properties": props, "geometry": _line_geometry(stretch["lon_deg"], stretch["lat_deg"])})
     names = list(legs["from"]) + [legs["to"].iloc[-1]]
     lons = list(legs.from_lon_deg) + [legs.to_lon_deg.iloc[-1]]
     lats = list(legs.from_lat_deg) + [legs.to_lat_deg.iloc[-1]]
@@ -661,7 +724,7 @@ def route_geojson(result: RouteResult) -> dict:
         features.append(
             {
                 "type": "Feature",
-                "properties": {"waypoint": i + 1, "name": str(name)},
+                "properties": {"kind": "waypoint", "waypoint": i + 1, "name": str(name)},
                 "geometry": {"type": "Point", "coordinates": [float(lo), float(la)]},
             }
         )

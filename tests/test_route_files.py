@@ -147,3 +147,94 @@ def test_gpx_waypoints_alone_are_not_a_route(tmp_path):
 def test_route_name_on_csv_refused(tmp_path):
     with pytest.raises(InputError, match="applies to GPX, KML or GeoJSON"):
         route(_csv(tmp_path), DATE, route_name="X")
+
+
+# --------------------------------------------------------------------------- outputs: KML and GeoJSON stretches
+
+
+@pytest.fixture(scope="module")
+def weak_route():
+    # invented legs into and out of the weak-field region round the north dip pole (85 N 140 E in 2026)
+    return route([("AAA", 66.0, 90.0, "FL350"), ("BBB", 85.0, 140.0, "FL350"), ("CCC", 68.0, -150.0, "FL350")],
+                 DATE, spacing_nm=10.0)
+
+
+def _ppigrf_h(lat, lon, alt_km):
+    import datetime as dt
+
+    import numpy as np
+    import ppigrf
+
+    east, north, _ = ppigrf.igrf(lon, lat, alt_km, dt.datetime(2026, 12, 2))  # independent IGRF-14 synthesis
+    return float(np.hypot(east, north).ravel()[0])
+
+
+def test_stretch_ends_sit_at_the_thresholds(weak_route):
+    from headingref.routes import weak_field_stretches
+
+    stretches = weak_field_stretches(weak_route)
+    assert {s["zone"] for s in stretches} == {"caution", "blackout"}
+    checked = 0
+    for s in stretches:
+        threshold = 6000.0 if s["zone"] == "caution" else 2000.0  # WMM2025 report: caution < 6000 nT, blackout < 2000 nT
+        length = weak_route.legs.distance_nm.iloc[s["leg"] - 1]
+        for k, at in ((0, s["from_nm"]), (-1, s["to_nm"])):
+            if 0.0 < at < length:  # an end inside the leg: H crosses the threshold there
+                # H from ppigrf at the interpolated end: at the threshold within what 10-NM sampling allows
+                assert _ppigrf_h(s["lat_deg"][k], s["lon_deg"][k], 10.668) == pytest.approx(threshold, abs=1.0)
+                checked += 1
+    assert checked == 4
+
+
+def test_geojson_has_stretch_features(weak_route):
+    from headingref.routes import route_geojson, weak_field_stretches
+
+    features = route_geojson(weak_route)["features"]
+    kinds = [f["properties"]["kind"] for f in features]
+    assert kinds.count("leg") == 2 and kinds.count("waypoint") == 3
+    assert kinds.count("caution") + kinds.count("blackout") == len(weak_field_stretches(weak_route))
+    blackout = next(f for f in features if f["properties"]["kind"] == "blackout")
+    assert blackout["properties"]["label"] == "blackout: no usable magnetic reference"
+    assert blackout["properties"]["min_horizontal_nT"] < 2000.0
+
+
+def test_kml_output_reads_back(weak_route, tmp_path):
+    import defusedxml.ElementTree as DET
+
+    from headingref.route_files import KML_NS, route_kml
+    from headingref.routes import weak_field_stretches
+
+    text = route_kml(weak_route)
+    root = DET.fromstring(text.encode("utf-8"))
+    assert root.tag == KML_NS + "kml"  # KML 2.2 namespace (OGC 07-147r2)
+    styles = [m.findtext(KML_NS + "styleUrl") for m in root.iter(KML_NS + "Placemark")]
+    assert styles.count("#leg") == 2
+    assert styles.count("#caution") + styles.count("#blackout") == len(weak_field_stretches(weak_route))
+    # the written KML reads back as a route file: several lines, so one is picked by name
+    path = tmp_path / "out.kml"
+    path.write_text(text, encoding="utf-8")
+    with pytest.raises(InputError, match="say which with --route NAME"):
+        read_route_file(path)
+    back = read_route_file(path, route_name="AAA - BBB")
+    assert back[0]["name"] == "AAA" and back[-1]["name"] == "BBB"
+
+
+def test_kml_escapes_user_text(tmp_path):
+    import defusedxml.ElementTree as DET
+
+    from headingref.route_files import KML_NS, route_kml
+
+    result = route([("A<b>&\"x", 70.0, 10.0), ("B", 71.0, 12.0)], DATE, spacing_nm=50.0)
+    root = DET.fromstring(route_kml(result).encode("utf-8"))
+    names = [m.findtext(KML_NS + "name") for m in root.iter(KML_NS + "Placemark")]
+    assert 'A<b>&"x' in names  # the name comes back as the same plain text
+
+
+def test_cli_writes_kml(tmp_path, capsys):
+    from headingref.cli import main
+
+    src = _csv(tmp_path)
+    code = main(["route", "--input", str(src), "--date", DATE, "--output", str(tmp_path / "legs.csv"),
+                 "--kml", str(tmp_path / "r.kml")])
+    assert code == 0
+    assert (tmp_path / "r.kml").read_text(encoding="utf-8").startswith("<?xml")

@@ -5,7 +5,7 @@ from __future__ import annotations
 EXAMPLES = """\
   headingref route --input route.csv --date 2026-12-02 --output legs.csv
   headingref route --input route.csv --date 2026-12-02 --grid polar:-45 --spacing 5 --alt FL350 \\
-      --output legs.csv --samples samples.csv --geojson route.geojson --plot route.png --profile profile.png
+      --output legs.csv --samples samples.csv --geojson route.geojson --kml route.kml --plot route.png --profile profile.png
   headingref route --input route.csv --date 2027.5 --rhumb --grid lcc:60,75,15 --output legs.csv
   headingref route --input plan.gpx --route "TM101" --date 2026-12-02 --output legs.csv"""
 
@@ -45,6 +45,7 @@ def register(subparsers) -> None:
     parser.add_argument("--output", required=True, metavar="CSV", help="legs table")
     parser.add_argument("--samples", metavar="CSV", help="every sample point along the route")
     parser.add_argument("--geojson", metavar="FILE", help="legs as GeoJSON lines (cut at the antimeridian) and waypoints")
+    parser.add_argument("--kml", metavar="FILE", help="legs, weak-field stretches (own styles) and waypoints as KML 2.2")
     parser.add_argument("--plot", metavar="PNG", help="route map with isogonic lines and weak-field zones")
     parser.add_argument("--profile", metavar="PNG", help="variation, H and declination uncertainty along the route")
     add_model_options(parser)
@@ -79,10 +80,11 @@ def run(args) -> int:
     from ..field import BLACKOUT_NT, CAUTION_NT
     from ..io import all_or_nothing, write_csv, write_text
     from ..notices import CAUTION
+    from ..route_files import route_kml
     from ..routes import route, route_geojson
     from .common import check_outputs
 
-    check_outputs(files=[args.output, args.samples, args.geojson], figures=[args.plot, args.profile],
+    check_outputs(files=[args.output, args.samples, args.geojson, args.kml], figures=[args.plot, args.profile],
                   inputs=[args.input, args.model])
     result = route(
         args.input,
@@ -97,6 +99,7 @@ def run(args) -> int:
     )
     legs = result.legs
     geojson_text = json.dumps(route_geojson(result), indent=1) if args.geojson else None
+    kml_text = route_kml(result) if args.kml else None
     total = legs.distance_nm.sum()
     print(
         f"Route {legs['from'].iloc[0]} to {legs['to'].iloc[-1]}: {len(legs)} legs, {total:,.1f} NM, "
@@ -118,6 +121,8 @@ def run(args) -> int:
             write_csv(args.samples, result.samples)
         if geojson_text is not None:
             write_text(args.geojson, geojson_text + "\n")
+        if kml_text is not None:
+            write_text(args.kml, kml_text)
         if args.plot or args.profile:
             import matplotlib
 
