@@ -98,3 +98,19 @@ def test_cli_writes_xlsx_and_map(tmp_path, capsys):
     header = next(openpyxl.load_workbook(out, read_only=True).worksheets[0].iter_rows(values_only=True))
     assert "difference_deg (deg, variation - station declination)" in header
     assert fig.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+
+
+def test_scenario_navaids_section_and_column_mapping(tmp_path):
+    # The [navaids] section is validated when the scenario loads; a mapping naming a column headingref
+    # does not read is refused there with the section named.
+    from headingref.scenario import load_scenario
+
+    (tmp_path / "vors.csv").write_text(DEMO.read_text(encoding="utf-8"), encoding="utf-8")
+    good = tmp_path / "good.toml"
+    good.write_text('analysis_date = "2026-12-02"\n[navaids]\nfile = "vors.csv"\ntolerance_deg = 2.0\n', encoding="utf-8")
+    sc = load_scenario(good)
+    assert sc.navaids["tolerance_deg"] == 2.0 and sc.navaids["horizon_years"] == 10.0
+    bad = tmp_path / "bad.toml"
+    bad.write_text('analysis_date = "2026-12-02"\n[navaids]\nfile = "vors.csv"\ncolumns = "callsign=id"\n', encoding="utf-8")
+    with pytest.raises(InputError, match=r"\[navaids\] columns"):
+        load_scenario(bad)
