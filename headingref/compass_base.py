@@ -85,6 +85,7 @@ from .units import (
     height_column,
     parse_coordinate,
     parse_height_km,
+    parse_number,
     timestamp_from_decimal_year,
 )
 
@@ -249,9 +250,9 @@ def read_sites_csv(path: str | os.PathLike, tolerance_deg: float | None = None, 
                 extra[column] = fallback
                 continue
             try:
-                extra[column] = float(cell)
-            except ValueError:
-                raise InputError(f"{where}: {column} {cell!r} is not a number") from None
+                extra[column] = parse_number(cell, column)  # plain ASCII decimal only: 6_1 or nan refused
+            except InputError as exc:
+                raise InputError(f"{where}: {exc}") from None
         if not record["name"]:
             raise InputError(f"{where}: name is empty; give each base a name")
         cell = record[height] if height else ""
@@ -451,7 +452,8 @@ def base_upkeep(
     from .model import load_model
 
     sites = _site_list(sites)
-    if not math.isfinite(mark_step_deg) or not 0.01 <= mark_step_deg <= 5:
+    mark_step_deg = parse_number(mark_step_deg, "mark_step_deg")
+    if not 0.01 <= mark_step_deg <= 5:
         raise InputError(f"mark step {mark_step_deg!r} deg: give a rounding step from 0.01 to 5 degrees (0.5 or 1)")
     swing_year = float(decimal_year(swing_date))
     loaded = load_model(model)

@@ -94,7 +94,6 @@ from __future__ import annotations
 
 import math
 import os
-import re
 import warnings
 from collections.abc import Sequence
 from dataclasses import dataclass, field
@@ -835,18 +834,19 @@ def _find_column(header: Sequence[str], accepted: Sequence[str], label: str, wha
     return found[0] if found else None
 
 
-_PLAIN_NUMBER = re.compile(r"[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)")
-
-
 def _heading_cell(cell: str, where: str, what: str, points: bool) -> float:
-    """A heading cell: plain ASCII decimal degrees, or (``points``) a compass point N..NNW."""
-    text = cell.strip().replace("−", "-")
+    """A heading cell: a plain ASCII decimal number of degrees (:func:`headingref.units.parse_number`),
+    or (``points``) a compass point N..NNW."""
+    from .units import NUMBER_HELP, parse_number
+
+    text = cell.strip()
     if points and text.upper() in COMPASS_POINTS_DEG:
         return COMPASS_POINTS_DEG[text.upper()]
-    if not _PLAIN_NUMBER.fullmatch(text):
-        accepted = "plain decimal degrees (045, 45.0)" + (" or a compass point (N, NNE, NE, ..., NNW)" if points else "")
-        raise InputError(f"{where}: {what} {cell!r} is not understood; give {accepted}")
-    value = float(text)
+    try:
+        value = parse_number(text, what)
+    except InputError:
+        accepted = f"degrees as {NUMBER_HELP}" + (", or a compass point (N, NNE, NE, ..., NNW)" if points else "")
+        raise InputError(f"{where}: {what} {cell!r} is not understood; give {accepted}") from None
     if not -360.0 <= value <= 720.0:
         raise InputError(f"{where}: {what} {cell!r} is outside -360 to 720 deg")
     return value

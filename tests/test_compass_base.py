@@ -305,3 +305,22 @@ def test_history_rows_at_different_positions_name_the_row(tmp_path):
     path = sites_file(tmp_path, "Invented base,70,20,8.9E,2019-01-01", "Invented base,70.5,20,8.0E,2016-01-01")
     with pytest.raises(InputError, match="sites.csv line 2: base 'Invented base' is at a different position from sites.csv line 3"):
         read_sites_csv(path)
+
+
+@pytest.mark.parametrize("cell", ["6_1", "nan", "٥", "0x10"])
+def test_lenient_tolerance_numbers_are_refused(tmp_path, cell):
+    # Issue 12 item 9: only plain ASCII decimal numbers; '6_1' was read as 61.
+    path = tmp_path / "sites.csv"
+    path.write_text(f"name,lat,lon,surveyed_variation,survey_date,tolerance_deg\nInvented,60,10,3E,2020-01-01,{cell}\n", encoding="utf-8")
+    with pytest.raises(InputError, match="sites.csv line 2: tolerance_deg .* is not a number"):
+        read_sites_csv(path)
+
+
+@pytest.mark.parametrize(("argument", "value"), [("sites", "base"), ("sites", [1, 2]), ("mark_step_deg", "x"), ("mark_step_deg", float("nan"))])
+def test_upkeep_bad_argument_types_are_input_errors(argument, value):
+    # Issue 12 item 7: wrong types raise InputError naming the argument, not a raw Python error.
+    site = make_site("Invented", 60, 10, "3E", "2020-01-01")
+    kwargs = {"sites": [site], "swing_date": "2020-06-01", "variation_function": constant_rate(3.0, 0.1, 2020.0)}
+    kwargs[argument] = value
+    with pytest.raises(InputError, match=argument.split("_deg")[0]):
+        base_upkeep(**kwargs)

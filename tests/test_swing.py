@@ -382,7 +382,7 @@ def test_plain_heading_numbers_round_trip(tmp_path_factory, value):
     assert m[0] == value and c[0] == value
 
 
-@pytest.mark.parametrize("cell", ["6_1", "٤٥", "４５", "nan", "inf", "1e2", "NE2"])
+@pytest.mark.parametrize("cell", ["6_1", "٤٥", "４５", "nan", "inf", "0x10", "NE2"])
 def test_lenient_numbers_are_refused(tmp_path, cell):
     # Issue 12 item 9: only plain ASCII decimal numbers (and the compass points) are headings.
     from headingref.swing import read_swing_csv
@@ -437,7 +437,7 @@ def test_cli_refuses_non_finite_limits(tmp_path, capsys, option):
     # Issue 12 item 9: '--max-deviation nan' turned the plausibility check off.
     assert main(["swing", "--input", str(DATA / "swing_handbook_501.csv"), option, "nan"]) == 2
     err = capsys.readouterr().err.strip()
-    assert "not a plain finite decimal number" in err and len(err.splitlines()) == 1
+    assert "'nan' is not a number" in err and option in err and len(err.splitlines()) == 1
 
 
 # ------------------------------------------------------------------------------ the card as a document

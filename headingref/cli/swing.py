@@ -16,14 +16,11 @@ EXAMPLES = """\
 
 
 def finite_float(text, what: str = "value") -> float:
-    """A plain finite decimal number (refuses nan, inf, 1_0, exponents and non-ASCII digits), or
-    InputError naming the option: a one-line error, not argparse's usage block."""
-    import re
+    """A plain finite decimal number (:func:`headingref.units.parse_number`: refuses nan, inf, 1_0 and
+    non-ASCII digits), or a one-line InputError naming the option (not argparse's usage block)."""
+    from ..units import parse_number
 
-    cleaned = str(text).strip().replace("−", "-")
-    if not re.fullmatch(r"[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)", cleaned):
-        raise InputError(f"{what} {text!r} is not a plain finite decimal number (e.g. 10 or 2.5)")
-    return float(cleaned)
+    return parse_number(text, what)
 
 
 def option_number(value, what: str):
