@@ -39,10 +39,11 @@ def choose_rows(result: RunwayCheck, runways: Sequence[str] | None = None, limit
     """Row positions to plot.
 
     ``runways`` names ends as ``'AIRPORT RWY'`` (e.g. ``'NORDVIK 09'``) or by row position
-    (``'3'``); with none given, the soonest changes, then the ends closest to a boundary.
+    (``'3'``); with none given, the soonest changes, then the ends closest to a boundary, one
+    end per runway.
     """
     table = result.table
-    usable = np.flatnonzero(np.isfinite(table["magnetic_bearing_deg"].to_numpy(dtype=float)))
+    usable = np.flatnonzero(np.isfinite(table["runway_magnetic_deg"].to_numpy(dtype=float)))
     if runways:
         labels = (table["airport"].astype(str) + " " + table["runway"].astype(str)).str.upper().tolist()
         chosen = []
@@ -58,10 +59,14 @@ def choose_rows(result: RunwayCheck, runways: Sequence[str] | None = None, limit
                 raise InputError(f"runway {name!r} has no magnetic azimuth to plot: {table['reason'].iat[position]}")
             chosen.append(position)
         return chosen
-    changing = [table.index.get_loc(i) for i in result.changes.index]
+    changing = [int(r) for r in result.changes["row"]] if len(result.changes) else []
     by_margin = usable[np.argsort(table["margin_deg"].to_numpy(dtype=float)[usable], kind="stable")]
     ordered = list(dict.fromkeys(changing + [int(i) for i in by_margin]))
-    return ordered[:limit]
+    # one panel per runway: the two ends of a pair share one decision (the same curve, 180 deg apart)
+    keys = (table["airport"].astype(str) + " " + table["runway_id"].astype(str)).to_numpy()
+    seen: set[str] = set()
+    unique = [i for i in ordered if not (keys[i] in seen or seen.add(keys[i]))]
+    return unique[:limit]
 
 
 def runway_bearing_figure(result: RunwayCheck, runways: Sequence[str] | None = None, limit: int = 6, samples: int = 240):
@@ -94,12 +99,12 @@ def runway_bearing_figure(result: RunwayCheck, runways: Sequence[str] | None = N
         end = start + 1.0 / 12.0
     years = np.linspace(start, end, samples)
     series = magnetic_bearing_series(result, rows, years)
-    tolerance = result.summary["tolerance_deg"]
     valid_to = result.model.valid_to if result.model is not None else np.inf
     fig = Figure(figsize=(8.0, 1.2 + 2.0 * len(rows)), layout="constrained")
     axes = np.atleast_1d(fig.subplots(len(rows), 1, sharex=True, squeeze=False)[:, 0])
     for ax, position, column in zip(axes, rows, series.columns, strict=True):
         row = result.table.iloc[position]
+        band = float(row.band_deg) if np.isfinite(row.band_deg) else result.summary["tolerance_deg"]
         values = series[column].to_numpy()
         low, high = float(values.min()), float(values.max())
         pad = max(1.0, 0.25 * (high - low))
@@ -107,7 +112,7 @@ def runway_bearing_figure(result: RunwayCheck, runways: Sequence[str] | None = N
         ax.set_ylim(y_low, y_high)
         boundaries = np.arange(np.floor((y_low - 5.0) / 10.0) * 10.0 + 5.0, y_high + 10.0, 10.0)
         for boundary in boundaries:
-            ax.axhspan(boundary - tolerance, boundary + tolerance, color=_BAND_COLOUR, linewidth=0)
+            ax.axhspan(boundary - band, boundary + band, color=_BAND_COLOUR, linewidth=0)
             ax.axhline(boundary, color=_BOUNDARY_COLOUR, linewidth=0.9, linestyle="--")
         for lower in boundaries:  # label each designator's band where it shows
             shown_low, shown_high = max(lower, y_low), min(lower + 10.0, y_high)
@@ -120,6 +125,8 @@ def runway_bearing_figure(result: RunwayCheck, runways: Sequence[str] | None = N
             ax.axvspan(max(valid_to, start), end, color="#dddddd", linewidth=0, zorder=0)
             ax.text(max(valid_to, start), y_high, " extrapolated", va="top", ha="left", fontsize=7, color="#555555")
         title = f"{row.airport} {row.runway}: implied {row.designator_implied} ({row.verdict or row.status})"
+        if row.last_fit_date:
+            title += f", painted number last fitted {row.last_fit_date}"
         if row.change_date:
             change = float(decimal_year(row.change_date))
             ax.axvline(change, color="black", linewidth=0.8, linestyle=":")
@@ -130,8 +137,8 @@ def runway_bearing_figure(result: RunwayCheck, runways: Sequence[str] | None = N
         ax.grid(axis="x", linewidth=0.3)
     axes[-1].set_xlabel("year")
     fig.suptitle(
-        f"Runway magnetic azimuth ({result.summary['model']}); dashed: rounding boundaries, shaded: "
-        f"±{tolerance:g}° 'on boundary' band",
+        f"Runway magnetic azimuth ({result.summary['model']}; mean of both ends for a pair); dashed: rounding "
+        f"boundaries, shaded: band ({result.summary.get('band', '')}) either side",
         fontsize=9,
     )
     return plain_text(fig)  # airport and runway names from the user's table are drawn as typed
