@@ -283,8 +283,11 @@ def test_cli_writes_coefficients_card_and_residuals(tmp_path, capsys):
 def test_handbook_501_verdict_as_measured_and_after_compensation():
     # tests/data/swing_handbook_501.csv holds the NGA Handbook of Magnetic Compass Adjustment (2004,
     # Pub. 226) art. 501 deviations (N 10.5E, NE 20.0E, E 11.5E, SE 1.2W, S 5.5W, SW 8.0W, W 12.5W,
-    # NW 6.8W) put on the magnetic headings 000..315 (compass = magnetic - deviation). Its B of 12 deg
-    # must not pass as it stands.
+    # NW 6.8W) put on the magnetic headings 000..315 (compass = magnetic - deviation). The handbook
+    # tabulates them against the ship's *compass* heading; on the base the aircraft sits on magnetic
+    # headings, so the file is the handbook's numbers on our independent variable, not a re-derivation
+    # (stored copy of art. 501 read: data, signs "east plus, west minus" and 8A = sum of the eight).
+    # Its B of 12 deg must not pass as it stands.
     from headingref.swing import read_swing_csv
 
     magnetic, compass, rows = read_swing_csv(DATA / "swing_handbook_501.csv")
@@ -472,3 +475,20 @@ def test_card_base_not_in_file_lists_names(capsys):
     assert code == 2
     err = capsys.readouterr().err
     assert "base 'Nowhere base' is not in" in err and "Svalbrekka compass base" in err
+
+
+@settings(max_examples=100, deadline=None)
+@given(value=st.floats(min_value=-29.9, max_value=29.9, allow_nan=False).map(lambda v: round(v, 2)),
+       style=st.sampled_from(["suffix", "prefix", "sign"]))
+def test_deviation_column_forms(tmp_path_factory, value, style):
+    # Deviation written as the handbook prints it (10.5E, 1.2W: east plus, west minus, Pub. 226 art. 501)
+    # or signed; magnetic = compass + deviation (AC 43-17), so compass = magnetic - deviation.
+    from headingref.swing import read_swing_csv
+
+    letter = "E" if value >= 0 else "W"
+    text = {"suffix": f"{abs(value):.2f}{letter}", "prefix": f"{letter}{abs(value):.2f}", "sign": f"{value:.2f}"}[style]
+    path = tmp_path_factory.mktemp("d") / "r.csv"
+    path.write_text(f"heading,deviation\nE,{text}\n", encoding="utf-8")
+    magnetic, compass, _ = read_swing_csv(path)
+    assert magnetic[0] == 90.0
+    assert float(deviation_from_readings(magnetic, compass)[0]) == pytest.approx(value, abs=1e-9)
