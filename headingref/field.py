@@ -372,6 +372,7 @@ def field_grid(
     alt_km: float = 0.0,
     model: Model | str | None = None,
     allow_extrapolation: bool = False,
+    chunks: dict | None = None,
 ):
     """The field on a regular latitude-longitude grid, as an xarray Dataset.
 
@@ -384,6 +385,11 @@ def field_grid(
     lats, lons : 1-D array-like, degrees
     date : one date or a sequence of dates (then a ``time`` dimension, decimal years)
     alt_km : float, height above the ellipsoid (km)
+    chunks : dict, optional
+        ``{"lat": n, "lon": n, "time": n}`` (nodes per chunk; a missing one is the whole dimension):
+        return a dask-backed Dataset computed chunk by chunk when its values are used or written
+        (``to_netcdf``, ``to_zarr``), equal to the eager one; no node limit then. Needs dask
+        (``pip install "headingref[dask]"``); see :mod:`headingref.chunked`.
 
     Returns
     -------
@@ -406,6 +412,11 @@ def field_grid(
     alt = float(alt.ravel()[0])
     multi = not isinstance(date, str) and np.ndim(date) > 0
     years = np.atleast_1d(decimal_year(date)).astype(np.float64)
+    if chunks is not None:  # lazy, chunk by chunk with the same kernels (headingref.chunked)
+        model.check_dates(years, allow_extrapolation)
+        from .chunked import chunked_field_grid
+
+        return chunked_field_grid(lat_a, lon_a, years, alt, model, chunks, multi)
     nodes = lat_a.size * lon_a.size * years.size
     if nodes > MAX_GRID_NODES:
         raise InputError(
