@@ -11,52 +11,97 @@ letter (two: L, R; three: L, C, R; paragraph 5.2.2.5, from memory). A result of 
 (north), so the designator always lies in 01..36 (common practice; it follows from the
 rule: 355 up to 360 degrees rounds to 36).
 
-Boundary policy
----------------
+FAA Advisory Circular 150/5340-1J (Standards for Airport Markings), runway designation marking,
+states the same rule for single and dual/triple parallel runways ("the whole number nearest
+one-tenth of the magnetic azimuth when viewed from the direction of approach"; worked example
+183 degrees -> 18, as quoted publicly), except that in the United States a single digit is not
+preceded by a zero; headingref always writes two digits.
+
+Boundary policy and verdicts
+----------------------------
 The rounding boundaries sit at azimuths ending in 5 (85 and 95 degrees bound 09). At an exact
 tie (85.000...) :func:`designator_from_magnetic` rounds half up (to the higher number), as the
 US Navy airfield marking manual states ("5 degrees or more, the designation is the next
 higher number"), while the FAA Aeronautical Information Manual 4-3-6 says a magnetic
 azimuth ending in 5 may be designated either way. Because authorities differ, and because the
-model declination itself is uncertain by a few tenths of a degree (see
-``variation_uncertainty_deg``), :func:`check_runways` gives no verdict inside a band of
-``tolerance_deg`` either side of a boundary: a published designator equal to either
-neighbouring number is reported ``on boundary``. The default band, 0.25 degree
-(:data:`BOUNDARY_TOLERANCE_DEG`), is headingref's own choice (common practice for survey
-rounding of azimuths to the quarter degree; no published figure found) and can be changed.
+model declination itself is uncertain (``variation_uncertainty_deg``), each runway has a *band*
+either side of a boundary: ``tolerance_deg`` (default 0.25 degree, :data:`BOUNDARY_TOLERANCE_DEG`,
+headingref's own choice: common practice for survey rounding of azimuths to the quarter
+degree; no published figure found), or, with ``band_sigmas=k``, k times the local one-sigma
+declination uncertainty of the field model (WMM error model, see :mod:`headingref.field`),
+which is the meaningful band where the horizontal field is weak (sigma 1.6 degrees makes a
+fixed 0.25 degree band meaningless). The verdict (:data:`VERDICTS`):
 
-Geometry and field
-------------------
-True azimuth: the WGS84 geodesic from this end's threshold towards the opposite threshold
-(``pyproj.Geod.inv``, Karney's algorithm). Variation: the field model (IGRF-14 by default) at
-the midpoint of the geodesic between the thresholds (at the threshold when only a true
-bearing is given), at the runway elevation if given (taken as height above the ellipsoid; the
-geoid separation of at most ~100 m changes the declination by far less than its uncertainty).
-Magnetic azimuth = true azimuth - variation (east positive).
+- ``match``: the painted number is the implied one and the azimuth is outside the band;
+- ``match near boundary``: it still fits, but the azimuth is within the band of a boundary;
+- ``mismatch within band``: it no longer fits, but it is the number just across a boundary
+  that lies within the band (the designator has already changed, within the uncertainty);
+- ``mismatch``: it does not fit.
 
-Forecast
---------
-The designator changes when the magnetic azimuth crosses a boundary. Headingref's models are
-piecewise linear in time in their Gauss coefficients (IGRF: linear between 5-year epochs;
-WMM: linear secular variation), so at a fixed place the north and east components X(t), Y(t)
-are linear between the model's epochs. :func:`check_runways` evaluates the field for all
-runways at the check date, every model epoch inside the horizon and the horizon's end in one
-vectorised call and interpolates X and Y linearly between them (exact for such models);
-:func:`forecast_designator_changes` then samples the designator on a monthly grid, brackets
-the first change and bisects on whole days. Any variation-against-time function can be
-given to :func:`forecast_designator_changes` instead.
+Geometry and field: one point per runway
+----------------------------------------
+The true azimuth and the variation are taken at the same point, the runway's *reference
+point*: the midpoint of the centre line (the WGS84 geodesic between the two thresholds,
+``pyproj.Geod``, Karney's algorithm). The true azimuth is the geodesic's forward azimuth at
+that midpoint (``true_bearing_deg``); the variation is the field model's (IGRF-14 by default)
+there (``variation_deg``), at the runway elevation if given (taken as height above the
+ellipsoid; the geoid separation of at most ~100 m changes the declination by far less than
+its uncertainty). When only ``true_bearing_deg`` is given, that bearing is used as given and
+the point is the threshold. Magnetic azimuth = true azimuth - variation (east positive).
+
+Runway pairs: one decision per runway
+-------------------------------------
+A runway is renamed as a pair, so the two reciprocal ends of one runway (found by designator,
+number +/- 18 with L<->R, or by coordinates when the painted numbers disagree) are decided
+together. headingref's rule: the runway's magnetic azimuth (``runway_magnetic_deg``) is the
+circular mean of the first-listed end's azimuth and the reciprocal of the other end's, both at
+one reference point (the first-listed end's midpoint); the other end's is that plus 180
+degrees. The implied designators therefore always differ by exactly 18 (rounding ``x + 180``
+gives ``round(x) + 18``), both ends get one verdict basis and the same change dates, and the
+pair is also checked on the implied designators. Ends whose true azimuths are not opposite
+within 3 degrees stay separate (and are warned). The mean is used rather than "the first end to
+change" because a consistent survey gives exactly opposite azimuths at the midpoint: the mean
+only absorbs small survey inconsistencies and favours neither end (headingref's choice; neither
+Annex 14 nor AC 150/5340-1J addresses it, common practice is to repaint both ends together).
+
+Forecast, every change, and since when a designator is stale
+------------------------------------------------------------
+Headingref's models are piecewise linear in time in their Gauss coefficients (IGRF: linear
+between 5-year epochs; WMM: linear secular variation), so at a fixed place the north and east
+components X(t), Y(t) are linear between the model's epochs. Between two knots the horizontal
+vector moves on a straight line, the declination is monotonic there, and the instant the
+magnetic azimuth reaches a boundary b solves ``Y cos(T - b) - X sin(T - b) = 0``, linear in
+time. :func:`check_runways` evaluates the field once for all runways at the check date, the
+model epochs inside the horizon and the horizon's end, and lists *every* boundary crossing
+(``changes``, ``all_changes``): exact, no sampling, nothing missed. The change date is the
+first whole day after the crossing. :func:`forecast_designator_changes` keeps the older
+sampling-and-bisection core for any variation-against-time function.
+
+``last_fit_date``: for a painted designator that does not fit now, the last date on or before
+the check date on which it did, searched back to the model's start (IGRF-14: 1900-01-01) with
+the same exact crossings over the model's epochs; ``not since 1900-01-01`` when it never did
+in that time (likely a data error rather than an old painting); empty when it fits now.
 
 Beyond the model's validity (IGRF-14: up to 2030.0) the forecast stops at the validity end
 unless ``allow_extrapolation=True``, which extends the last secular variation linearly and
 warns (:class:`~headingref.errors.ExtrapolationWarning`).
+
+Real files
+----------
+CSV or ``.xlsx`` (first sheet; openpyxl), one row per end or one row per runway (``end1_*``,
+``end2_*``, split into two ends), with a column mapping for other names
+(``columns="runway=ident,lat=le_lat"``, :func:`headingref.tables.parse_column_mapping`).
+:func:`write_runway_table` writes CSV or ``.xlsx`` with rounded values (:data:`DECIMALS`) and
+units in the header (:data:`UNITS`).
 
 Public API
 ----------
 - :func:`check_runways` -> :class:`RunwayCheck` (``.table``, ``.summary``, ``.changes``)
 - :func:`designator_from_magnetic`, :func:`boundary_margin_deg`, :func:`parse_designator`,
   :func:`format_designator`, :func:`reciprocal_designator`
-- :func:`forecast_designator_changes` (the forecast core, variation function injectable)
-- :func:`magnetic_bearing_series` (magnetic azimuth against time, for plots)
+- :func:`forecast_designator_changes` (sampling core, variation function injectable)
+- :func:`magnetic_bearing_series` (runway magnetic azimuth against time, for plots)
+- :func:`write_runway_table`; :data:`OUTPUT_COLUMNS`, :data:`CHANGE_COLUMNS`, :data:`VERDICTS`
 
 >>> import pandas as pd
 >>> from headingref.runways import check_runways, designator_from_magnetic
