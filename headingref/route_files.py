@@ -22,12 +22,10 @@ Anything ambiguous is refused in one line: two routes, tracks or lines need ``ro
 CLI's ``--route NAME``); a MultiLineString, a file with neither a line nor points, an unknown name.
 XML is read through defusedxml (no entity expansion, no external entities: safe against XML bombs).
 
-Output: :func:`route_kml` writes a route as KML 2.2 for a globe or GIS: one styled line per
-leg, the weak-field stretches (caution; blackout: no usable magnetic reference) as their own
-styled placemarks, and the waypoints. Text from the user (waypoint names) is written as XML
-character data, escaped by the standard library's ElementTree.
+The KML output of a route is :func:`headingref.routes.route_kml` (this module sits below
+:mod:`headingref.routes`).
 
-Public API: :func:`read_route_file`, :func:`route_kml`, :data:`ROUTE_FILE_SUFFIXES`.
+Public API: :func:`read_route_file`, :data:`ROUTE_FILE_SUFFIXES`, :data:`KML_NS`.
 """
 
 from __future__ import annotations
@@ -39,7 +37,7 @@ from typing import Any
 
 from .errors import InputError
 
-__all__ = ["ROUTE_FILE_SUFFIXES", "read_route_file", "route_kml"]
+__all__ = ["KML_NS", "ROUTE_FILE_SUFFIXES", "read_route_file"]
 
 ROUTE_FILE_SUFFIXES = {".gpx": "gpx", ".kml": "kml", ".geojson": "geojson", ".json": "geojson"}
 """File name endings read by :func:`read_route_file` (any other ending is read as CSV)."""
@@ -237,92 +235,3 @@ def read_route_file(path: Any, route_name: str | None = None) -> list[dict]:
     if len(records) < 2:
         raise InputError(f"{label}: the route has {len(records)} point(s); a route needs at least two")
     return records
-
-
-# --------------------------------------------------------------------------- KML output
-
-# KML colours are aabbggrr (OGC 07-147r2, 16.9 kml:color); the same colours as headingref.plots.route
-_KML_STYLES = {
-    "leg": ("ff794e1f", 3.0),
-    "caution": ("ff34b1f2", 7.0),
-    "blackout": ("ff5b49d1", 9.0),
-}
-
-
-def _kml_coords(lat: Any, lon: Any) -> str:
-    return " ".join(f"{float(lo):.7f},{float(la):.7f},0" for la, lo in zip(lat, lon, strict=True))
-
-
-def route_kml(result: Any, name: str | None = None) -> str:
-    """The route as a KML 2.2 document (text).
-
-    One placemark per leg (a LineString through its samples, with distance, courses at the start
-    and the least H in its description), one per weak-field stretch
-    (:func:`headingref.routes.weak_field_stretches`: ``caution`` and ``blackout`` in their own
-    folders and styles), and one Point per waypoint. Lines are tessellated (drawn on the ground);
-    samples every ``spacing_nm`` keep them on the route across the antimeridian and near the poles.
-    """
-    import xml.etree.ElementTree as ET
-
-    from .routes import WEAK_FIELD_KINDS, weak_field_stretches
-
-    legs, samples = result.legs, result.samples
-    ET.register_namespace("", KML_NS[1:-1])
-
-    def sub(parent, tag: str, text: str | None = None, **attrib):
-        element = ET.SubElement(parent, KML_NS + tag, attrib)
-        if text is not None:
-            element.text = text
-        return element
-
-    root = ET.Element(KML_NS + "kml")
-    doc = sub(root, "Document")
-    title = name or f"route {legs['from'].iloc[0]} to {legs['to'].iloc[-1]}"
-    sub(doc, "name", title)
-    sub(doc, "description", f"grid {legs.attrs.get('grid', '')}, {legs.attrs.get('path', '')}, decimal year "
-                            f"{legs.attrs.get('decimal_year', float('nan')):.3f}. Planning aid only: official publications "
-                            "and the aircraft's approved data govern.")
-    for style_id, (colour, width) in _KML_STYLES.items():
-        style = sub(doc, "Style", id=style_id)
-        line = sub(style, "LineStyle")
-        sub(line, "color", colour)
-        sub(line, "width", f"{width:g}")
-
-    def line_placemark(folder, label: str, style: str, lat, lon, description: str) -> None:
-        mark = sub(folder, "Placemark")
-        sub(mark, "name", label)
-        sub(mark, "description", description)
-        sub(mark, "styleUrl", f"#{style}")
-        line = sub(mark, "LineString")
-        sub(line, "tessellate", "1")
-        sub(line, "coordinates", _kml_coords(lat, lon))
-
-    folder = sub(doc, "Folder")
-    sub(folder, "name", "legs")
-    for leg_no, part in samples.groupby("leg", sort=True):
-        row = legs.iloc[int(leg_no) - 1]
-        text = (f"{row.distance_nm:.1f} NM; true {row.true_course_deg:05.1f}, magnetic {row.magnetic_course_deg:05.1f}, "
-                f"grid {row.grid_course_deg:05.1f} at the start; least H {row.min_horizontal_nT:.0f} nT; zone {row.zone}")
-        line_placemark(folder, f"{row['from']} - {row['to']}", "leg", part.lat_deg, part.lon_deg, text)
-    stretches = weak_field_stretches(result)
-    for zone in ("caution", "blackout"):
-        chosen = [s for s in stretches if s["zone"] == zone]
-        if not chosen:
-            continue
-        folder = sub(doc, "Folder")
-        sub(folder, "name", WEAK_FIELD_KINDS[zone])
-        for s in chosen:
-            text = (f"leg {s['leg']} ({s['from']} - {s['to']}): {s['from_nm']:.1f}-{s['to_nm']:.1f} NM from its start; "
-                    f"least H {s['min_horizontal_nT']:.0f} nT. Use true or grid heading here.")
-            line_placemark(folder, f"{zone} {s['from']} - {s['to']}", zone, s["lat_deg"], s["lon_deg"], text)
-    folder = sub(doc, "Folder")
-    sub(folder, "name", "waypoints")
-    names = list(legs["from"]) + [legs["to"].iloc[-1]]
-    lats = list(legs.from_lat_deg) + [legs.to_lat_deg.iloc[-1]]
-    lons = list(legs.from_lon_deg) + [legs.to_lon_deg.iloc[-1]]
-    for wp_name, la, lo in zip(names, lats, lons, strict=True):
-        mark = sub(folder, "Placemark")
-        sub(mark, "name", str(wp_name))
-        sub(sub(mark, "Point"), "coordinates", _kml_coords([la], [lo]))
-    ET.indent(root, space=" ")
-    return '<?xml version="1.0" encoding="UTF-8"?>\n' + ET.tostring(root, encoding="unicode") + "\n"

@@ -13,7 +13,9 @@ Public API
 ----------
 :func:`route` -> :class:`RouteResult` ``(legs, samples)``; :func:`read_waypoints` (CSV, and GPX,
 KML or GeoJSON through :mod:`headingref.route_files`);
-:func:`route_geojson` (legs as GeoJSON lines cut at the antimeridian, RFC 7946 3.1.9);
+:func:`route_geojson` (legs as GeoJSON lines cut at the antimeridian, RFC 7946 3.1.9, and the
+weak-field stretches); :func:`route_kml` (the same as KML 2.2 with styled stretches; user text
+escaped by ElementTree); :func:`weak_field_stretches`;
 :func:`rhumb_inverse`, :func:`meridian_distance_m` (the rhumb-line pieces).
 
 >>> import headingref
@@ -48,10 +50,10 @@ import pyproj
 from .errors import InputError
 from .headings import grivation_deg, normalize_heading, resolve_grid, warn_if_far_from_pole, wrap_angle
 from .io import coordinate_column, read_table
-from .route_files import ROUTE_FILE_SUFFIXES, read_route_file
+from .route_files import KML_NS, ROUTE_FILE_SUFFIXES, read_route_file
 from .units import NAUTICAL_MILE_M, ROUTE_HEIGHT_MAX_KM, decimal_year, height_column, parse_coordinate, parse_height_km
 
-__all__ = ["LEG_COLUMNS", "SAMPLE_COLUMNS", "WEAK_FIELD_KINDS", "RouteResult", "weak_field_stretches", "meridian_distance_m", "read_waypoints", "rhumb_inverse", "route", "route_geojson"]
+__all__ = ["LEG_COLUMNS", "SAMPLE_COLUMNS", "WEAK_FIELD_KINDS", "RouteResult", "weak_field_stretches", "meridian_distance_m", "read_waypoints", "rhumb_inverse", "route", "route_geojson", "route_kml"]
 
 GEOD = pyproj.Geod(ellps="WGS84")
 _A = GEOD.a  # WGS84 semi-major axis, m
@@ -729,3 +731,91 @@ def route_geojson(result: RouteResult) -> dict:
             }
         )
     return {"type": "FeatureCollection", "properties": dict(legs.attrs), "features": features}
+
+
+# --------------------------------------------------------------------------- KML
+
+# KML colours are aabbggrr (OGC 07-147r2, 16.9 kml:color); the same colours as headingref.plots.route
+_KML_STYLES = {
+    "leg": ("ff794e1f", 3.0),
+    "caution": ("ff34b1f2", 7.0),
+    "blackout": ("ff5b49d1", 9.0),
+}
+
+
+def _kml_coords(lat: Any, lon: Any) -> str:
+    """KML ``lon,lat,alt`` tuples (OGC 07-147r2, kml:coordinates), altitude 0 (lines are tessellated)."""
+    return " ".join(f"{float(lo):.7f},{float(la):.7f},0" for la, lo in zip(lat, lon, strict=True))
+
+
+def route_kml(result: RouteResult, name: str | None = None) -> str:
+    """The route as a KML 2.2 document (text).
+
+    One placemark per leg (a LineString through its samples, with distance, courses at the start
+    and the least H in its description), one per weak-field stretch
+    (:func:`weak_field_stretches`: ``caution`` and ``blackout`` in their own
+    folders and styles), and one Point per waypoint. Lines are tessellated (drawn on the ground);
+    samples every ``spacing_nm`` keep them on the route across the antimeridian and near the poles.
+    """
+    import xml.etree.ElementTree as ET
+
+    legs, samples = result.legs, result.samples
+    ET.register_namespace("", KML_NS[1:-1])
+
+    def sub(parent, tag: str, text: str | None = None, **attrib):
+        element = ET.SubElement(parent, KML_NS + tag, attrib)
+        if text is not None:
+            element.text = text
+        return element
+
+    root = ET.Element(KML_NS + "kml")
+    doc = sub(root, "Document")
+    title = name or f"route {legs['from'].iloc[0]} to {legs['to'].iloc[-1]}"
+    sub(doc, "name", title)
+    sub(doc, "description", f"grid {legs.attrs.get('grid', '')}, {legs.attrs.get('path', '')}, decimal year "
+                            f"{legs.attrs.get('decimal_year', float('nan')):.3f}. Planning aid only: official publications "
+                            "and the aircraft's approved data govern.")
+    for style_id, (colour, width) in _KML_STYLES.items():
+        style = sub(doc, "Style", id=style_id)
+        line = sub(style, "LineStyle")
+        sub(line, "color", colour)
+        sub(line, "width", f"{width:g}")
+
+    def line_placemark(folder, label: str, style: str, lat, lon, description: str) -> None:
+        mark = sub(folder, "Placemark")
+        sub(mark, "name", label)
+        sub(mark, "description", description)
+        sub(mark, "styleUrl", f"#{style}")
+        line = sub(mark, "LineString")
+        sub(line, "tessellate", "1")
+        sub(line, "coordinates", _kml_coords(lat, lon))
+
+    folder = sub(doc, "Folder")
+    sub(folder, "name", "legs")
+    for leg_no, part in samples.groupby("leg", sort=True):
+        row = legs.iloc[int(leg_no) - 1]
+        text = (f"{row.distance_nm:.1f} NM; true {row.true_course_deg:05.1f}, magnetic {row.magnetic_course_deg:05.1f}, "
+                f"grid {row.grid_course_deg:05.1f} at the start; least H {row.min_horizontal_nT:.0f} nT; zone {row.zone}")
+        line_placemark(folder, f"{row['from']} - {row['to']}", "leg", part.lat_deg, part.lon_deg, text)
+    stretches = weak_field_stretches(result)
+    for zone in ("caution", "blackout"):
+        chosen = [s for s in stretches if s["zone"] == zone]
+        if not chosen:
+            continue
+        folder = sub(doc, "Folder")
+        sub(folder, "name", WEAK_FIELD_KINDS[zone])
+        for s in chosen:
+            text = (f"leg {s['leg']} ({s['from']} - {s['to']}): {s['from_nm']:.1f}-{s['to_nm']:.1f} NM from its start; "
+                    f"least H {s['min_horizontal_nT']:.0f} nT. Use true or grid heading here.")
+            line_placemark(folder, f"{zone} {s['from']} - {s['to']}", zone, s["lat_deg"], s["lon_deg"], text)
+    folder = sub(doc, "Folder")
+    sub(folder, "name", "waypoints")
+    names = list(legs["from"]) + [legs["to"].iloc[-1]]
+    lats = list(legs.from_lat_deg) + [legs.to_lat_deg.iloc[-1]]
+    lons = list(legs.from_lon_deg) + [legs.to_lon_deg.iloc[-1]]
+    for wp_name, la, lo in zip(names, lats, lons, strict=True):
+        mark = sub(folder, "Placemark")
+        sub(mark, "name", str(wp_name))
+        sub(sub(mark, "Point"), "coordinates", _kml_coords([la], [lo]))
+    ET.indent(root, space=" ")
+    return '<?xml version="1.0" encoding="UTF-8"?>\n' + ET.tostring(root, encoding="unicode") + "\n"

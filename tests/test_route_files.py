@@ -201,8 +201,8 @@ def test_geojson_has_stretch_features(weak_route):
 def test_kml_output_reads_back(weak_route, tmp_path):
     import defusedxml.ElementTree as DET
 
-    from headingref.route_files import KML_NS, route_kml
-    from headingref.routes import weak_field_stretches
+    from headingref.route_files import KML_NS
+    from headingref.routes import route_kml, weak_field_stretches
 
     text = route_kml(weak_route)
     root = DET.fromstring(text.encode("utf-8"))
@@ -222,7 +222,8 @@ def test_kml_output_reads_back(weak_route, tmp_path):
 def test_kml_escapes_user_text(tmp_path):
     import defusedxml.ElementTree as DET
 
-    from headingref.route_files import KML_NS, route_kml
+    from headingref.route_files import KML_NS
+    from headingref.routes import route_kml
 
     result = route([("A<b>&\"x", 70.0, 10.0), ("B", 71.0, 12.0)], DATE, spacing_nm=50.0)
     root = DET.fromstring(route_kml(result).encode("utf-8"))

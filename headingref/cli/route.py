@@ -80,8 +80,7 @@ def run(args) -> int:
     from ..field import BLACKOUT_NT, CAUTION_NT
     from ..io import all_or_nothing, write_csv, write_text
     from ..notices import CAUTION
-    from ..route_files import route_kml
-    from ..routes import route, route_geojson
+    from ..routes import route, route_geojson, route_kml
     from .common import check_outputs
 
     check_outputs(files=[args.output, args.samples, args.geojson, args.kml], figures=[args.plot, args.profile],
