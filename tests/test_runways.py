@@ -61,6 +61,7 @@ def _quiet_check(*args, **kwargs):
     ("magnetic_deg", "expected"),
     [
         (90.0, 9),  # ICAO Annex 14 Vol I 5.2.2.4 example as summarised: 90 -> 09
+        (183.4, 18),  # FAA AC 150/5340-1J runway designation marking: nearest one-tenth, 183 -> 18 (as quoted)
         (183.0, 18),  # FAA AIM 4-3-6 worked example
         (87.0, 9),  # FAA AIM 4-3-6 worked example
         (186.0, 19),  # US Navy airfield marking manual worked example
@@ -627,3 +628,39 @@ def test_xlsx_in_and_out(tmp_path):
     assert "variation_deg (deg, east positive)" in header
     col = header.index("variation_deg (deg, east positive)")
     assert rows[1][col] == round(float(from_csv.table.variation_deg[0]), 2)  # rounded to 0.01 deg
+
+
+# ----------------------------------------------------------------------------- column mapping parser (property tests)
+
+
+_NAMES = st.sampled_from(["airport", "runway", "lat", "lon", "end_lat", "end_lon", "true_bearing_deg", "elevation_ft"])
+_COLUMNS = st.text(alphabet="abcdefghijklmnopqrstuvwxyz_0123456789", min_size=1, max_size=12)
+
+
+@given(st.dictionaries(_NAMES, _COLUMNS, min_size=1, max_size=6))
+def test_column_mapping_round_trip(mapping):
+    # Property: NAME=COLUMN pairs joined by commas (any spacing, any case) read back as the same dict,
+    # or are refused as a whole when two names share one file column (common practice: a mapping is one-to-one).
+    from headingref.runways import ACCEPTED_COLUMNS
+    from headingref.tables import parse_column_mapping
+
+    text = " , ".join(f" {k.upper()} = {v} " for k, v in mapping.items())
+    if len(set(mapping.values())) < len(mapping):
+        with pytest.raises(InputError, match="more than one name"):
+            parse_column_mapping(text, ACCEPTED_COLUMNS)
+    else:
+        assert parse_column_mapping(text, ACCEPTED_COLUMNS) == mapping
+
+
+@given(st.text(max_size=40))
+def test_column_mapping_refuses_or_reads_any_text(text):
+    # Property: any text is either a valid mapping of accepted names or a one-line InputError, never another exception.
+    from headingref.runways import ACCEPTED_COLUMNS
+    from headingref.tables import parse_column_mapping
+
+    try:
+        result = parse_column_mapping(text, ACCEPTED_COLUMNS)
+    except InputError as exc:
+        assert "\n" not in str(exc)
+    else:
+        assert set(result) <= set(ACCEPTED_COLUMNS)
