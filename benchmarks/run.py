@@ -173,6 +173,55 @@ def bench_jobs(quick: bool) -> None:
         row(f"navaids: not available ({exc})", float("nan"))
 
 
+_PANDAS_REFERENCE = """
+import sys, time
+import pandas as pd
+places, ours, scratch = sys.argv[1:4]
+start = time.perf_counter()
+pd.read_csv(places)
+read_s = time.perf_counter() - start
+table = pd.read_csv(ours, keep_default_na=False)  # the same rows and columns as the CLI wrote (not timed)
+start = time.perf_counter()
+table.to_csv(scratch, index=False)
+print(read_s + time.perf_counter() - start)
+"""
+
+
+def bench_cli(quick: bool) -> None:
+    """``headingref field --input`` on N places (a fresh process: start-up, reading, field, writing)
+    beside pandas reading the same input and writing an output of the same rows and columns."""
+    import os
+    import subprocess
+    import sys
+    import tempfile
+
+    import pandas as pd
+
+    n = 100_000 if quick else 1_000_000
+    rng = np.random.default_rng(3)
+    with tempfile.TemporaryDirectory() as folder:
+        places, out, scratch = (str(Path(folder) / name) for name in ("places.csv", "field.csv", "pandas.csv"))
+        pd.DataFrame({"name": [f"P{i:07d}" for i in range(n)], "lat": np.round(rng.uniform(-89, 89, n), 5),
+                      "lon": np.round(rng.uniform(-180, 180, n), 5)}).to_csv(places, index=False)
+        command = [sys.executable, "-m", "headingref.cli", "field", "--input", places, "--date", "2026-12-02", "--output", out]
+
+        def run_cli() -> tuple[float, float]:
+            start = time.perf_counter()
+            proc = subprocess.Popen(command, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+            _, status, usage = os.wait4(proc.pid, 0)
+            if status != 0:
+                raise RuntimeError(f"headingref field failed with status {status}")
+            return time.perf_counter() - start, usage.ru_maxrss / 1024.0  # ru_maxrss: KiB on Linux
+
+        run_cli()  # warm-up: numba's on-disk cache
+        cli_s, peak_mib = min(run_cli() for _ in range(2))
+        ref_s = min(float(subprocess.run([sys.executable, "-c", _PANDAS_REFERENCE, places, out, scratch],
+                                         capture_output=True, text=True, check=True).stdout) for _ in range(2))
+        size_mib = os.path.getsize(out) / 2**20
+    row(f"CLI field --input {n:,} places -> {size_mib:,.0f} MiB CSV, peak {peak_mib:,.0f} MiB", cli_s,
+        "pandas read+write", ref_s, "<= pandas read+write, < 1 GiB", cli_s <= ref_s and peak_mib < 1024)
+
+
 def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__, formatter_class=argparse.RawDescriptionHelpFormatter)
     parser.add_argument("--quick", action="store_true", help="smaller inputs (a smoke run)")
@@ -180,6 +229,7 @@ def main() -> None:
     print(f"headingref benchmarks ({Path(__file__).name}), best of repeats after warm-up")
     bench_field(args.quick)
     bench_jobs(args.quick)
+    bench_cli(args.quick)
     widths = [max(len(r[i]) for r in ROWS) for i in range(5)]
     for r in ROWS:
         print("  ".join(cell.ljust(w) for cell, w in zip(r, widths, strict=True)))

@@ -492,3 +492,101 @@ def test_field_grid_argument_errors_name_the_argument(kwargs, message):
     args = {"lats": [0.0, 10.0], "lons": [0.0, 10.0], "alt_km": 0.0} | kwargs
     with pytest.raises(InputError, match=message):
         headingref.field_grid(args["lats"], args["lons"], "2026-01-01", alt_km=args["alt_km"])
+
+
+# --- headingref field --input at scale (issue 12, item 12) ---------------------------------------
+
+
+def _places_csv(path: Path, n: int, seed: int = 12) -> pd.DataFrame:
+    rng = np.random.default_rng(seed)
+    places = pd.DataFrame({"name": [f"Invented site {i}" for i in range(n)],
+                           "lat": np.round(rng.uniform(-89.0, 89.0, n), 5), "lon": np.round(rng.uniform(-180.0, 180.0, n), 5)})
+    places.to_csv(path, index=False)
+    return places
+
+
+def test_cli_many_places_prints_a_summary_and_writes_every_row(tmp_path, capsys):
+    from headingref.cli import main
+    from headingref.cli.field import TABLE_ROWS
+
+    places = _places_csv(tmp_path / "places.csv", 2_000)
+    out = tmp_path / "field.csv"
+    assert main(["field", "--input", str(tmp_path / "places.csv"), "--date", "2026-12-02", "--output", str(out)]) == 0
+    printed = capsys.readouterr().out
+    assert "Field at 2,000 places" in printed and "zones:" in printed and f"more than {TABLE_ROWS} rows" in printed
+    assert "Invented site 1999" not in printed and len(printed.splitlines()) < 12  # a summary, not a table
+    table = pd.read_csv(out, keep_default_na=False, na_values=[""])
+    assert len(table) == 2_000 and list(table.name) == list(places.name)
+    # the library on the same input: the CSV holds every value to its printed precision (6 decimals of
+    # a degree, 0.001 nT; headingref.fastcsv)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", headingref.UndefinedDeclinationWarning)
+        ref = headingref.field(places.lat.to_numpy(), places.lon.to_numpy(), "2026-12-02")
+    for column in ("declination_deg", "inclination_deg", "declination_uncertainty_deg", "declination_deg_per_year"):
+        assert np.allclose(table[column], ref[column], atol=5.1e-7, equal_nan=True), column
+    for column in ("horizontal_nT", "total_nT", "north_nT", "east_nT", "down_nT", "down_nT_per_year"):
+        assert np.allclose(table[column], ref[column], atol=5.1e-4), column
+    assert list(table.zone) == list(ref.zone.astype(str))
+    # and the field itself against ppigrf (independent IGRF-14 code) on a few rows: 0.01 deg, 1 nT
+    # (ppigrf's date convention differs from the calendar-year fraction by under a day)
+    when = dt.datetime(2026, 12, 2)
+    rows = [0, 500, 1999]
+    north, east, down = _ppigrf_xyz(places.lat.to_numpy()[rows], places.lon.to_numpy()[rows], np.zeros(3), when)
+    assert np.allclose(table.north_nT[rows], north, atol=1.0) and np.allclose(table.east_nT[rows], east, atol=1.0)
+    assert np.allclose(table.declination_deg[rows], np.degrees(np.arctan2(east, north)), atol=0.01)
+
+
+def test_cli_a_few_places_still_print_a_table(tmp_path, capsys):
+    from headingref.cli import main
+
+    _places_csv(tmp_path / "places.csv", 5)
+    assert main(["field", "--input", str(tmp_path / "places.csv"), "--date", "2026-12-02"]) == 0
+    printed = capsys.readouterr().out
+    assert "Invented site 4" in printed and "variation" in printed
+
+
+def test_cli_csv_streams_every_row_identical_to_output(tmp_path, capsys):
+    from headingref.cli import main
+
+    _places_csv(tmp_path / "places.csv", 700)
+    out = tmp_path / "field.csv"
+    assert main(["field", "--input", str(tmp_path / "places.csv"), "--date", "2026-12-02", "--csv", "--output", str(out)]) == 0
+    assert capsys.readouterr().out == out.read_text(encoding="utf-8")
+
+
+@pytest.mark.parametrize("cell", ["6_1", "٦١", "１２", "inf", "1e400", "nan", " ", "61 10 N", "N61"])
+def test_fast_reader_takes_only_plain_ascii_decimals(tmp_path, cell):
+    # The fast path (pandas' C parser) must never accept what the row-by-row reader refuses or parses
+    # differently: Python's float() reads "6_1" as 61 and other digits as numbers (Python docs, float),
+    # so those go to the careful reader, which names the file line.
+    from headingref.cli.field import _read_fast
+
+    path = tmp_path / "p.csv"
+    path.write_text(f"name,lat,lon\nA,60.5,10\nB,{cell},11\n", encoding="utf-8")
+    assert _read_fast(path) is None
+
+
+def test_fast_and_careful_readers_agree(tmp_path):
+    # The same file through both readers (headingref.io.read_table is the reference): same values,
+    # names and line numbers, for ; and tab separators, CRLF line ends, a BOM and trailing blank lines.
+    from headingref.cli.field import _read_fast, _read_slow
+
+    rng = np.random.default_rng(5)
+    lat, lon = rng.uniform(-90, 90, 50), rng.uniform(-180, 180, 50)
+    for sep, end, bom in ((",", "\n", ""), (";", "\r\n", "\ufeff"), ("\t", "\n", "")):
+        rows = [f"Site {i}{sep} {float(a)!r}{sep}{o:.4f}{sep}FL{i % 400}" for i, (a, o) in enumerate(zip(lat, lon, strict=True))]
+        path = tmp_path / "p.csv"
+        path.write_text(bom + f"Name{sep}LAT{sep}lon{sep}alt" + end + end.join(rows) + end + end, encoding="utf-8", newline="")
+        fast, slow = _read_fast(path), _read_slow(path)
+        assert fast is not None
+        assert np.array_equal(fast[1], slow[1])  # line numbers
+        assert np.array_equal(fast[2], slow[2]) and np.array_equal(fast[3], slow[3])
+        assert list(fast[0]["name"]) == list(slow[0]["name"]) and list(fast[0]["alt"]) == list(slow[0]["alt"])
+
+
+def test_cli_empty_date_is_refused_in_one_line(capsys):
+    from headingref.cli import main
+
+    assert main(["field", "--lat", "60", "--lon", "10", "--date", ""]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "--date is empty" in err[0]
