@@ -54,9 +54,9 @@ def survey_history(ctx: Context, sites: list) -> pd.DataFrame:
 def _summary(upkeep: pd.DataFrame, swing_date: str) -> list[SummaryItem]:
     items = []
     for _, r in upkeep.iterrows():
-        due, reason = r.get("resurvey_due_date", ""), r.get("resurvey_reason", "")
-        due = due if isinstance(due, str) else ""
-        overdue = flag(r.get("overdue", False))
+        due = r["resurvey_due_date"] if isinstance(r["resurvey_due_date"], str) else ""
+        reason = r["resurvey_reason"]
+        overdue = flag(r["overdue"])
         if due:
             due_text = f"resurvey {'overdue since' if overdue else 'due'} {due} ({reason})"
         else:
@@ -74,11 +74,9 @@ def job(ctx: Context) -> Section:
     history = survey_history(ctx, sites)
     grid = sc.routes["grid"] if sc.routes else "polar"
     lines = setting_out(upkeep, lines_deg=c["setting_out_lines_deg"], distances_m=c["setting_out_distances_m"], grid=grid)
-    latest = history.groupby("name", sort=False).tail(1).set_index("name")["survey_minus_model_deg"]
-    upkeep_plot = upkeep.assign(survey_minus_model_deg=upkeep["name"].map(latest))
-    figure = plot_survey_history(upkeep_plot, list(zip(history["name"], history["survey_year"], history["surveyed_variation_deg"], strict=True)),
+    figure = plot_survey_history(upkeep, list(zip(history["name"], history["survey_year"], history["surveyed_variation_deg"], strict=True)),
                                  float(decimal_year(c["swing_date"])), **ctx.common)
-    levels = ["bad" if flag(r.get("overdue", False)) else "" for _, r in upkeep.iterrows()]
+    levels = ["bad" if flag(overdue) else "" for overdue in upkeep["overdue"]]
     return Section(
         KEY, TITLE, TOPIC,
         summary=_summary(upkeep, c["swing_date"]),

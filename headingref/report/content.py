@@ -55,6 +55,14 @@ class Table:
     levels: list[str] | None = None
     caption: str = ""
 
+    def __post_init__(self) -> None:
+        # A column the library no longer gives is an error (the section shows as failed), never a silent gap.
+        missing = [c for c in (self.columns or {}) if c not in self.frame.columns]
+        if missing:
+            raise KeyError(f"table has no column(s) {', '.join(missing)}")
+        if self.levels is not None and len(self.levels) != len(self.frame):
+            raise ValueError(f"{len(self.levels)} row levels for {len(self.frame)} rows")
+
 
 @dataclass
 class Figure:

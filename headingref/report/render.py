@@ -58,7 +58,6 @@ def table_view(table: Table) -> dict:
     """Headers and formatted rows ``{"level", "cells": [(text, is_number)]}`` of a :class:`Table`."""
     frame = table.frame
     columns = table.columns or {c: c for c in frame.columns}
-    columns = {c: h for c, h in columns.items() if c in frame.columns}
     levels = table.levels or [""] * len(frame)
     rows = []
     for level, values in zip(levels, frame[list(columns)].itertuples(index=False, name=None), strict=True):

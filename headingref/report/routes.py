@@ -18,7 +18,7 @@ from ..detector import heading_error
 from ..errors import HeadingrefError
 from ..plots.detector import plot_budget_profile
 from ..plots.route import plot_route_map, plot_route_profile
-from ..routes import _split_antimeridian, _stretches, route, route_geojson
+from ..routes import _interpolate_position, _line_geometry, _stretch_intervals, route, route_geojson
 from .content import OutputFile, Part, Section, SummaryItem, Table, capped, figure_from, latlon_text
 from .context import SUMMARY_LIMIT, Context
 
@@ -35,25 +35,10 @@ _LEG_PROPERTIES = ("from", "to", "distance_nm", "true_course_deg", "magnetic_cou
                    "variation_deg", "min_horizontal_nT", "max_declination_uncertainty_deg", "zone")
 
 
-def stretches(distance_nm: np.ndarray, values: np.ndarray, threshold: float) -> list[tuple[float, float]]:
-    """Stretches (NM, from-to) where ``values < threshold``, from :func:`headingref.routes`' own
-    interpolation (its text 'a-b; c-d' to 0.1 NM)."""
-    text = _stretches(np.asarray(distance_nm, dtype=float), np.asarray(values, dtype=float), threshold)
-    return [tuple(float(v) for v in part.split("-")) for part in text.split("; ")] if text else []
-
-
-def _position_at(samples: pd.DataFrame, distance_nm: float) -> tuple[float, float]:
-    """Lat/lon at a distance along a leg, interpolated between samples (longitude unwrapped)."""
-    d = samples["distance_along_leg_nm"].to_numpy()
-    lon = np.degrees(np.unwrap(np.radians(samples["lon_deg"].to_numpy())))
-    lat = float(np.interp(distance_nm, d, samples["lat_deg"].to_numpy()))
-    return lat, float((np.interp(distance_nm, d, lon) + 180.0) % 360.0 - 180.0)
-
-
-def _line(lon: np.ndarray, lat: np.ndarray) -> dict:
-    parts = _split_antimeridian(np.asarray(lon, dtype=float), np.asarray(lat, dtype=float))
-    coords = [[[round(x, 5), round(y, 5)] for x, y in part] for part in parts]
-    return {"type": "LineString", "coordinates": coords[0]} if len(coords) == 1 else {"type": "MultiLineString", "coordinates": coords}
+def _position(part: pd.DataFrame, distance_nm: float) -> tuple[float, float]:
+    """Lat/lon at a distance along a leg, between the samples around it (headingref.routes' interpolation)."""
+    return _interpolate_position(part["distance_along_leg_nm"].to_numpy(), part["lat_deg"].to_numpy(), part["lon_deg"].to_numpy(),
+                                 distance_nm)
 
 
 def _with_budget(ctx: Context, samples: pd.DataFrame) -> pd.DataFrame:
@@ -76,13 +61,13 @@ def _one_leg(ctx: Context, name: str, leg: pd.Series, part: pd.DataFrame, summar
     dist = part["distance_along_leg_nm"].to_numpy()
     h = part["horizontal_nT"].to_numpy()
     lost = []
-    for a, b in stretches(dist, h, blackout_nT):
-        p0, p1 = _position_at(part, a), _position_at(part, b)
+    for a, b in _stretch_intervals(dist, h, blackout_nT):
+        p0, p1 = _position(part, a), _position(part, b)
         lost.append(f"{a:.0f}–{b:.0f} NM ({latlon_text(*p0)} to {latlon_text(*p1)})")
         inside = part[(part.distance_along_leg_nm >= a) & (part.distance_along_leg_nm <= b)]
         features.append({
             "type": "Feature",
-            "geometry": _line(np.concatenate([[p0[1]], inside.lon_deg.to_numpy(), [p1[1]]]),
+            "geometry": _line_geometry(np.concatenate([[p0[1]], inside.lon_deg.to_numpy(), [p1[1]]]),
                               np.concatenate([[p0[0]], inside.lat_deg.to_numpy(), [p1[0]]])),
             "properties": {"kind": "no usable magnetic reference", "route": name, "from": str(leg["from"]), "to": str(leg["to"]),
                            "from_nm": round(a, 1), "to_nm": round(b, 1), "threshold_nT": blackout_nT},
@@ -93,12 +78,12 @@ def _one_leg(ctx: Context, name: str, leg: pd.Series, part: pd.DataFrame, summar
         summary.append(SummaryItem(f"no usable magnetic reference (H below {blackout_nT:g} nT) over {text}; least H "
                                    f"{leg['min_horizontal_nT']:.0f} nT. Use true or grid heading there.", where, "bad"))
         return text
-    caution = stretches(dist, h, caution_nT)
+    caution = _stretch_intervals(dist, h, caution_nT)
     if caution:
         span = "; ".join(f"{a:.0f}–{b:.0f} NM" for a, b in caution)
         summary.append(SummaryItem(f"degraded magnetic reference (H below {caution_nT:g} nT) over {span}; least H "
                                    f"{leg['min_horizontal_nT']:.0f} nT.", where, "warn"))
-    over = stretches(dist, -part["budget_steady_deg"].to_numpy(), -limit)  # budget above the limit
+    over = _stretch_intervals(dist, -part["budget_steady_deg"].to_numpy(), -limit)  # budget above the limit
     if over:
         span = "; ".join(f"{a:.0f}–{b:.0f} NM" for a, b in over)
         summary.append(SummaryItem(f"heading error budget in steady flight above {limit:g}° over {span}.", where, "warn"))
@@ -124,9 +109,10 @@ def _one_route(ctx: Context, plan: dict, summary: list[SummaryItem], features: l
     legs["max_budget_steady_deg"] = steady_max
     legs["no_magnetic_reference"] = lost
     for feature in route_geojson(result)["features"]:
-        if feature["geometry"]["type"] != "Point":  # the legs; waypoints are in the legs' properties
+        # the legs; the weak-field stretches are the report's own (the scenario's thresholds), waypoints are in the legs
+        if feature["properties"]["kind"] == "leg":
             props = feature["properties"]
-            feature["properties"] = {"kind": "leg", "route": name, **{k: props[k] for k in _LEG_PROPERTIES if k in props}}
+            feature["properties"] = {"kind": "leg", "route": name, **{k: props[k] for k in _LEG_PROPERTIES}}
             features.append(feature)
     samples.insert(0, "route", name)
     legs.insert(0, "route", name)
