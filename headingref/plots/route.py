@@ -27,7 +27,7 @@ from typing import Any
 
 import numpy as np
 
-from . import save_figure  # noqa: F401  (re-exported: the plotting modules all offer it)
+from . import plain_text, save_figure  # noqa: F401  (save_figure re-exported: the plotting modules all offer it)
 
 __all__ = ["plot_route_map", "plot_route_profile", "save_figure", "choose_map"]
 
@@ -81,6 +81,40 @@ def _variation_label(value: float) -> str:
     if value == 0:
         return "0°"
     return f"{abs(value):g}°{'E' if value > 0 else 'W'}"
+
+
+MAX_DRAWN_POINTS = 4000  # a line of more points looks the same at figure resolution (common practice)
+MAX_NAMED_WAYPOINTS = 40  # names beyond this overprint one another
+
+
+def _evenly(count: int, limit: int) -> np.ndarray:
+    """Indices of at most ``limit`` items out of ``count``, evenly spread, first and last included."""
+    if count <= limit:
+        return np.arange(count)
+    return np.unique(np.round(np.linspace(0, count - 1, limit)).astype(int))
+
+
+def _decimate(x: np.ndarray, y: np.ndarray, limit: int = MAX_DRAWN_POINTS) -> tuple[np.ndarray, np.ndarray]:
+    """At most about ``limit`` points of the curve y(x), keeping each bucket's least and greatest y.
+
+    Min/max decimation: the drawn line still reaches every extreme (the least H, the largest
+    uncertainty), which a plain stride could step over.
+    """
+    n = len(x)
+    if n <= limit:
+        return x, y
+    buckets = max(1, limit // 2)
+    edges = np.linspace(0, n, buckets + 1).astype(int)
+    keep = [0, n - 1]
+    finite = np.where(np.isfinite(y), y, np.nan)
+    for a, b in zip(edges[:-1], edges[1:], strict=True):
+        part = finite[a:b]
+        if b <= a or np.isnan(part).all():
+            keep.append(a)
+            continue
+        keep += [a + int(np.nanargmin(part)), a + int(np.nanargmax(part))]
+    idx = np.unique(keep)
+    return x[idx], y[idx]
 
 
 def plot_route_map(result: Any, ax=None, model: Any = None, mesh: int = 140, isogonics: bool = True, zones: bool = True):
@@ -152,13 +186,15 @@ def plot_route_map(result: Any, ax=None, model: Any = None, mesh: int = 140, iso
             ax.clabel(cs, fmt=_variation_label, fontsize=7, inline=True)
             handles.append(plt.Line2D([], [], color="#6a3d9a", lw=0.7, label=f"isogonic lines every {step:g}° (west dashed)"))
 
-    plot_lonlat(ax, to_map, lon, lat, color=_ROUTE_COLOUR, linewidth=2.0, zorder=5, label="route")
+    drawn = _evenly(len(lon), MAX_DRAWN_POINTS)  # a 10,000-waypoint route: draw what the figure can show
+    plot_lonlat(ax, to_map, lon[drawn], lat[drawn], color=_ROUTE_COLOUR, linewidth=2.0, zorder=5, label="route")
     wp_lat = np.append(legs.from_lat_deg.to_numpy(), legs.to_lat_deg.iloc[-1])
     wp_lon = np.append(legs.from_lon_deg.to_numpy(), legs.to_lon_deg.iloc[-1])
     names = list(legs["from"]) + [legs["to"].iloc[-1]]
     scatter_lonlat(ax, to_map, wp_lon, wp_lat, s=22, color=_ROUTE_COLOUR, edgecolor="white", zorder=6)
     wx, wy = to_map.transform(wp_lon, wp_lat)
-    for x, y, name in zip(wx, wy, names, strict=True):
+    for i in _evenly(len(names), MAX_NAMED_WAYPOINTS):
+        x, y, name = wx[i], wy[i], names[i]
         ax.annotate(str(name), (x, y), xytext=(4, 4), textcoords="offset points", fontsize=8, zorder=7,
                     bbox={"boxstyle": "round,pad=0.15", "fc": "white", "ec": "none", "alpha": 0.8})
     handles.insert(0, plt.Line2D([], [], color=_ROUTE_COLOUR, lw=2.0, label=f"route ({legs.attrs.get('path', 'geodesic')})"))
@@ -171,7 +207,7 @@ def plot_route_map(result: Any, ax=None, model: Any = None, mesh: int = 140, iso
         fontsize=10,
         pad=16,
     )
-    return ax.figure
+    return plain_text(ax.figure)
 
 
 def plot_route_profile(result: Any, fig=None):
@@ -192,12 +228,12 @@ def plot_route_profile(result: Any, fig=None):
     ]
     zone = samples.zone.to_numpy()
     for ax, (column, label, colour) in zip(axes, series, strict=True):
-        for _leg, part in samples.groupby("leg"):
-            x, y = part.distance_along_route_nm.to_numpy(), part[column].to_numpy(dtype=float)
-            if column == "variation_deg":  # break the line where the variation wraps past 180
-                cut = np.flatnonzero(np.abs(np.diff(y)) > 180.0) + 1
-                x, y = np.insert(x, cut, np.nan), np.insert(y, cut, np.nan)
-            ax.plot(x, y, color=colour, lw=1.4)
+        # one line for the whole route (legs join end to start), min/max-decimated for long routes
+        x, y = _decimate(dist, samples[column].to_numpy(dtype=float))
+        if column == "variation_deg":  # break the line where the variation wraps past 180
+            cut = np.flatnonzero(np.abs(np.diff(y)) > 180.0) + 1
+            x, y = np.insert(x, cut, np.nan), np.insert(y, cut, np.nan)
+        ax.plot(x, y, color=colour, lw=1.4)
         ax.set_ylabel(label, fontsize=9)
         ax.grid(True, lw=0.3, alpha=0.6)
         for name, colour_z in _ZONE_COLOURS.items():
@@ -211,18 +247,20 @@ def plot_route_profile(result: Any, fig=None):
     axes[1].legend(fontsize=7, loc="upper right")
     # the table caps the uncertainty at NO_HEADING_DEG (180: no heading at all, headingref.field); the axis too
     axes[2].set_ylim(0.0, min(axes[2].get_ylim()[1], NO_HEADING_DEG * 1.05))
-    starts = np.concatenate([[0.0], np.cumsum(legs.distance_nm.to_numpy())])
-    names = list(legs["from"]) + [legs["to"].iloc[-1]]
+    all_starts = np.concatenate([[0.0], np.cumsum(legs.distance_nm.to_numpy())])
+    all_names = list(legs["from"]) + [legs["to"].iloc[-1]]
+    shown = _evenly(len(all_starts), MAX_NAMED_WAYPOINTS)
+    starts, names = all_starts[shown], [all_names[i] for i in shown]
     for ax in axes:
-        for x in starts:
-            ax.axvline(x, color="0.5", lw=0.6, ls=":")
+        ax.vlines(starts, 0, 1, transform=ax.get_xaxis_transform(), color="0.5", lw=0.6, ls=":")
     top = axes[0].secondary_xaxis("top")
     top.set_xticks(starts)
     top.set_xticklabels([str(n) for n in names], fontsize=7, rotation=45, ha="left")
     axes[-1].set_xlabel("distance along route (NM)")
-    axes[-1].set_xlim(0.0, max(float(starts[-1]), 1e-9))
+    axes[-1].set_xlim(0.0, max(float(all_starts[-1]), 1e-9))
     fig.suptitle(f"Field along the route ({legs.attrs.get('path', 'geodesic')}), decimal year {legs.attrs.get('decimal_year', float('nan')):.2f}",
                  fontsize=10)
+    plain_text(fig)  # before tight_layout, which draws the waypoint names
     fig.tight_layout()
     return fig
 
