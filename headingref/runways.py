@@ -1017,7 +1017,10 @@ def _runways(ends: _Ends, partner: np.ndarray, pair_check: np.ndarray) -> _Runwa
     usable = np.isfinite(ends.true_bearing) & np.isfinite(ends.ref_lat) & np.isfinite(ends.ref_lon)
     paired = (partner >= 0) & usable & ~np.char.startswith(pair_check.astype(str), "true azimuths")
     paired &= np.where(partner >= 0, usable[np.maximum(partner, 0)], False)
-    first = paired & (np.arange(count) < partner)
+    index = np.arange(count)
+    paired &= partner[np.maximum(partner, 0)] == index  # mutual pairs only (a duplicated designator stays single)
+    paired &= paired[np.maximum(partner, 0)]
+    first = paired & (index < partner)
     second = paired & ~first
     group = np.full(count, -1, dtype=np.int64)
     leaders = np.flatnonzero(~second)

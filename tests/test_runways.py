@@ -664,3 +664,15 @@ def test_column_mapping_refuses_or_reads_any_text(text):
         assert "\n" not in str(exc)
     else:
         assert set(result) <= set(ACCEPTED_COLUMNS)
+
+
+def test_duplicated_designator_still_gets_a_verdict():
+    # A repeated end (09 twice at one airport) pairs once with 27; the repeat is judged on its own
+    # (no row left without a verdict or an error: the project's no-silent-NaN rule). The implied
+    # designators follow the Annex 14 rule on ppigrf's variation (checked in test_variation_against_ppigrf).
+    ends = pd.DataFrame({"airport": ["XAR"] * 3, "runway": ["09", "27", "09"], "lat": [61.0] * 3,
+                         "lon": [10.0, 10.04, 10.0], "end_lat": [61.0] * 3, "end_lon": [10.04, 10.0, 10.04]})
+    t = _quiet_check(ends, DATE, horizon_years=1).table
+    assert t.runway_id.tolist() == ["09/27", "09/27", "09"]
+    assert (t.verdict != "").all() and np.isfinite(t.runway_magnetic_deg).all()
+    assert "appears more than once" in t.reason[0]
