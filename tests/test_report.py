@@ -445,3 +445,28 @@ def test_user_text_is_escaped_in_the_page_and_plain_in_the_summary(tmp_path):
     (line,) = result.summary["swing"]
     assert line.startswith(f"Compass swing on {name}: ")  # plain text, not HTML
     assert "<b>" not in result.summary_text()
+
+
+def test_sigterm_during_a_report_leaves_no_staging_folder(demo_copy, tmp_path):
+    # issue 12 item 6: a real SIGTERM to the command (POSIX signal; the CLI turns it into an
+    # interrupt) while the staging folder exists: it is removed and no report folder appears.
+    import signal
+    import subprocess
+    import sys
+    import time
+
+    out = tmp_path / "out"
+    proc = subprocess.Popen([sys.executable, "-m", "headingref.cli", "report", str(demo_copy / "scenario.toml"), "--out", str(out),
+                             "--no-progress"], stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
+    try:
+        deadline = time.monotonic() + 120
+        while not _leftovers(tmp_path) and proc.poll() is None and time.monotonic() < deadline:
+            time.sleep(0.05)
+        assert _leftovers(tmp_path), "the staging folder never appeared"
+        proc.send_signal(signal.SIGTERM)
+        code = proc.wait(timeout=120)
+    finally:
+        if proc.poll() is None:
+            proc.kill()
+    assert code != 0
+    assert _leftovers(tmp_path) == [] and not out.exists()
