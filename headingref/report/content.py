@@ -11,7 +11,8 @@ text (route, airport and base names) is escaped in one place.
   a level per row (``""``, ``"warn"``, ``"bad"``) that colours the row.
 - :class:`Figure`: an image already encoded (PNG or SVG bytes), with alt text and caption;
   :func:`figure_from` turns a matplotlib Figure from :mod:`headingref.plots` into one.
-- :class:`Part`: a sub-heading with paragraphs, tables and figures (``collapsed`` folds it).
+- :class:`Part`: a sub-heading with paragraphs, bullet items, tables and figures (``collapsed``
+  folds it).
 - :class:`OutputFile`: a data file of the report: a DataFrame (CSV) or a dict (GeoJSON/JSON).
 - :class:`Section`: ``key`` (the HTML anchor), ``title``, ``topic`` (the summary heading it
   feeds), ``summary`` items, ``parts``, ``files``, ``notes`` (plain sentences) and ``tables``
@@ -80,10 +81,11 @@ class Figure:
 
 @dataclass
 class Part:
-    """A block of a section: optional sub-heading, paragraphs, tables, figures; ``collapsed`` folds it."""
+    """A block of a section: optional sub-heading, paragraphs, a bullet list, tables, figures; ``collapsed`` folds it."""
 
     title: str = ""
     text: list[str] = field(default_factory=list)
+    items: list[str] = field(default_factory=list)
     tables: list[Table] = field(default_factory=list)
     figures: list[Figure] = field(default_factory=list)
     collapsed: bool = False

@@ -72,7 +72,8 @@ def job(ctx: Context) -> Section:
     result = check_runways(str(r["file"]), ctx.date, horizon_years=r["horizon_years"], **kwargs, **ctx.common)
     table, changes = result.table, result.changes
     levels = [_level(row) for _, row in table.iterrows()]
-    main = Part(text=result.summary_text().splitlines())
+    first, *rest = result.summary_text().splitlines()
+    main = Part(text=[first], items=[line.strip() for line in rest])
     shown, shown_levels = table, levels
     if len(table) > TABLE_LIMIT:  # a large batch: list only the rows that need attention
         keep = [level != "" for level in levels]

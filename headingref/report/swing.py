@@ -43,7 +43,7 @@ def job(ctx: Context) -> Section:
         parts=[
             Part(text=[
                 f"{len(magnetic)} readings{where}; deviation east positive (magnetic = compass + deviation), fitted as "
-                "A + B sin h + C cos h + D sin 2h + E cos 2h by least squares.", *analysis.verdict_text().splitlines()],
+                "A + B sin h + C cos h + D sin 2h + E cos 2h by least squares."], items=analysis.verdict_text().splitlines(),
                 tables=[Table(table, _COEFFICIENT_COLUMNS)],
                 figures=[figure_from(deviation_figure(analysis), "deviation curve", "Deviations, fitted curve and residuals.")]),
             Part("Correction card", tables=[Table(analysis.card, _CARD_COLUMNS)]),
