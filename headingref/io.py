@@ -17,7 +17,6 @@ import contextvars
 import csv
 import io as _io
 import os
-import re
 import shutil
 import stat
 import tempfile
@@ -29,7 +28,7 @@ import numpy as np
 import pandas as pd
 
 from .errors import InputError
-from .units import decimal_year, parse_coordinate, parse_number
+from .units import decimal_year, is_number_text, parse_coordinate, parse_number
 
 MAX_TABLE_BYTES = 200 * 1024 * 1024
 
@@ -430,12 +429,16 @@ def all_or_nothing() -> Iterator[OutputSet]:
 # as text and which pandas/csv readers keep visibly. Numbers, and text that is a plain number
 # ("-12.5"), are left as they are.
 _FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
-_PLAIN_NUMBER = re.compile(r"^[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?$|^-+$")
 
 
 def spreadsheet_safe_text(value: Any) -> Any:
-    """A text cell made inert for spreadsheets (OWASP CSV injection); other values unchanged."""
-    if isinstance(value, str) and value.startswith(_FORMULA_START) and not _PLAIN_NUMBER.match(value):
+    """A text cell made inert for spreadsheets (OWASP CSV injection); other values unchanged.
+
+    Text that is a plain number (``-12.5``, :func:`headingref.units.is_number_text`) or only
+    dashes (``--``) cannot hold a formula and is kept as it is.
+    """
+    if (isinstance(value, str) and value.startswith(_FORMULA_START) and not is_number_text(value)
+            and value.strip("-")):
         return "'" + value
     return value
 

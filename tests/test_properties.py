@@ -244,3 +244,60 @@ def test_write_csv_then_read_back(tmp_path_factory, values):
     io.write_csv(target, pd.DataFrame({"value": values}))
     assert [p.name for p in folder.iterdir()] == ["out.csv"]  # no temporary file left
     np.testing.assert_array_equal(io.float_column(io.read_table(target, ["value"]), "value"), np.asarray(values))
+
+
+# --------------------------------------------------------------------------- strict numbers, spreadsheet-safe text
+
+
+@PROPS
+@given(value=st.floats(allow_nan=False, allow_infinity=False, width=64))
+def test_parse_number_reads_every_float_repr(value):
+    # Python's float repr is the shortest text that reads back to the same double (Python docs,
+    # "Floating Point Arithmetic"); it is always plain ASCII decimal with an optional exponent.
+    from headingref.units import parse_number
+
+    assert parse_number(repr(value)) == value
+    assert parse_number(f"{value:.17g}") == value  # 17 significant digits round-trip a double (IEEE 754)
+
+
+@PROPS
+@given(text=st.text(alphabet=st.characters(categories=["Nd"]), min_size=1, max_size=6))
+def test_parse_number_refuses_digits_of_other_scripts(text):
+    # Unicode category Nd holds the decimal digits of every script; float() accepts them all
+    # (Python docs, float()); headingref takes only ASCII 0-9.
+    from headingref.errors import InputError
+    from headingref.units import parse_number
+
+    assume(not text.isascii())
+    with pytest.raises(InputError):
+        parse_number(text)
+    with pytest.raises(InputError):
+        parse_number(text[:1] + "_" + text)
+
+
+@PROPS
+@given(text=st.text(max_size=12))
+def test_parse_number_agrees_with_float_where_it_accepts(text):
+    # Whatever the strict reader accepts, Python's float reads to the same value (it is a subset).
+    from headingref.errors import InputError
+    from headingref.units import parse_number
+
+    try:
+        value = parse_number(text)
+    except InputError:
+        return
+    assert value == float(text.strip().replace("\u2212", "-"))
+    assert text.strip().replace("\u2212", "-").isascii()
+
+
+@PROPS
+@given(cell=st.text(max_size=12))
+def test_spreadsheet_safe_text_never_starts_a_formula(cell):
+    # OWASP "CSV Injection": cells starting = + - @ tab CR are formulas; plain numbers stay as they are.
+    from headingref.units import is_number_text
+
+    safe = io.spreadsheet_safe_text(cell)
+    if cell[:1] in ("=", "+", "-", "@", "\t", "\r") and not is_number_text(cell) and set(cell) != {"-"}:
+        assert safe == "'" + cell
+    else:
+        assert safe == cell
