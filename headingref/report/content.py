@@ -119,10 +119,8 @@ def figure_from(fig: Any, alt: str, caption: str = "", fmt: str = "png") -> Figu
     import matplotlib.pyplot as plt
 
     buf = io.BytesIO()
-    # A tight bounding box costs a second draw; figures with a layout engine are already tight.
-    tight = "tight" if fig.get_layout_engine() is None else None
-    try:
-        fig.savefig(buf, format=fmt, dpi=FIGURE_DPI, bbox_inches=tight)
+    try:  # a tight box, as plots.save_figure: titles wider than the axes are kept whole
+        fig.savefig(buf, format=fmt, dpi=FIGURE_DPI, bbox_inches="tight")
     finally:
         plt.close(fig)
     return Figure(buf.getvalue(), alt, caption, "image/svg+xml" if fmt == "svg" else "image/png")
