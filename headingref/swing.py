@@ -92,6 +92,7 @@ Public API
 
 from __future__ import annotations
 
+import html
 import math
 import os
 import warnings
@@ -101,8 +102,12 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
+from .compass_base import base_upkeep, read_sites_csv
 from .errors import DataQualityWarning, InputError
-from .headings import format_heading, normalize_heading, wrap_angle
+from .headings import format_heading, format_variation, normalize_heading, parse_variation, wrap_angle
+from .io import read_table
+from .notices import CAUTION
+from .units import NUMBER_HELP, decimal_year, parse_number, timestamp_from_decimal_year
 
 __all__ = [
     "COEFFICIENT_MEANINGS",
@@ -837,8 +842,6 @@ def _find_column(header: Sequence[str], accepted: Sequence[str], label: str, wha
 def _heading_cell(cell: str, where: str, what: str, points: bool) -> float:
     """A heading cell: a plain ASCII decimal number of degrees (:func:`headingref.units.parse_number`),
     or (``points``) a compass point N..NNW."""
-    from .units import NUMBER_HELP, parse_number
-
     text = cell.strip()
     if points and text.upper() in COMPASS_POINTS_DEG:
         return COMPASS_POINTS_DEG[text.upper()]
@@ -864,9 +867,6 @@ def read_swing_csv(path: str | os.PathLike) -> tuple[np.ndarray, np.ndarray, lis
 
     Returns (magnetic headings, compass readings, row labels such as ``'readings.csv line 4'``).
     """
-    from .headings import parse_variation
-    from .io import read_table
-
     table = read_table(path, required=[], what="swing readings")
     label = f"swing readings {table.attrs['source']}"
     header = list(table.columns)
@@ -932,8 +932,6 @@ class CardDetails:
     @classmethod
     def make(cls, *, swing_date=None, **text) -> CardDetails:
         """Check and build: text fields must be one-line strings; ``swing_date`` any date (printed YYYY-MM-DD)."""
-        from .units import decimal_year, timestamp_from_decimal_year
-
         clean = {}
         for key, value in text.items():
             if key not in cls.__dataclass_fields__:
@@ -957,17 +955,12 @@ def base_link(bases_csv, base_name: str, swing_date, model=None, allow_extrapola
     before the swing date) and ``status`` (one line for the card). Raises InputError when the base is
     not in the file (listing the names there).
     """
-    import warnings as _warnings
-
-    from .compass_base import base_upkeep, read_sites_csv
-    from .headings import format_variation
-
     sites = read_sites_csv(bases_csv)
     chosen = [s for s in sites if s.name == base_name]
     if not chosen:
         raise InputError(f"base {base_name!r} is not in {os.fspath(bases_csv)}; bases there: {', '.join(s.name for s in sites)}")
-    with _warnings.catch_warnings():
-        _warnings.simplefilter("ignore")  # overdue is reported in status
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # overdue is reported in status
         row = base_upkeep(chosen, swing_date, model=model, allow_extrapolation=allow_extrapolation).iloc[0]
     marked = float(row.surveyed_variation_deg)
     due = row.resurvey_due_date or "not within the model's validity"
@@ -1032,10 +1025,6 @@ def card_html(analysis: SwingAnalysis, details: CardDetails | None = None, title
     card's curve keeps, both verdicts and which one decides, and a signature line for the person
     who swung the compass. All user text is HTML-escaped.
     """
-    import html
-
-    from .notices import CAUTION
-
     details = details or CardDetails()
     esc = html.escape
     ident = "".join(f"<tr><th>{esc(k)}</th><td>{esc(v)}</td></tr>" for k, v in _card_ident_rows(details, analysis))
