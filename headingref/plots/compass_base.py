@@ -25,7 +25,7 @@ import numpy as np
 import pandas as pd
 
 from ..field import field_arrays
-from . import save_figure
+from . import plain_text, save_figure
 
 __all__ = ["plot_survey_history", "save_figure"]
 
@@ -68,10 +68,10 @@ def plot_survey_history(upkeep: pd.DataFrame, surveys: Sequence[tuple[str, float
         ax.axhspan(mark - tol, mark + tol, color="C2", alpha=0.15, label=f"mark {mark:g}° ± {tol:g}°")
         ax.scatter(rows["year"], rows["variation_deg"], color="k", zorder=3, label="surveys")
         ax.axvline(swing_year, color="C1", linestyle=":", label="swing")
-        ax.set_title(str(base["name"]), fontsize=10, parse_math=False)
+        ax.set_title(str(base["name"]), fontsize=10)
         ax.set_xlabel("year")
         ax.set_ylabel("variation (° east +)")
         ax.grid(True, alpha=0.3)
         ax.legend(fontsize=7)
     fig.tight_layout()
-    return fig
+    return plain_text(fig)  # base names are drawn as typed, never as mathtext
