@@ -470,3 +470,34 @@ def test_sigterm_during_a_report_leaves_no_staging_folder(demo_copy, tmp_path):
             proc.kill()
     assert code != 0
     assert _leftovers(tmp_path) == [] and not out.exists()
+
+
+def test_survey_history_figure_draws_the_model_variation():
+    # The grey curve of the compass-base figure is the main-field variation: ppigrf (IGRF-14
+    # reference implementation) D = atan2(east, north) at the same place and dates, within 0.02 deg
+    # (the two interpolate the coefficients in slightly different time conventions).
+    import datetime as dt
+
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import ppigrf
+
+    from headingref.compass_base import base_upkeep, make_site
+    from headingref.plots.compass_base import plot_survey_history
+    from headingref.units import timestamp_from_decimal_year
+
+    site = make_site("Invented base $x$", 64.8, -147.6, "16.9E", "2020-06-01")
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        upkeep = base_upkeep([site], "2026-12-02")
+    fig = plot_survey_history(upkeep, [(site.name, site.survey_year, 16.9)], 2026.92)
+    (ax,) = fig.axes
+    assert ax.get_title() == "Invented base $x$" and not ax.title.get_parse_math()  # drawn as typed
+    (model_line,) = [line for line in ax.get_lines() if line.get_label() == "model (main field)"]
+    years, drawn = model_line.get_xdata(), model_line.get_ydata()
+    for i in (0, len(years) // 2, len(years) - 1):
+        when = timestamp_from_decimal_year(years[i]).to_pydatetime().replace(tzinfo=None)
+        east, north, _ = ppigrf.igrf(-147.6, 64.8, 0.0, dt.datetime(when.year, when.month, when.day))
+        expected = np.degrees(np.arctan2(np.ravel(east)[0], np.ravel(north)[0]))
+        assert drawn[i] == pytest.approx(expected, abs=0.02)
