@@ -590,3 +590,25 @@ def test_cli_empty_date_is_refused_in_one_line(capsys):
     assert main(["field", "--lat", "60", "--lon", "10", "--date", ""]) == 2
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and "--date is empty" in err[0]
+
+
+def test_longitude_property_accept_within_360_refuse_beyond():
+    # Property (hypothesis): any finite longitude in -360..360 gives the field of the same meridian
+    # wrapped to -180..180 (a longitude is periodic in 360 degrees, closed form); anything else is one
+    # InputError naming the longitude (issue 12: 1e300 used to return a number).
+    from hypothesis import given, settings
+    from hypothesis import strategies as st
+
+    @settings(max_examples=40, deadline=None)
+    @given(st.floats(allow_nan=True, allow_infinity=True), st.floats(min_value=-89.0, max_value=89.0))
+    def check(lon, lat):
+        if np.isfinite(lon) and abs(lon) <= 360.0:
+            wrapped = (lon + 180.0) % 360.0 - 180.0
+            f = headingref.field([lat, lat], [lon, wrapped], "2026-06-01")
+            assert f.north_nT[0] == pytest.approx(f.north_nT[1], abs=1e-6)
+            assert f.east_nT[0] == pytest.approx(f.east_nT[1], abs=1e-6)
+        else:
+            with pytest.raises(InputError, match=r"^longitude .* \(point 0\) is (not a finite number|outside -360 to 360)"):
+                headingref.field(lat, lon, "2026-06-01")
+
+    check()
