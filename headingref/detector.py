@@ -87,16 +87,19 @@ True
 
 from __future__ import annotations
 
+import math
 import warnings
 from dataclasses import dataclass, field, fields, replace
 from typing import Any
 
+import numba as nb
 import numpy as np
 import pandas as pd
 
 from .errors import InputError, UndefinedDeclinationWarning
 from .field import ZONE_DTYPE, field_arrays
 from .geogrid import CAPS, METRES_PER_DEG, area_grid, cap_stereo_grid, parse_area, polygons_area_km2, threshold_polygons
+from .synthesis import threads_for
 from .units import decimal_year
 
 STANDARD_GRAVITY_MPS2 = 9.80665  # standard acceleration of gravity (3rd CGPM, 1901)
@@ -225,41 +228,56 @@ def worst_tilt_heading_error_deg(
     th = np.radians(np.asarray(tilt_pitch_deg, dtype=np.float64))
     ph = np.radians(np.asarray(tilt_roll_deg, dtype=np.float64))
     shape = np.broadcast_shapes(inc.shape, th.shape, ph.shape)
-    # tilt terms keep their own (often scalar) shape; only the arithmetic below broadcasts
-    ct, st, cr, sr = np.cos(th), np.sin(th), np.cos(ph), np.sin(ph)
-    cos_tau = ct * cr
-    sin_tau = np.sqrt(np.maximum(sr**2 + (cr * st) ** 2, 0.0))
-    beta = np.arctan2(cr * st, sr)  # azimuth of the equivalent roll axis from the heading
-    gamma = np.arctan2(-st, sr * ct)  # in-plane offset of the detector's reference arm
-    offset = beta + gamma
-    c_inc, s_inc = np.cos(inc), np.sin(inc)
-    k_c = s_inc * sin_tau  # k * cos(I), k = tan(I) sin(tau)
-    c_inc2 = c_inc * c_inc
-    # quadratic in s = sin(chi), multiplied through by cos^2(I) to stay finite at I = 90
-    qa = sin_tau**2 * c_inc2
-    qb = k_c * c_inc * (2.0 * cos_tau - 1.0)
-    qc = (cos_tau - 1.0) * c_inc2 - k_c * k_c
-    with np.errstate(divide="ignore", invalid="ignore"):
-        root = np.sqrt(np.maximum(qb * qb - 4.0 * qa * qc, 0.0))
-        s_roots = np.clip(np.stack(np.broadcast_arrays((-qb + root) / (2.0 * qa), (-qb - root) / (2.0 * qa))), -1.0, 1.0)
-    s_roots = np.nan_to_num(s_roots, nan=0.0)
-    c_roots = np.sqrt(1.0 - s_roots * s_roots)
-    s_all = np.concatenate([s_roots, s_roots])  # candidates: (s, +c), (s, -c) for both roots
-    c_all = np.concatenate([c_roots, -c_roots])
-    chi = np.arctan2(s_all, c_all)
-    apparent = np.arctan2(c_inc * cos_tau * s_all - s_inc * sin_tau, c_inc * c_all)
-    err = np.abs(_wrap180(np.degrees(apparent - chi + offset)))
-    pick = np.argmax(err, axis=0)
-    worst = np.take_along_axis(err, pick[None], axis=0)[0]
-    worst_chi = np.take_along_axis(chi, pick[None], axis=0)[0]
-    reversed_ = sin_tau * np.abs(s_inc) >= cos_tau * np.abs(c_inc)
-    no_tilt = np.broadcast_to(sin_tau < 1e-12, shape)
-    worst = np.where(reversed_ & ~no_tilt, 180.0, np.where(no_tilt, 0.0, worst))
-    if not return_heading:
-        return worst
-    heading = np.degrees(worst_chi - beta) % 360.0
-    heading = np.where(reversed_ | no_tilt, np.nan, heading)
-    return worst, heading
+    # tilt terms keep their own (often scalar) size: the kernel reads element 0 when there is one
+    flat = [np.ascontiguousarray(v.ravel() if v.size == 1 else np.broadcast_to(v, shape).ravel()) for v in (inc, th, ph)]
+    worst = np.empty(int(np.prod(shape)), dtype=np.float64)
+    heading = np.empty_like(worst)
+    with threads_for(worst.size):
+        _worst_tilt_kernel(flat[0], flat[1], flat[2], worst, heading)
+    worst, heading = worst.reshape(shape), heading.reshape(shape)
+    return (worst, heading) if return_heading else worst
+
+
+@nb.njit(parallel=True, cache=True)
+def _worst_tilt_kernel(inc, th, ph, worst, heading):  # pragma: no cover - compiled
+    """Closed-form worst tilt error per point (module docstring): the quadratic's roots, both
+    signs of cos(chi), the largest wrapped error and its heading. Radians in, degrees out."""
+    two_pi = 2.0 * math.pi
+    for i in nb.prange(worst.size):
+        t = th[0] if th.size == 1 else th[i]
+        p = ph[0] if ph.size == 1 else ph[i]
+        inc_i = inc[0] if inc.size == 1 else inc[i]
+        ct, st, cr, sr = math.cos(t), math.sin(t), math.cos(p), math.sin(p)
+        cos_tau = ct * cr
+        sin_tau = math.sqrt(max(sr * sr + (cr * st) ** 2, 0.0))
+        c_inc, s_inc = math.cos(inc_i), math.sin(inc_i)
+        if sin_tau < 1e-12:  # no tilt
+            worst[i], heading[i] = 0.0, np.nan
+            continue
+        if sin_tau * abs(s_inc) >= cos_tau * abs(c_inc):  # some heading reads reversed
+            worst[i], heading[i] = 180.0, np.nan
+            continue
+        beta = math.atan2(cr * st, sr)  # azimuth of the equivalent roll axis from the heading
+        offset = beta + math.atan2(-st, sr * ct)  # plus the in-plane offset of the reference arm
+        k_c = s_inc * sin_tau  # k * cos(I), k = tan(I) sin(tau)
+        c_inc2 = c_inc * c_inc
+        # quadratic in s = sin(chi), multiplied through by cos^2(I) to stay finite at I = 90
+        qa = sin_tau * sin_tau * c_inc2
+        qb = k_c * c_inc * (2.0 * cos_tau - 1.0)
+        qc = (cos_tau - 1.0) * c_inc2 - k_c * k_c
+        root = math.sqrt(max(qb * qb - 4.0 * qa * qc, 0.0))
+        best, best_chi = -1.0, 0.0
+        for sign in (1.0, -1.0):  # candidates: (s, +c) for both roots, then (s, -c)
+            for s_raw in ((-qb + root) / (2.0 * qa), (-qb - root) / (2.0 * qa)):
+                s_c = 0.0 if math.isnan(s_raw) else min(max(s_raw, -1.0), 1.0)
+                c_c = sign * math.sqrt(1.0 - s_c * s_c)
+                chi = math.atan2(s_c, c_c)
+                diff = math.atan2(c_inc * cos_tau * s_c - s_inc * sin_tau, c_inc * c_c) - chi + offset
+                err = abs(math.degrees(diff - two_pi * np.rint(diff / two_pi)))
+                if err > best:
+                    best, best_chi = err, chi
+        worst[i] = best
+        heading[i] = math.degrees(best_chi - beta) % 360.0
 
 
 # --------------------------------------------------------------------------- three-arm detector
