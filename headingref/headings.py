@@ -488,8 +488,12 @@ def parse_grid(spec: Any) -> Grid:
 
 
 def convergence_deg(lat: Any, lon: Any, grid: Any = "polar") -> Any:
-    """Meridian convergence (true north to grid north, east positive, degrees) of ``grid`` at lat, lon."""
-    return parse_grid(grid).convergence_deg(lat, lon)
+    """Meridian convergence (true north to grid north, east positive, degrees) of ``grid`` at lat, lon.
+
+    ``grid`` as :func:`parse_grid`, or ``auto`` (:func:`resolve_grid`: the polar grid of the pole
+    nearest the points).
+    """
+    return resolve_grid(grid, lat).convergence_deg(lat, lon)
 
 
 # --------------------------------------------------------------------------- text forms
