@@ -369,3 +369,13 @@ def test_budget_map_says_when_it_is_saturated():
     assert grid["saturated_by"].attrs["flag_meanings"].split()[1] == "slaving_rate"
     level = heading_error_grid("north", "2026-12-02", resolution_deg=2.0, manoeuvre=Manoeuvre.level())
     assert level.attrs["saturated_by"] != "slaving_rate"
+
+
+@settings(max_examples=100, deadline=None)
+@given(st.floats(0.0, 60.0), st.floats(-89.0, 89.0), st.floats(-20.0, 20.0))
+def test_earlier_keyword_names_convert_to_the_settings(minutes, bank, accel):
+    # parser property: the earlier names mean the same settings; 1 min = 60 s (SI)
+    det, man = budget_settings(turn_duration_min=minutes, bank_deg=bank, accel_mps2=accel)
+    assert man.turn_duration_s == pytest.approx(60.0 * minutes, rel=1e-12, abs=1e-12)
+    assert (man.bank_angle_deg, man.acceleration_mps2) == (bank, accel)
+    assert det == DetectorSettings()

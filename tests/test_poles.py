@@ -9,10 +9,12 @@ import pandas as pd
 import ppigrf
 import pytest
 from chaosmagpy.coordinate_utils import igrf_dipole
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 import headingref
 from headingref.errors import DateRangeError, InputError
-from headingref.poles import geodetic_from_geocentric_lat, pole_tracks
+from headingref.poles import geocentric_from_geodetic_lat, geodetic_from_geocentric_lat, pole_tracks
 
 # Alken et al. (2021), "International Geomagnetic Reference Field: the thirteenth generation",
 # Earth Planets Space 73:49, Table 4 (pole positions from IGRF-13, latitudes geodetic WGS84).
@@ -213,3 +215,16 @@ def test_pole_track_includes_its_end_when_the_step_does_not_divide_the_span():
 
     track = pole_tracks("2016-12-02", "2026-12-02", 2)
     assert track.decimal_year.max() == pytest.approx(decimal_year("2026-12-02"), abs=1e-9)
+
+
+@settings(max_examples=100, deadline=None)
+@given(st.floats(-89.9, 89.9), st.floats(-180.0, 180.0))
+def test_geocentric_latitude_round_trip_and_pyproj(lat, lon):
+    from pyproj import Transformer
+
+    # conversion property: geodetic -> geocentric (surface) -> geodetic is the identity, and the
+    # geocentric latitude equals atan2(z, hypot(x, y)) of pyproj's ECEF point (EPSG:4979 -> 4978)
+    lat_c = float(geocentric_from_geodetic_lat(lat))
+    assert float(geodetic_from_geocentric_lat(lat_c)) == pytest.approx(lat, abs=1e-9)
+    x, y, z = Transformer.from_crs("EPSG:4979", "EPSG:4978", always_xy=True).transform(lon, lat, 0.0)
+    assert lat_c == pytest.approx(math.degrees(math.atan2(z, math.hypot(x, y))), abs=1e-9)
