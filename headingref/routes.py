@@ -279,7 +279,7 @@ LEG_COLUMNS: tuple[str, ...] = (
 SAMPLE_COLUMNS: tuple[str, ...] = (
     "leg", "from", "to", "distance_along_leg_nm", "distance_along_route_nm", "lat_deg", "lon_deg", "alt_km",
     "true_course_deg", "variation_deg", "magnetic_course_deg", "convergence_deg", "grid_course_deg",
-    "grivation_deg", "horizontal_nT", "declination_uncertainty_deg", "zone",
+    "grivation_deg", "horizontal_nT", "declination_uncertainty_deg", "zone", "declination_flag",
 )
 """Columns of :attr:`RouteResult.samples`, in order (see :func:`route`)."""
 
@@ -353,6 +353,7 @@ class _References(NamedTuple):
     convergence: np.ndarray
     grid_course: np.ndarray
     grivation: np.ndarray
+    flag: Any = None  # headingref.field's declination_flag: why D is NaN or (H < 100 nT) not usable
 
 
 def _check_options(path: str, spacing_nm: Any) -> float:
@@ -469,6 +470,7 @@ def _references(track: _Track, wps: pd.DataFrame, grid_obj: Any, year: float, mo
         convergence=convergence,
         grid_course=normalize_heading(track.course - convergence),
         grivation=grivation_deg(variation, convergence),
+        flag=fld["declination_flag"],
     )
 
 
@@ -504,6 +506,7 @@ def _samples_table(track: _Track, refs: _References, legs: _Legs) -> pd.DataFram
         "horizontal_nT": refs.h_nT[:n],
         "declination_uncertainty_deg": refs.uncertainty[:n],
         "zone": _zones(refs.zone_code[:n]),
+        "declination_flag": refs.flag[:n],
     }
     return pd.DataFrame({name: columns[name] for name in SAMPLE_COLUMNS})
 

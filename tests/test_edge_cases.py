@@ -220,6 +220,9 @@ def test_route_over_the_north_dip_pole(miss_m):
     assert math.hypot(0.26, 5417.0 / legs.min_horizontal_nT[0]) > 100.0
     assert legs.max_declination_uncertainty_deg[0] == 180.0
     assert samples.declination_uncertainty_deg.max() == 180.0
+    # the route's samples carry the field's flag exactly where the uncertainty is capped
+    flagged = samples.declination_flag == "no usable declination: H below 100 nT"
+    assert flagged.any() and (flagged == (samples.horizontal_nT < 100.0)).all()
     # the route profile's uncertainty axis stops at the cap (it ran to 35,000 degrees before)
     import matplotlib
 
