@@ -409,6 +409,28 @@ def test_huge_or_non_finite_number_names_the_line(tmp_path, reader, column, valu
     assert f"{path.name} line 2" in message, message
 
 
+LENIENT_NUMBERS = ["6_1", "\u0666\u0661", "\uff16\uff11", "9_1.5", "0x3d"]  # 61 to Python's float() but for hex
+LENIENT_CASES = [
+    (name, column, value)
+    for name, (_, _, _, numeric) in READERS.items()
+    if name != "runways"  # runways turns an unreadable row into status 'error' (test below)
+    for column in numeric
+    for value in LENIENT_NUMBERS
+]
+
+
+@pytest.mark.parametrize("reader, column, value", LENIENT_CASES)
+def test_lenient_number_forms_are_refused_with_the_line(tmp_path, reader, column, value):
+    # Python's float() reads PEP 515 underscores and every Unicode decimal digit (Arabic-Indic
+    # U+0660.., full-width U+FF10..): '6_1' and the Arabic-Indic '61' became 61 silently. Only plain
+    # ASCII decimal is accepted (headingref.units.parse_number); the error names line 2.
+    path = tmp_path / f"{reader}.csv"
+    path.write_text(_with_cell(READERS[reader][1], column, value), encoding="utf-8")
+    kind, message = outcome(lambda: READERS[reader][0](path))
+    assert kind == "error", f"{column} = {value!r} was accepted"
+    assert f"{path.name} line 2" in message, message
+
+
 @pytest.mark.parametrize("reader, column", [("places", "lat"), ("route", "lon"), ("bases", "surveyed_variation"),
                                             ("swing", "compass_reading_deg"), ("places", "alt")])
 def test_negative_zero_is_zero(tmp_path, reader, column):
