@@ -445,10 +445,12 @@ def base_upkeep(
       survey's drift date and survey + interval), ``overdue`` (due on or before the swing date);
     - ``history_minus_model_deg``: change observed between the first and the latest survey minus
       the model's change over the same time (NaN with one survey);
-    - ``horizontal_nT, declination_uncertainty_deg, zone, caution``.
+    - ``horizontal_nT, declination_uncertainty_deg, zone`` (categorical, :data:`headingref.field.ZONE_DTYPE`),
+      ``caution``.
 
     Dates are ``YYYY-MM-DD`` text ('' when none), decimal years in the ``*_year`` columns.
     """
+    from .field import ZONE_DTYPE
     from .model import load_model
 
     sites = _site_list(sites)
@@ -461,6 +463,7 @@ def base_upkeep(
     variation = variation_function or model_variation_function(loaded, allow_extrapolation)
     state = _model_state(sites, swing_year, loaded, variation, allow_extrapolation, mark_step_deg)
     table = pd.DataFrame([_upkeep_row(i, site, state) for i, site in enumerate(sites)], columns=list(UPKEEP_COLUMNS))
+    table["zone"] = table["zone"].astype(ZONE_DTYPE)  # the zone dtype of every headingref table
     _warn_upkeep(table, loaded)
     table.attrs["caution"] = SITE_CAUTION
     return table

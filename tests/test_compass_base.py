@@ -324,3 +324,14 @@ def test_upkeep_bad_argument_types_are_input_errors(argument, value):
     kwargs[argument] = value
     with pytest.raises(InputError, match=argument.split("_deg")[0]):
         base_upkeep(**kwargs)
+
+
+def test_upkeep_schema_and_zone_dtype():
+    # One zone dtype in every table (the field table's categorical); columns as documented.
+    from headingref.compass_base import UPKEEP_COLUMNS
+    from headingref.field import ZONE_DTYPE
+
+    site = make_site("Invented", 60, 10, "3E", "2020-01-01")
+    table = base_upkeep([site], "2020-06-01", variation_function=constant_rate(3.0, 0.1, 2020.0))
+    assert tuple(table.columns) == UPKEEP_COLUMNS
+    assert table.zone.dtype == ZONE_DTYPE and table.zone.iloc[0] == "normal"  # H about 15,000 nT at 60 N 10 E (from memory), far above the 6,000 nT caution edge
