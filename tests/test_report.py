@@ -186,11 +186,16 @@ def test_summary_names_the_blackout_leg(demo):
         assert any(t.startswith(f"{route}, leg {a}–{b}") for t in texts)
 
 
+def _scenario(folder: Path, body: str, name: str = "s.toml") -> Path:
+    """A scenario TOML with the demo's analysis date and ``body`` (its sections)."""
+    path = folder / name
+    path.write_text(f'analysis_date = "2026-12-02"\n{body}', encoding="utf-8")
+    return path
+
+
 def _small_scenario(tmp_path, extra=""):
     shutil.copy(DEMO / "runways.csv", tmp_path / "rw.csv")
-    path = tmp_path / "small.toml"
-    path.write_text(f'analysis_date = "2026-12-02"\n[runways]\nfile = "rw.csv"\nhorizon_years = 2\n{extra}', encoding="utf-8")
-    return path
+    return _scenario(tmp_path, f'[runways]\nfile = "rw.csv"\nhorizon_years = 2\n{extra}', "small.toml")
 
 
 def test_failing_job_is_a_shown_failed_section_not_a_silent_gap(tmp_path, monkeypatch, capsys):
@@ -217,8 +222,7 @@ def test_failing_job_is_a_shown_failed_section_not_a_silent_gap(tmp_path, monkey
 
 def test_failed_run_writes_nothing(tmp_path):
     (tmp_path / "rw.csv").write_text("airport,runway\nJXAA,09\n", encoding="utf-8")
-    path = tmp_path / "bad.toml"
-    path.write_text('analysis_date = "2026-12-02"\n[runways]\nfile = "rw.csv"\n', encoding="utf-8")
+    path = _scenario(tmp_path, '[runways]\nfile = "rw.csv"\n', "bad.toml")
     with pytest.raises(InputError, match="Runway designators.*lat"):
         build_report(path, tmp_path / "out", progress=False)
     assert not (tmp_path / "out").exists()
@@ -229,8 +233,7 @@ def test_cli_report_and_errors(tmp_path, capsys):
     assert main(["report", str(_small_scenario(tmp_path)), "--out", str(tmp_path / "cli"), "--no-progress"]) == 0
     out = capsys.readouterr().out
     assert "report:" in out and (tmp_path / "cli" / REPORT_FILE).is_file()
-    bad = tmp_path / "typo.toml"
-    bad.write_text('analysis_date = "2026-12-02"\n[runway]\n', encoding="utf-8")
+    bad = _scenario(tmp_path, "[runway]\n", "typo.toml")
     assert main(["report", str(bad), "--out", str(tmp_path / "x"), "--no-progress"]) == 2
     err = capsys.readouterr().err.strip()
     assert err.count("\n") == 0 and "did you mean 'runways'" in err
@@ -243,8 +246,7 @@ def test_bad_output_folder_and_bad_route_name_the_culprit(tmp_path):
     with pytest.raises(InputError, match="does not exist"):
         build_report(_small_scenario(tmp_path), tmp_path / "no" / "such" / "dir", progress=False)
     (tmp_path / "one.csv").write_text("name,lat,lon\nA,70,20\n", encoding="utf-8")
-    path = tmp_path / "r.toml"
-    path.write_text('analysis_date = "2026-12-02"\n[routes]\n[[routes.plan]]\nname = "R1"\nfile = "one.csv"\n', encoding="utf-8")
+    path = _scenario(tmp_path, '[routes]\n[[routes.plan]]\nname = "R1"\nfile = "one.csv"\n', "r.toml")
     with pytest.raises(InputError, match="route 'R1' \\(one.csv\\): a route needs at least two waypoints"):
         build_report(path, tmp_path / "out", progress=False)
     assert not (tmp_path / "out").exists()
@@ -258,8 +260,7 @@ def test_large_runway_batch_keeps_the_summary_short(tmp_path):
         part["airport"] = part["airport"].str[:2] + f"{i:02d}"
         copies.append(part)
     pd.concat(copies).to_csv(tmp_path / "rw.csv", index=False)
-    path = tmp_path / "big.toml"
-    path.write_text('analysis_date = "2026-12-02"\n[runways]\nfile = "rw.csv"\n', encoding="utf-8")
+    path = _scenario(tmp_path, '[runways]\nfile = "rw.csv"\n', "big.toml")
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         result = build_report(path, tmp_path / "out", progress=False)
@@ -323,8 +324,7 @@ def test_folder_holding_an_input_or_other_files_is_refused(tmp_path):
     out = tmp_path / "out"
     out.mkdir()
     shutil.copy(DEMO / "runways.csv", out / "runways.csv")
-    path = tmp_path / "s.toml"
-    path.write_text('analysis_date = "2026-12-02"\n[runways]\nfile = "out/runways.csv"\nhorizon_years = 1\n', encoding="utf-8")
+    path = _scenario(tmp_path, '[runways]\nfile = "out/runways.csv"\nhorizon_years = 1\n')
     with pytest.raises(InputError, match="holds the scenario's input"):
         build_report(path, out, progress=False)
     other = tmp_path / "notes"
@@ -341,9 +341,8 @@ def test_earlier_report_is_replaced_as_a_whole(tmp_path):
         warnings.simplefilter("ignore")
         build_report(_small_scenario(tmp_path), out, progress=False)
         (out / "stale_from_last_time.csv").write_text("x\n1\n", encoding="utf-8")
-        swing = tmp_path / "sw.toml"
         shutil.copy(DEMO / "swing_readings.csv", tmp_path / "sw.csv")
-        swing.write_text('analysis_date = "2026-12-02"\n[swing]\nfile = "sw.csv"\n', encoding="utf-8")
+        swing = _scenario(tmp_path, '[swing]\nfile = "sw.csv"\n', "sw.toml")
         result = build_report(swing, out, progress=False)
     # the folder now holds exactly this report's files: nothing of the earlier one is mixed in
     assert sorted(p.name for p in out.iterdir()) == sorted(p.name for p in result.files)
@@ -405,8 +404,7 @@ def test_unusable_runway_rows_are_listed_not_a_crash(tmp_path):
     text = (DEMO / "runways.csv").read_text(encoding="utf-8").rstrip("\n")
     text += "\nJXZZ,37,69.6,18.9,69.62,18.9\nJXZY,09,nan,18.9,69.7,18.9\n"
     (tmp_path / "rw.csv").write_text(text, encoding="utf-8")
-    path = tmp_path / "s.toml"
-    path.write_text('analysis_date = "2026-12-02"\n[runways]\nfile = "rw.csv"\nhorizon_years = 2\n', encoding="utf-8")
+    path = _scenario(tmp_path, '[runways]\nfile = "rw.csv"\nhorizon_years = 2\n')
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         result = build_report(path, tmp_path / "out", progress=False)
