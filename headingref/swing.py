@@ -73,7 +73,7 @@ Public API
 ----------
 :func:`deviation_from_readings`, :func:`fit_deviation`, :func:`eight_point_coefficients`,
 :func:`four_point_coefficients`, :func:`handbook_coefficients`, :func:`analyse_swing`,
-:func:`read_swing_csv`, :func:`correction_card`, :func:`card_html`, :func:`base_link`,
+:func:`read_swing_csv`, :func:`correction_card`, :func:`card_html`, :func:`base_link`, :func:`swing_from_scenario`,
 :class:`DeviationCurve`, :class:`DeviationFit`, :class:`SwingAnalysis`, :class:`CardDetails`,
 :data:`DEFAULT_LIMIT_DEG`, :data:`COEFFICIENT_MEANINGS`, :data:`COMPASS_POINTS_DEG`.
 
@@ -127,6 +127,7 @@ __all__ = [
     "four_point_coefficients",
     "handbook_coefficients",
     "read_swing_csv",
+    "swing_from_scenario",
 ]
 
 DEFAULT_LIMIT_DEG = 10.0
@@ -1046,3 +1047,34 @@ def card_html(analysis: SwingAnalysis, details: CardDetails | None = None, title
 <p class="caution">{esc(CAUTION)}</p>
 </body></html>
 """
+
+
+def swing_from_scenario(section: dict, bases_file=None, model=None, allow_extrapolation: bool = False) -> tuple[SwingAnalysis, CardDetails]:
+    """Run the ``[swing]`` section of a scenario: the analysis and the card's identification.
+
+    ``section`` as :attr:`headingref.scenario.Scenario.swing` (keys ``file, base, limit_deg,
+    compensated_limit_deg, verdict_on, method, card_after_compensation, date, aircraft, compass,
+    swung_by, conditions``); ``bases_file`` the ``[compass_bases]`` CSV, which links the card to the
+    base's marked variation and survey date when ``base`` names a base in it.
+    """
+    magnetic, compass, labels = read_swing_csv(section["file"])
+    analysis = analyse_swing(
+        magnetic,
+        compass,
+        limit_deg=section["limit_deg"],
+        compensated_limit_deg=section.get("compensated_limit_deg"),
+        verdict_on=section.get("verdict_on", "as_measured"),
+        method=section.get("method", "least_squares"),
+        card_after_compensation=bool(section.get("card_after_compensation", False)),
+        rows=labels,
+    )
+    link = {}
+    if bases_file is not None and section.get("base") and section.get("date") is not None:
+        link = base_link(bases_file, section["base"], section["date"], model=model, allow_extrapolation=allow_extrapolation)
+    details = CardDetails.make(
+        aircraft=section.get("aircraft", ""), compass=section.get("compass", ""), base=section.get("base", ""),
+        swing_date=section.get("date"), conditions=section.get("conditions", ""), swung_by=section.get("swung_by", ""),
+        base_marked_variation=link.get("marked_variation", ""), base_survey_date=link.get("survey_date", ""),
+        base_status=link.get("status", ""),
+    )
+    return analysis, details

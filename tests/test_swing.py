@@ -492,3 +492,21 @@ def test_deviation_column_forms(tmp_path_factory, value, style):
     magnetic, compass, _ = read_swing_csv(path)
     assert magnetic[0] == 90.0
     assert float(deviation_from_readings(magnetic, compass)[0]) == pytest.approx(value, abs=1e-9)
+
+
+def test_swing_from_the_demo_scenario():
+    # The demo's [swing] section on the demo bases: the card links to the base's latest survey in
+    # data/demo/compass_bases.csv (Svalbrekka 10.7E on 2021-06-22, overdue by the 2027-03-15 swing:
+    # drift about +0.4 deg a year against a 0.5 deg tolerance, data/demo/README.md).
+    from headingref.scenario import DEMO_SCENARIO, load_scenario
+    from headingref.swing import swing_from_scenario
+
+    sc = load_scenario(DEMO_SCENARIO)
+    analysis, details = swing_from_scenario(sc.swing, sc.compass_bases["file"])
+    # Demo readings are the invented curve A 0.5, B 6.5, C -5.0, D 0.8, E -0.4 plus 0.2 deg noise
+    # (data/demo/README.md): least squares recovers each within 3 standard errors of 12 readings
+    # (sigma sqrt(2/12) = 0.08 deg for B..E; Gauss-Markov).
+    for name, value in {"A": 0.5, "B": 6.5, "C": -5.0, "D": 0.8, "E": -0.4}.items():
+        assert analysis.curve.coefficients()[name] == pytest.approx(value, abs=0.25), name
+    assert details.swing_date == "2027-03-15" and details.base_marked_variation == "10°42′ E"
+    assert details.base_survey_date == "2021-06-22" and "OVERDUE" in details.base_status
