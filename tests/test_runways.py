@@ -676,3 +676,20 @@ def test_duplicated_designator_still_gets_a_verdict():
     assert t.runway_id.tolist() == ["09/27", "09/27", "09"]
     assert (t.verdict != "").all() and np.isfinite(t.runway_magnetic_deg).all()
     assert "appears more than once" in t.reason[0]
+
+
+def test_cli_quick_check_of_one_runway(capsys):
+    # One runway from the command line: the reciprocal end (number + 18, Annex 14 rule) is made and
+    # both are decided together; the result equals the same ends read from the demo file.
+    from headingref.cli import main
+
+    code = main(["runways", "--airport", "NORDVIK", "--runway", "09", "--lat", "69.305", "--lon", "16.12",
+                 "--end-lat", "69.302141", "--end-lon", "16.180285", "--date", DATE, "--horizon", "1"])
+    printed = capsys.readouterr().out
+    assert code == 0
+    file_result = _quiet_check(DATA / "runways_demo.csv", DATE, horizon_years=1).table
+    for end in ("09", "27"):
+        expected = file_result[(file_result.airport == "NORDVIK") & (file_result.runway == end)].iloc[0]
+        assert f"NORDVIK {end}: implied {expected.designator_implied} ({expected.verdict})" in printed
+    code = main(["runways", "--airport", "NORDVIK", "--runway", "09", "--lat", "69.305", "--date", DATE])
+    assert code == 2 and "--lon" in capsys.readouterr().err
