@@ -259,8 +259,8 @@ def _places(path: Path):
     from headingref.cli.field import _inputs
 
     args = argparse.Namespace(input=str(path), lat=None, lon=None, date=TODAY, alt="0")
-    _, lat, lon, alt, years = _inputs(args)
-    return field(lat, lon, years, alt_km=alt)
+    places = _inputs(args)
+    return field(places.lat, places.lon, places.years, alt_km=places.alt)
 
 
 def _route(path: Path):
