@@ -30,7 +30,9 @@ threshold is not restated here (from memory; not verified against the order's te
 Input
 -----
 CSV or ``.xlsx``: ``ident, lat, lon, station_declination_deg`` (east positive; ``12.5W`` and
-``E3`` are accepted too) and optional ``alignment_date`` and elevation (``elevation`` with a unit
+``E3`` are accepted too) and optional ``alignment_date`` (the model variation on that date is
+reported as ``variation_at_alignment_deg``: far from the station declination, it points to a data
+error) and elevation (``elevation`` with a unit
 in each value, or ``elevation_m`` / ``elevation_ft``). A column mapping renames the file's
 columns (``columns="ident=id,station_declination_deg=slaved_var"``).
 
@@ -70,7 +72,8 @@ REQUIRED = ("ident", "lat", "lon", "station_declination_deg")
 OPTIONAL = ("alignment_date", "elevation", "elevation_m", "elevation_ft")
 
 OUTPUT_COLUMNS = (
-    "input_row", "ident", "lat", "lon", "station_declination_deg", "alignment_date", "variation_deg", "difference_deg",
+    "input_row", "ident", "lat", "lon", "station_declination_deg", "alignment_date", "variation_at_alignment_deg",
+    "variation_deg", "difference_deg",
     "exceeds", "realign_date", "years_to_realign", "declination_rate_deg_per_year", "variation_uncertainty_deg", "zone",
     "alt_km",
 )
@@ -80,9 +83,9 @@ UNITS = {
     "lat": "deg N", "lon": "deg E", "station_declination_deg": "deg, east positive", "variation_deg": "deg, east positive",
     "difference_deg": "deg, variation - station declination", "years_to_realign": "years",
     "declination_rate_deg_per_year": "deg/year", "variation_uncertainty_deg": "deg, 1 sigma", "alt_km": "km",
-    "realign_date": "UTC date", "alignment_date": "UTC date",
+    "realign_date": "UTC date", "alignment_date": "UTC date", "variation_at_alignment_deg": "deg, east positive",
 }
-DECIMALS = {"lat": 6, "lon": 6, "station_declination_deg": 2, "variation_deg": 2, "difference_deg": 2, "years_to_realign": 2,
+DECIMALS = {"lat": 6, "lon": 6, "station_declination_deg": 2, "variation_at_alignment_deg": 2, "variation_deg": 2, "difference_deg": 2, "years_to_realign": 2,
             "declination_rate_deg_per_year": 3, "variation_uncertainty_deg": 2, "alt_km": 3}
 
 
@@ -260,10 +263,12 @@ def check_navaids(
         stamps = pd.DatetimeIndex(settings.start + pd.to_timedelta(days, unit="D"))
         realign[due] = np.asarray(stamps.strftime("%Y-%m-%d"), dtype=object)
         years_to[due] = days / 365.2425
+    at_alignment = _variation_at_alignment(values, settings)
     labels = [f"{frame.attrs.get('source', 'table')} line {i}" for i in frame.index]
     out = pd.DataFrame({
         "input_row": labels, "ident": values["ident"], "lat": values["lat"], "lon": values["lon"],
-        "station_declination_deg": station, "alignment_date": values["alignment_date"], "variation_deg": variation,
+        "station_declination_deg": station, "alignment_date": values["alignment_date"],
+        "variation_at_alignment_deg": at_alignment, "variation_deg": variation,
         "difference_deg": difference, "exceeds": exceeds, "realign_date": realign, "years_to_realign": years_to,
         "declination_rate_deg_per_year": f["declination_deg_per_year"][now],
         "variation_uncertainty_deg": f["declination_uncertainty_deg"][now],
@@ -276,6 +281,29 @@ def check_navaids(
         "rows": n, "exceeds": int(exceeds.sum()), "due_within_horizon": int(due.sum()),
     }
     return NavaidCheck(out, summary, list(settings.notes))
+
+
+def _variation_at_alignment(values: dict, settings) -> np.ndarray:
+    """Model variation at each station on its alignment date (NaN without a date or outside the model's validity).
+
+    A station declination far from this value suggests a data error (or an alignment to another
+    model), the navaid counterpart of a runway designator that never fitted.
+    """
+    from .field import field_arrays
+    from .units import decimal_year
+
+    out = np.full(len(values["ident"]), np.nan)
+    given = np.flatnonzero(values["alignment_date"] != "")
+    if given.size == 0:
+        return out
+    years = np.array([float(decimal_year(d)) for d in values["alignment_date"][given]])
+    model = settings.model
+    inside = (years >= model.valid_from) & (years <= model.valid_to)
+    rows = given[inside]
+    if rows.size:
+        f = field_arrays(values["lat"][rows], values["lon"][rows], years[inside], values["alt_km"][rows], model=model)
+        out[rows] = f["declination_deg"]
+    return out
 
 
 def write_navaid_table(target: str | os.PathLike, result: NavaidCheck):

@@ -114,3 +114,12 @@ def test_scenario_navaids_section_and_column_mapping(tmp_path):
     bad.write_text('analysis_date = "2026-12-02"\n[navaids]\nfile = "vors.csv"\ncolumns = "callsign=id"\n', encoding="utf-8")
     with pytest.raises(InputError, match=r"\[navaids\] columns"):
         load_scenario(bad)
+
+
+def test_variation_at_alignment_against_ppigrf():
+    # The model variation on each station's alignment date (ppigrf IGRF-14, 0.003 deg as above).
+    t = check_navaids(DEMO, DATE, horizon_years=1).table
+    for row in t.itertuples():
+        day = dt.date.fromisoformat(row.alignment_date)
+        reference = _ppigrf_variation(row.lat, row.lon, [day], row.alt_km)[0]
+        assert row.variation_at_alignment_deg == pytest.approx(reference, abs=3e-3)
