@@ -16,9 +16,7 @@ geocentric (X', Y', Z') is rotated by the angle between the two verticals (WMM20
 
 Kernels:
 
-- :func:`scattered_uniform`: points sharing one coefficient set, in SIMD blocks of 64 points; at
-  high degree (WMMHR2025's 133) with the radial factor folded into the recursion, the longitude
-  factored out of the degree sums and the rate sums cut at the highest degree with secular variation;
+- :func:`scattered_uniform`: points sharing one coefficient set, in SIMD blocks of 64 points;
   :func:`scattered` applies it to points with their own dates (the field is linear in the
   coefficients), and a point-by-point kernel to a handful of points.
 - :func:`grid_row_terms` + a matrix product: on a regular grid the Legendre part depends only on
@@ -365,33 +363,8 @@ def angles(xyz: np.ndarray, out: np.ndarray, h_undefined_nT: float) -> None:
 _BLOCK = 64
 
 
-@nb.njit(cache=True)
-def _sv_degree(g_rate, h_rate):
-    """Highest degree with a non-zero rate (0 if none): above it the rate sums are skipped."""
-    nmax = g_rate.shape[0] - 1
-    for n in range(nmax, 0, -1):
-        for m in range(n + 1):
-            if g_rate[n, m] != 0.0 or h_rate[n, m] != 0.0:
-                return n
-    return 0
-
-
-_HIGH_DEGREE = 20
-"""From this degree up :func:`scattered_uniform` uses the factorised kernel. Measured (CPU time of one
-thread, benchmarks' random places): at degree 13 its per-order work makes it 20-40% slower than the
-term-by-term kernel; at degree 133 it is 20-25% faster."""
-
-
-def scattered_uniform(lat_deg, lon_deg, alt_km, g, h, g_rate, h_rate, k1, k2, diag, a_ref, out):
-    """Field of one coefficient set ``g, h`` (nT) and of its rates (nT/yr) at scattered points; ``out``
-    (6, npts) as in :func:`scattered`. Dispatches on degree (:data:`_HIGH_DEGREE`) between
-    :func:`_uniform_low_degree` and :func:`_uniform_high_degree`."""
-    kernel = _uniform_high_degree if g.shape[0] - 1 >= _HIGH_DEGREE else _uniform_low_degree
-    kernel(lat_deg, lon_deg, alt_km, g, h, g_rate, h_rate, k1, k2, diag, a_ref, out)
-
-
 @nb.njit(parallel=True, cache=True, fastmath=True)
-def _uniform_low_degree(lat_deg, lon_deg, alt_km, g, h, g_rate, h_rate, k1, k2, diag, a_ref, out):
+def scattered_uniform(lat_deg, lon_deg, alt_km, g, h, g_rate, h_rate, k1, k2, diag, a_ref, out):
     """As :func:`scattered`, for points that share one date (coefficients ``g``.. at that date,
     shape (nmax+1, nmax+1)).
 
@@ -479,138 +452,6 @@ def _uniform_low_degree(lat_deg, lon_deg, alt_km, g, h, g_rate, h_rate, k1, k2, 
                     dys[b] += fm * sin_rate * rp
                     zs[b] -= fn1 * cos_part * rp
                     dzs[b] -= fn1 * cos_rate * rp
-        for b in range(valid):
-            i = start + b
-            out[0, i] = xs[b] * cos_psi[b] - zs[b] * sin_psi[b]
-            out[1, i] = ys[b] / st[b]
-            out[2, i] = xs[b] * sin_psi[b] + zs[b] * cos_psi[b]
-            out[3, i] = dxs[b] * cos_psi[b] - dzs[b] * sin_psi[b]
-            out[4, i] = dys[b] / st[b]
-            out[5, i] = dxs[b] * sin_psi[b] + dzs[b] * cos_psi[b]
-
-
-@nb.njit(parallel=True, cache=True, fastmath=True)
-def _uniform_high_degree(lat_deg, lon_deg, alt_km, g, h, g_rate, h_rate, k1, k2, diag, a_ref, out):
-    """Field of one coefficient set ``g, h`` (nT) and of its rates ``g_rate, h_rate`` (nT/yr) at
-    scattered points, shape (nmax+1, nmax+1) each; ``out`` (6, npts) as in :func:`scattered`.
-
-    Used for points that share one date (``g``.. the coefficients at that date) and, through
-    :func:`scattered`, for many points with their own dates. Three changes from a term-by-term sum keep the
-    work per (n, m) small: (1) the radial factor is folded into the recursion,
-    ``Q_n^m = (a/r)^(n+2) P_n^m``, ``Q_n^m = K1 (a/r) cos(theta) Q_{n-1}^m - K2 (a/r)^2 Q_{n-2}^m`` (the
-    recursion of the module docstring times (a/r)^(n+2)); (2) for each order m the sums over degree are
-    formed with the Gauss coefficients alone (``sum_n g_nm Q_n^m`` ...) and multiplied by cos(m lon),
-    sin(m lon) once per order (the usual factorisation of the synthesis, e.g. Langel 1987, sec. 4.2);
-    (3) the rate sums stop at the highest degree with secular variation (15 for WMMHR2025). Points are
-    processed in blocks of 64 with the block innermost, so the compiler uses SIMD instructions.
-    """
-    nmax = g.shape[0] - 1
-    sv = _sv_degree(g_rate, h_rate)
-    npts = lat_deg.shape[0]
-    nblocks = (npts + _BLOCK - 1) // _BLOCK
-    for blk in nb.prange(nblocks):
-        start = blk * _BLOCK
-        valid = min(_BLOCK, npts - start)
-        w = _BLOCK
-        sc = np.empty((34, _BLOCK))
-        st, cr, sr, r2 = sc[0], sc[1], sc[2], sc[3]
-        sin_psi, cos_psi, cl, sl, cm, sm = sc[4], sc[5], sc[6], sc[7], sc[8], sc[9]
-        qmm, dqmm, q1, dq1, q2, dq2 = sc[10], sc[11], sc[12], sc[13], sc[14], sc[15]
-        xg, xh, yg, yh, zg, zh = sc[16], sc[17], sc[18], sc[19], sc[20], sc[21]
-        vxg, vxh, vyg, vyh, vzg, vzh = sc[22], sc[23], sc[24], sc[25], sc[26], sc[27]
-        xs, ys, zs, dxs, dys, dzs = sc[28], sc[29], sc[30], sc[31], sc[32], sc[33]
-        for b in range(w):
-            j = start + min(b, valid - 1)
-            r, st[b], ct, sin_psi[b], cos_psi[b] = _geocentric(lat_deg[j], alt_km[j])
-            ratio = a_ref / r
-            cr[b] = ct * ratio
-            sr[b] = st[b] * ratio
-            r2[b] = ratio * ratio
-            sl[b], cl[b] = sincos_deg(lon_deg[j])
-            cm[b] = 1.0
-            sm[b] = 0.0
-            qmm[b] = ratio * ratio  # Q_0^0 = (a/r)^2
-            dqmm[b] = 0.0
-            xs[b] = ys[b] = zs[b] = dxs[b] = dys[b] = dzs[b] = 0.0
-        for m in range(nmax + 1):
-            if m >= 1:
-                dm = 1.0 if m == 1 else diag[m]
-                for b in range(w):
-                    qnew = dm * sr[b] * qmm[b]
-                    dqmm[b] = dm * (cr[b] * qmm[b] + sr[b] * dqmm[b])
-                    qmm[b] = qnew
-                    cnew = cm[b] * cl[b] - sm[b] * sl[b]
-                    sm[b] = sm[b] * cl[b] + cm[b] * sl[b]
-                    cm[b] = cnew
-            for b in range(w):
-                q1[b] = qmm[b]
-                dq1[b] = dqmm[b]
-                q2[b] = 0.0
-                dq2[b] = 0.0
-                xg[b] = xh[b] = yg[b] = yh[b] = zg[b] = zh[b] = 0.0
-                vxg[b] = vxh[b] = vyg[b] = vyh[b] = vzg[b] = vzh[b] = 0.0
-            for n in range(max(m, 1), nmax + 1):
-                gv = g[n, m]
-                hv = h[n, m]
-                g1 = (n + 1) * gv
-                h1 = (n + 1) * hv
-                a1 = k1[n, m]
-                a2 = k2[n, m]
-                step = n > m
-                if n <= sv:
-                    gr = g_rate[n, m]
-                    hr = h_rate[n, m]
-                    g1r = (n + 1) * gr
-                    h1r = (n + 1) * hr
-                    for b in range(w):
-                        if step:
-                            qn = a1 * cr[b] * q1[b] - a2 * r2[b] * q2[b]
-                            dqn = a1 * (cr[b] * dq1[b] - sr[b] * q1[b]) - a2 * r2[b] * dq2[b]
-                            q2[b] = q1[b]
-                            dq2[b] = dq1[b]
-                            q1[b] = qn
-                            dq1[b] = dqn
-                        q = q1[b]
-                        dq = dq1[b]
-                        xg[b] += gv * dq
-                        xh[b] += hv * dq
-                        yg[b] += gv * q
-                        yh[b] += hv * q
-                        zg[b] += g1 * q
-                        zh[b] += h1 * q
-                        vxg[b] += gr * dq
-                        vxh[b] += hr * dq
-                        vyg[b] += gr * q
-                        vyh[b] += hr * q
-                        vzg[b] += g1r * q
-                        vzh[b] += h1r * q
-                else:
-                    for b in range(w):
-                        if step:
-                            qn = a1 * cr[b] * q1[b] - a2 * r2[b] * q2[b]
-                            dqn = a1 * (cr[b] * dq1[b] - sr[b] * q1[b]) - a2 * r2[b] * dq2[b]
-                            q2[b] = q1[b]
-                            dq2[b] = dq1[b]
-                            q1[b] = qn
-                            dq1[b] = dqn
-                        q = q1[b]
-                        dq = dq1[b]
-                        xg[b] += gv * dq
-                        xh[b] += hv * dq
-                        yg[b] += gv * q
-                        yh[b] += hv * q
-                        zg[b] += g1 * q
-                        zh[b] += h1 * q
-            fm = float(m)
-            for b in range(w):
-                c = cm[b]
-                s = sm[b]
-                xs[b] += xg[b] * c + xh[b] * s
-                ys[b] += fm * (yg[b] * s - yh[b] * c)
-                zs[b] -= zg[b] * c + zh[b] * s
-                dxs[b] += vxg[b] * c + vxh[b] * s
-                dys[b] += fm * (vyg[b] * s - vyh[b] * c)
-                dzs[b] -= vzg[b] * c + vzh[b] * s
         for b in range(valid):
             i = start + b
             out[0, i] = xs[b] * cos_psi[b] - zs[b] * sin_psi[b]
