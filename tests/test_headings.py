@@ -440,3 +440,9 @@ def test_polar_grid_scale_at_the_warning_limit():
     grid = parse_grid("polar")
     k = grid._proj.get_factors(0.0, 30.0).meridional_scale
     assert k == pytest.approx(2.0 / (1.0 + math.sin(math.radians(30.0))), rel=0.01)
+
+
+def test_convergence_deg_with_auto_grid():
+    # Snyder 1987 polar stereographic: C = +(lon - 0) on the north grid, -(lon - 0) on the south grid
+    assert convergence_deg(75.0, 30.0, "auto") == pytest.approx(30.0, abs=1e-9)
+    assert convergence_deg(-75.0, 30.0, "auto") == pytest.approx(-30.0, abs=1e-9)

@@ -314,3 +314,25 @@ def test_compact_longitude_round_trip(lon, seconds, decimals, letter_first):
     unit = 3600.0 if seconds else 60.0
     back = parse_coordinate(text, "lon")
     assert abs(back - lon) <= 0.5 / unit / 10**decimals + 1e-12
+
+
+@given(st.floats(-999.0, 30000.0, allow_nan=False), st.sampled_from(["m", "ft", "km"]))
+def test_height_with_unit_property(value, unit):
+    # unit factors: 1 m = 1e-3 km; 1 ft = 0.3048 m exactly (1959 international foot)
+    factor = {"m": 1e-3, "ft": 0.3048e-3, "km": 1.0}[unit]
+    km = value * factor
+    if not -1.0 <= km <= ROUTE_HEIGHT_MAX_KM:
+        return
+    assert parse_height_km(f"{value!r} {unit}", default_unit=None, max_km=ROUTE_HEIGHT_MAX_KM) == pytest.approx(km, rel=1e-12, abs=1e-15)
+    assert parse_height_km(value, default_unit=unit, max_km=ROUTE_HEIGHT_MAX_KM) == pytest.approx(km, rel=1e-12, abs=1e-15)
+
+
+@given(st.integers(0, 650), st.floats(-50.0, 50.0))
+def test_flight_level_height_property(level, deviation):
+    # hypsometric equation: a warmer column puts the same pressure surface higher (ICAO Doc 7488 / hydrostatics);
+    # with no deviation the height is the geopotential-to-geometric conversion of level x 100 ft
+    h = parse_height_km(f"FL{level:03d} ISA{deviation:+.1f}")
+    h0 = parse_height_km(f"FL{level:03d} ISA+0")
+    geo = level * 100 * 0.3048
+    assert h0 == pytest.approx(6356766.0 * geo / (6356766.0 - geo) / 1000.0, abs=1e-9)
+    assert (h - h0) * deviation >= -1e-12
