@@ -123,3 +123,17 @@ def test_variation_at_alignment_against_ppigrf():
         day = dt.date.fromisoformat(row.alignment_date)
         reference = _ppigrf_variation(row.lat, row.lon, [day], row.alt_km)[0]
         assert row.variation_at_alignment_deg == pytest.approx(reference, abs=3e-3)
+
+
+@pytest.mark.parametrize("lons, lats", [([179.5, -179.0, 178.0], [64.0, 66.0, 65.0]),  # across the antimeridian
+                                         ([140.0, 150.0, 160.0], [-70.0, -68.0, -75.0]),  # south polar cap
+                                         ([-10.0, 30.0, 100.0], [-30.0, 10.0, 45.0])])  # a wide region
+def test_navaid_map_draws_every_station(lons, lats):
+    # Every station is one dot on the map (common practice: nothing silently dropped off the chart).
+    from headingref.plots.navaids import navaid_map_figure
+
+    stations = pd.DataFrame({"ident": ["XA1", "XA2", "XA3"], "lat": lats, "lon": lons, "station_declination_deg": [0.0] * 3})
+    fig = navaid_map_figure(check_navaids(stations, DATE, horizon_years=1))
+    ax = fig.axes[0]
+    dots = [c for c in ax.collections if c.get_array() is not None and len(c.get_offsets()) == 3]
+    assert len(dots) == 1 and np.isfinite(np.asarray(dots[0].get_offsets())).all()
