@@ -14,23 +14,20 @@ Linux /dev/full (every write fails with ENOSPC).
 
 from __future__ import annotations
 
-import contextlib
-import io as _io
 import os
 import signal
 import subprocess
 import sys
 import textwrap
 import time
-import warnings
 from pathlib import Path
 
 import numpy as np
 import pandas as pd
 import pytest
+from test_cli import error_line, run  # the CLI run in-process, stdout and stderr captured
 
 from headingref import io as hio
-from headingref.cli import main
 from headingref.errors import InputError
 
 DATA = Path(__file__).parent / "data"
@@ -40,27 +37,6 @@ SWING = DEMO / "swing_readings.csv"
 ROUTE = DATA / "route_arctic.csv"
 RUNWAYS = DATA / "runways_demo.csv"
 HAS_DEV_FULL = os.path.exists("/dev/full")
-
-
-def run(argv) -> tuple[int, str, str]:
-    """headingref.cli.main in-process; (status, stdout, stderr)."""
-    out, err = _io.StringIO(), _io.StringIO()
-    with contextlib.redirect_stdout(out), contextlib.redirect_stderr(err), warnings.catch_warnings():
-        try:
-            code = main([str(a) for a in argv])
-        except SystemExit as exc:
-            code = exc.code if isinstance(exc.code, int) else 2
-    return code, out.getvalue(), err.getvalue()
-
-
-def one_error_line(code: int, err: str, command: str) -> str:
-    """The one error line of a refused run (headingref warnings before it allowed)."""
-    assert code == 2, f"status {code}: {err}"
-    assert "Traceback" not in err, err
-    lines = [x for x in err.splitlines() if x.strip() and not x.startswith("headingref: warning:")]
-    assert len(lines) == 1, f"expected one error line, got {lines}"
-    assert lines[0].startswith(f"headingref {command}: error: "), lines[0]
-    return lines[0]
 
 
 def leftovers(folder: Path) -> list[str]:
@@ -101,7 +77,7 @@ def test_a_target_that_is_a_symbolic_link_is_refused(tmp_path):
     victim.write_text("precious\n")
     (tmp_path / "out.csv").symlink_to(victim)
     code, _, err = run(["field", "--lat", "60", "--lon", "10", "--date", DATE, "--output", tmp_path / "out.csv"])
-    line = one_error_line(code, err, "field")
+    line = error_line(code, err, "field")
     assert "symbolic link" in line and "out.csv" in line
     assert victim.read_text() == "precious\n" and (tmp_path / "out.csv").is_symlink()
     assert leftovers(tmp_path) == []
@@ -145,7 +121,7 @@ def test_a_failing_last_output_leaves_the_earlier_ones_unchanged(tmp_path, argv,
     for name in files[1:]:
         (tmp_path / name).write_text("old\n")
     code, _, err = run([str(a).replace("{d}", str(tmp_path)) for a in argv])
-    line = one_error_line(code, err, argv[0])
+    line = error_line(code, err, argv[0])
     assert "/dev/full" in line and "No space left on device" in line
     assert not (tmp_path / files[0]).exists(), "a new output appeared although the run failed"
     for name in files[1:]:
@@ -285,7 +261,7 @@ def test_an_empty_option_value_is_refused(tmp_path, monkeypatch, argv, option):
     # '--date ""' used to mean today and '--out ""' the current folder: silently not what was typed.
     monkeypatch.chdir(tmp_path)
     code, _, err = run(argv)
-    line = one_error_line(code, err, argv[0])
+    line = error_line(code, err, argv[0])
     assert f"{option} is empty" in line
     assert list(tmp_path.iterdir()) == []
 
@@ -325,7 +301,7 @@ def test_lenient_numbers_in_options_are_refused(tmp_path, monkeypatch, argv):
     # '--max-deviation nan' switched the plausibility check off (every comparison with NaN is false).
     monkeypatch.chdir(tmp_path)
     code, _, err = run(argv)
-    one_error_line(code, err, argv[0])
+    error_line(code, err, argv[0])
     assert list(tmp_path.iterdir()) == []
 
 
@@ -333,7 +309,7 @@ def test_lenient_numbers_in_options_are_refused(tmp_path, monkeypatch, argv):
 def test_lenient_numbers_in_a_route_csv_name_the_line(tmp_path, cell):
     (tmp_path / "r.csv").write_text(f"name,lat,lon\nA,69.0,18.0\nB,{cell},20.0\n", encoding="utf-8")
     code, _, err = run(["route", "--input", tmp_path / "r.csv", "--date", DATE, "--output", tmp_path / "legs.csv"])
-    line = one_error_line(code, err, "route")
+    line = error_line(code, err, "route")
     assert "line 3" in line
     assert not (tmp_path / "legs.csv").exists()
 
@@ -390,7 +366,7 @@ def test_control_characters_in_names_do_not_reach_the_terminal(tmp_path):
 @pytest.mark.skipif(not HAS_DEV_FULL, reason="needs Linux /dev/full")
 def test_a_figure_to_dev_full_is_an_error_not_a_success():
     code, _, err = run(["swing", "--input", SWING, "--plot", "/dev/full"])
-    line = one_error_line(code, err, "swing")
+    line = error_line(code, err, "swing")
     assert "No space left on device" in line
 
 
