@@ -202,6 +202,29 @@ def test_sigterm_mid_write_leaves_no_temporary_file(tmp_path):
     assert list(tmp_path.iterdir()) == []
 
 
+def test_sigterm_during_a_report_removes_its_staging_folder(tmp_path):
+    # The report is built in a '.headingref-report-*' folder beside --out and switched into place at
+    # the end; SIGTERM while it is built must remove that folder as Ctrl-C does (same mechanism).
+    proc = subprocess.Popen(
+        [sys.executable, "-m", "headingref.cli", "report", str(DEMO / "scenario.toml"), "--out", str(tmp_path / "rep"),
+         "--no-progress"],
+        stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True, cwd=tmp_path,
+    )
+    try:
+        deadline = time.monotonic() + 120
+        while not list(tmp_path.glob(".headingref-report-*")) and proc.poll() is None and time.monotonic() < deadline:
+            time.sleep(0.02)
+        assert list(tmp_path.glob(".headingref-report-*")), "no staging folder seen"
+        proc.send_signal(signal.SIGTERM)
+        _, err = proc.communicate(timeout=60)
+    finally:
+        if proc.poll() is None:
+            proc.kill()
+    assert proc.returncode == 143, err
+    assert "Traceback" not in err
+    assert list(tmp_path.iterdir()) == [], "a staging folder or a partial report was left"
+
+
 # --------------------------------------------------------------------------- 4. names drawn as math
 
 
