@@ -14,12 +14,15 @@ Linux /dev/full (every write fails with ENOSPC).
 
 from __future__ import annotations
 
+import contextlib
+import io as _io
 import os
 import signal
 import subprocess
 import sys
 import textwrap
 import time
+import warnings
 from pathlib import Path
 
 import numpy as np
@@ -28,6 +31,7 @@ import pytest
 from test_cli import error_line, run  # the CLI run in-process, stdout and stderr captured
 
 from headingref import io as hio
+from headingref.cli import main
 from headingref.errors import InputError
 
 DATA = Path(__file__).parent / "data"
@@ -374,13 +378,26 @@ def test_spreadsheet_safe_leaves_numbers_and_plain_number_text():
     assert frame["t"].tolist() == ["-12.5", "=1+1"]  # the caller's frame is not changed
 
 
+class Terminal(_io.StringIO):
+    """A captured stream that says it is a terminal (as sys.stdout does on a console)."""
+
+    def isatty(self) -> bool:
+        return True
+
+
 def test_control_characters_in_names_do_not_reach_the_terminal(tmp_path):
-    # ECMA-48: ESC [ 2 J clears the screen; ESC ] 0 ; ... BEL retitles the window.
+    # ECMA-48: ESC [ 2 J clears the screen; ESC ] 0 ; ... BEL retitles the window. On a terminal they
+    # are dropped; redirected to a file the output is data and kept as it is.
     route_csv = write_route(tmp_path / "r.csv", ["A\x1b[2J", "B\x1b]0;owned\x07", "C"])
-    code, out, err = run(["route", "--input", route_csv, "--date", DATE, "--spacing", "100", "--output", tmp_path / "legs.csv"])
-    assert code == 0, err
-    assert "\x1b" not in out and "\x07" not in out and "\x1b" not in err
-    assert "A[2J" in out  # the printable rest of the name is still shown
+    argv = ["route", "--input", route_csv, "--date", DATE, "--spacing", "100", "--output", tmp_path / "legs.csv"]
+    out, err = Terminal(), Terminal()
+    with contextlib.redirect_stdout(out), contextlib.redirect_stderr(err), warnings.catch_warnings():
+        code = main([str(a) for a in argv])
+    assert code == 0, err.getvalue()
+    assert "\x1b" not in out.getvalue() and "\x07" not in out.getvalue() and "\x1b" not in err.getvalue()
+    assert "A[2J" in out.getvalue()  # the printable rest of the name is still shown
+    code, piped, _ = run(argv)  # not a terminal (a StringIO, as a file or pipe)
+    assert code == 0 and "A\x1b[2J" in piped
 
 
 # --------------------------------------------------------------------------- 11. full disks, deep TOML

@@ -51,7 +51,7 @@ def _show_warning(message, category, filename, lineno, file=None, line=None):
 
 def main(argv: list[str] | None = None) -> int:
     from ..io import one_line_reason
-    from .common import ConsoleText, Terminated, empty_option, sigterm_as_interrupt
+    from .common import Terminated, empty_option, for_console, sigterm_as_interrupt
 
     parser = build_parser()
     args = parser.parse_args(argv)
@@ -64,7 +64,7 @@ def main(argv: list[str] | None = None) -> int:
         return 2
     warnings.showwarning = _show_warning
     stdout, stderr = sys.stdout, sys.stderr
-    sys.stdout, sys.stderr = ConsoleText(stdout), ConsoleText(stderr)
+    sys.stdout, sys.stderr = for_console(stdout), for_console(stderr)
     try:
         with sigterm_as_interrupt():
             result = args.func(args)

@@ -129,9 +129,23 @@ def strip_controls(text: str) -> str:
 
     A name read from a user's file can hold an escape sequence that, echoed to a terminal, moves
     the cursor, rewrites earlier lines or retitles the window (OWASP, "Log Injection"; ECMA-48
-    defines the sequences). Everything the CLI prints passes through :class:`ConsoleText`.
+    defines the sequences). Everything the CLI prints to a terminal passes through
+    :class:`ConsoleText` (see :func:`for_console`).
     """
     return _CONTROL.sub("", text)
+
+
+def for_console(stream):
+    """``stream`` wrapped in :class:`ConsoleText` if it is a terminal, else ``stream`` itself.
+
+    Only a terminal acts on control sequences; output redirected to a file or a pipe is data and is
+    written as it is (and at full speed: ``field --csv`` of a million rows is not scanned).
+    """
+    try:
+        terminal = stream.isatty()
+    except (AttributeError, OSError, ValueError):
+        terminal = False
+    return ConsoleText(stream) if terminal else stream
 
 
 class ConsoleText:
