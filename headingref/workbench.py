@@ -35,7 +35,7 @@ import pandas as pd
 
 from .units import format_dm, timestamp_from_decimal_year
 
-__all__ = ["explorer", "render", "styled", "status_line", "date_picker"]
+__all__ = ["explorer", "render", "styled", "status_line", "date_picker", "slider", "choice", "with_warnings", "show"]
 
 _FIRST_COLUMNS = ("name", "from", "to", "airport", "runway", "ident", "zone", "verdict", "exceeds", "declination_flag",
                   "blackout_stretches_nm", "caution_stretches_nm")
@@ -64,6 +64,18 @@ def render(item: Any) -> dict[str, Any]:
     if isinstance(item, Mapping) and item and all(isinstance(k, str) and "/" in k for k in item):
         return dict(item)  # already a mime bundle (e.g. status_line)
     return {"text/plain": str(item)}
+
+
+def show(*items: Any) -> None:
+    """Display each item (Figure, table, Styler, text or a status line) as :func:`render` does.
+
+    Figures go out as PNG from the Figure object itself, never through pyplot's current figure.
+    """
+    from IPython.display import display
+
+    for item in items:
+        for output in _as_outputs(item):
+            display(output["data"], raw=True)
 
 
 def _as_outputs(items: Any) -> tuple[dict, ...]:
@@ -123,6 +135,52 @@ def date_picker(value: Any, description: str):
         value = timestamp_from_decimal_year(float(value))
     day = pd.Timestamp(value).date()
     return widgets.DatePicker(value=day, description=description, style={"description_width": "initial"})
+
+
+def slider(value: float, low: float, high: float, step: float, description: str):
+    """A FloatSlider labelled in words whose starting value is on its step (no snap on first render).
+
+    ``value`` is clipped to ``[low, high]`` and rounded to the nearest ``low + k * step``: a
+    browser snaps an off-step value and sends the change back, which redraws while later cells run.
+    """
+    import ipywidgets as widgets
+
+    steps = round((min(max(float(value), low), high) - low) / step)
+    start = min(low + steps * step, high)
+    return widgets.FloatSlider(value=round(start, 10), min=low, max=high, step=step, description=description,
+                               style={"description_width": "initial"}, continuous_update=False)
+
+
+def choice(options: Iterable[Any], value: Any, description: str):
+    """A Dropdown labelled in words; ``options`` may be values or ``(label, value)`` pairs."""
+    import ipywidgets as widgets
+
+    return widgets.Dropdown(options=list(options), value=value, description=description,
+                            style={"description_width": "initial"})
+
+
+def with_warnings(call: Callable[..., Any], *args: Any, **kwargs: Any) -> tuple[Any, list[dict[str, str]]]:
+    """``call(*args, **kwargs)`` with headingref's warnings caught: ``(result, status lines)``.
+
+    Data-quality and extrapolation warnings become highlighted :func:`status_line` items (shown
+    above a table) instead of raw stderr blocks; other libraries' warnings pass through.
+    """
+    import warnings
+
+    from .errors import HeadingrefWarning
+
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", HeadingrefWarning)
+        result = call(*args, **kwargs)
+    lines = []
+    for record in caught:
+        if issubclass(record.category, HeadingrefWarning):
+            text = str(record.message)
+            if text not in {line["text/plain"].split(": ", 1)[1] for line in lines}:
+                lines.append(status_line(text))
+        else:
+            warnings.warn_explicit(record.message, record.category, record.filename, record.lineno)
+    return result, lines
 
 
 def status_line(text: str, level: str = "warning") -> dict[str, str]:

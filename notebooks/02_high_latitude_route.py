@@ -25,9 +25,21 @@
 #
 # *Planning and engineering aid only, not approved for navigation. Official publications and charts, the aircraft's approved data, the compass base's own survey and licensed engineering and survey practice govern. The field model omits local crustal anomalies.*
 
+# %% [markdown]
+# ## Your inputs
+# A scenario file (the demo is invented: data/demo/README.md), the route to study (a waypoint CSV
+# `name, lat, lon[, alt]`, or a GPX, KML or GeoJSON file; `None` takes the scenario's first route plan) and the
+# date (`None` takes the scenario's analysis date).
+
 # %%
-import ipywidgets as widgets
-import matplotlib.pyplot as plt
+from headingref.notices import DATA_DIR
+
+SCENARIO = DATA_DIR / "demo" / "scenario.toml"
+ROUTE_FILE = None  # e.g. "my_route.csv" or "my_route.gpx"
+DATE = None  # e.g. "2027-06-01"
+
+# %%
+# %matplotlib inline
 import pandas as pd
 
 import headingref
@@ -40,38 +52,49 @@ from headingref.headings import (
     true_to_grid,
     true_to_magnetic,
 )
-from headingref.notices import DATA_DIR
 from headingref.plots.route import plot_route_map, plot_route_profile
 from headingref.routes import read_waypoints, route_geojson
 from headingref.scenario import load_scenario
+from headingref.workbench import choice, date_picker, explorer, show, status_line, styled, with_warnings
 
-scenario = load_scenario(DATA_DIR / "demo" / "scenario.toml")  # the invented demo scenario (data/demo/README.md)
-DATE = scenario.analysis_date
-SETTINGS = scenario.routes  # spacing_nm, path, grid, alt (km) and the route plans
-OPTIONS = dict(alt_km=SETTINGS["alt"], grid=SETTINGS["grid"], spacing_nm=SETTINGS["spacing_nm"], path=SETTINGS["path"])
-PLANS = {plan["name"]: plan["file"] for plan in SETTINGS["plan"]}
-ROUTE = list(PLANS)[0]  # TM101, across the polar cap
-list(PLANS)
+scenario = load_scenario(SCENARIO)
+DATE = DATE or scenario.analysis_date
+PLANS = {plan["name"]: plan for plan in scenario.routes["plan"]}
+if ROUTE_FILE is not None:
+    PLANS = {str(ROUTE_FILE): {"name": str(ROUTE_FILE), "file": ROUTE_FILE}, **PLANS}
+ROUTE = next(iter(PLANS))
+OPTIONS = scenario.route_options(PLANS[ROUTE])
+print(f"{scenario.title} ({scenario.operator}); date {DATE}; route {ROUTE}")
 
 # %% [markdown]
 # ## The waypoints
 # Waypoints without an altitude fly at the scenario's default (FL350, here in km above the ellipsoid).
 
 # %%
-read_waypoints(PLANS[ROUTE], alt_km=SETTINGS["alt"])
+styled(read_waypoints(PLANS[ROUTE]["file"], alt_km=OPTIONS["alt_km"]))
 
 # %% [markdown]
 # ## The legs
 # Courses are at the start of each leg (the `_mid` and `_end` columns give them half-way and at the end: on a
-# geodesic near the pole they turn a lot). The stretches are distances along the leg (NM) where H is below the
-# caution / blackout threshold: there a magnetic heading reference is degraded or unusable.
+# geodesic near the pole they turn a lot). The stretches (first columns) are distances along the leg (NM) where
+# H is below the caution / blackout threshold: there a magnetic heading reference is degraded or unusable.
 
 # %%
-result = headingref.route(PLANS[ROUTE], DATE, **OPTIONS)
-LEG_COLUMNS = ["from", "to", "distance_nm", "true_course_deg", "variation_deg", "magnetic_course_deg",
-               "grid_course_deg", "grivation_deg", "min_horizontal_nT", "max_declination_uncertainty_deg", "zone",
-               "caution_stretches_nm", "blackout_stretches_nm"]
-result.legs[LEG_COLUMNS].round(1)
+LEG_COLUMNS = ["from", "to", "zone", "blackout_stretches_nm", "caution_stretches_nm", "distance_nm",
+               "true_course_deg", "variation_deg", "magnetic_course_deg", "grid_course_deg", "grivation_deg",
+               "min_horizontal_nT", "max_declination_uncertainty_deg"]
+
+
+def legs_view(result):
+    """The legs as a readable table, led by a status line when a leg has no magnetic reference."""
+    weak = result.legs[result.legs.zone != "normal"]
+    items = [status_line(f"{len(weak)} of {len(result.legs)} legs cross a weak-field zone: magnetic heading "
+                         "reference degraded there")] if len(weak) else []
+    return items + [styled(result.legs[LEG_COLUMNS])]
+
+
+result, notes = with_warnings(headingref.route, PLANS[ROUTE]["file"], DATE, **OPTIONS)
+show(*notes, *legs_view(result))
 
 # %% [markdown]
 # ## Map and profile
@@ -79,10 +102,7 @@ result.legs[LEG_COLUMNS].round(1)
 # variation, H and the declination uncertainty against distance along the route.
 
 # %%
-plot_route_map(result)
-plt.show()
-plot_route_profile(result)
-plt.show()
+show(plot_route_map(result), plot_route_profile(result))
 
 # %% [markdown]
 # ## One course in every reference
@@ -93,7 +113,7 @@ plt.show()
 first = result.legs.iloc[0]
 lat, lon, true_course = first.from_lat_deg, first.from_lon_deg, first.true_course_deg
 variation = model_variation_deg(lat, lon, DATE)
-convergence = convergence_deg(lat, lon, SETTINGS["grid"])
+convergence = convergence_deg(lat, lon, result.legs.attrs.get("grid", "polar"))
 print(f"true {format_heading(true_course, reference='T')}, variation {format_variation(variation)}, "
       f"magnetic {format_heading(true_to_magnetic(true_course, lat=lat, lon=lon, date=DATE), reference='M')}")
 print(f"convergence {convergence:+.1f}°, grid {format_heading(true_to_grid(true_course, convergence), reference='G')}, "
@@ -102,39 +122,36 @@ print(f"convergence {convergence:+.1f}°, grid {format_heading(true_to_grid(true
 # %% [markdown]
 # ## Across the antimeridian, and geodesic against rhumb line
 # TM205 crosses 180° over the Bering Strait; the map and the courses carry on without a break. Below it, the
-# polar route flown as rhumb lines instead of geodesics: longer, with one constant true course per leg.
+# first route flown as rhumb lines instead of geodesics: longer, with one constant true course per leg.
 
 # %%
-across = headingref.route(PLANS[list(PLANS)[1]], DATE, **OPTIONS)
-plot_route_map(across)
-plt.show()
-across.legs[LEG_COLUMNS].round(1)
+ACROSS = next((name for name in PLANS if "antimeridian" in name), list(PLANS)[-1])
+across, notes = with_warnings(headingref.route, PLANS[ACROSS]["file"], DATE, **scenario.route_options(PLANS[ACROSS]))
+show(plot_route_map(across), *notes, *legs_view(across))
 
 # %%
-rhumb = headingref.route(PLANS[ROUTE], DATE, **{**OPTIONS, "path": "rhumb"})
-pd.DataFrame({"from": result.legs["from"], "to": result.legs["to"],
-              "geodesic_nm": result.legs["distance_nm"], "rhumb_nm": rhumb.legs["distance_nm"],
-              "geodesic_true_course_deg": result.legs["true_course_deg"],
-              "rhumb_true_course_deg": rhumb.legs["true_course_deg"]}).round(1)
+rhumb = headingref.route(PLANS[ROUTE]["file"], DATE, **{**OPTIONS, "path": "rhumb"})
+styled(pd.DataFrame({"from": result.legs["from"], "to": result.legs["to"],
+                     "geodesic_nm": result.legs["distance_nm"], "rhumb_nm": rhumb.legs["distance_nm"],
+                     "geodesic_true_course_deg": result.legs["true_course_deg"],
+                     "rhumb_true_course_deg": rhumb.legs["true_course_deg"]}))
 
 
 # %% [markdown]
 # ## Explore
-# Pick a route, a date (decimal year), a grid and the path; the legs and the profile follow (ipywidgets).
+# Pick a route, a date, a grid and the path; the legs and the map follow.
 
 # %%
-def explore(route_name=ROUTE, year=scenario.decimal_year, grid=SETTINGS["grid"], path=SETTINGS["path"]):
-    explored = headingref.route(PLANS[route_name], year, alt_km=SETTINGS["alt"], grid=grid,
-                                spacing_nm=SETTINGS["spacing_nm"], path=path)
-    display(explored.legs[LEG_COLUMNS].round(1))
-    plot_route_profile(explored)
-    plt.show()
+def explore(route_name, day, grid, path):
+    options = {**scenario.route_options(PLANS[route_name]), "grid": grid, "path": path}
+    explored, found = with_warnings(headingref.route, PLANS[route_name]["file"], day, **options)
+    return found + legs_view(explored) + [plot_route_map(explored)]
 
 
-widgets.interact(explore, route_name=widgets.Dropdown(options=list(PLANS), value=ROUTE),
-                 year=widgets.FloatSlider(value=scenario.decimal_year, min=1990, max=2030, step=0.25),
-                 grid=widgets.Dropdown(options=["polar", "polar:-100", "lcc:65,80,-100", "utm:33"], value="polar"),
-                 path=widgets.Dropdown(options=["geodesic", "rhumb"], value=SETTINGS["path"]));
+explorer(explore, {"route_name": choice(list(PLANS), ROUTE, "route"),
+                   "day": date_picker(DATE, "date"),
+                   "grid": choice(["auto", "polar", "polar:-100", "lcc:65,80,-100", "utm:33"], "auto", "grid"),
+                   "path": choice(["geodesic", "rhumb"], OPTIONS["path"], "path")})
 
 # %% [markdown]
 # ## Samples and GeoJSON
@@ -142,7 +159,7 @@ widgets.interact(explore, route_name=widgets.Dropdown(options=list(PLANS), value
 # antimeridian (RFC 7946), ready for a GIS.
 
 # %%
-result.samples.head()
+styled(result.samples.head())
 
 # %%
 pd.json_normalize(route_geojson(across)["features"])

@@ -545,7 +545,7 @@ def map_axes(
         ``transformer.transform(lon_deg, lat_deg) -> (x_m, y_m)`` (always_xy);
         ``transformer.target_crs`` is the map's CRS.
     """
-    import matplotlib.pyplot as plt
+    from matplotlib.figure import Figure
 
     _check_kind(kind)
     crs = map_crs(kind, extent, central_lon=central_lon)
@@ -571,8 +571,8 @@ def map_axes(
         lat_range = (max(edge - 25.0, -89.0), 90.0) if kind == "north" else (-90.0, min(edge + 25.0, 89.0))
         lon_range = (-180.0, 180.0)
         label_lon = lon_0 + 180.0 + 15.0 if kind == "north" else lon_0 + 15.0
-    if ax is None:
-        _, ax = plt.subplots(figsize=figsize)
+    if ax is None:  # a Figure object, not pyplot's global state (safe from widget callbacks)
+        ax = Figure(figsize=figsize).add_subplot()
     ax.set_xlim(limits[0], limits[1])
     ax.set_ylim(limits[2], limits[3])
     ax.set_aspect("equal", adjustable="box")

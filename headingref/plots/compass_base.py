@@ -48,12 +48,13 @@ def plot_survey_history(upkeep: pd.DataFrame, surveys: Sequence[tuple[str, float
     -------
     matplotlib.figure.Figure
     """
-    import matplotlib.pyplot as plt
+    from matplotlib.figure import Figure
 
     surveys = pd.DataFrame(list(surveys), columns=["name", "year", "variation_deg"])
     if valid_to is None:
         valid_to = model.valid_to if model is not None and hasattr(model, "valid_to") else 2030.0
-    fig, axes = plt.subplots(1, len(upkeep), figsize=(5.5 * len(upkeep), 3.6), squeeze=False)
+    fig = Figure(figsize=(5.5 * len(upkeep), 3.6))
+    axes = fig.subplots(1, len(upkeep), squeeze=False)
     for ax, (_, base) in zip(axes[0], upkeep.iterrows(), strict=True):
         rows = surveys[surveys["name"] == base["name"]]
         start = float(rows["year"].min()) if len(rows) else swing_year

@@ -31,9 +31,10 @@ def plot_budget_profile(distance_nm: Sequence[float], cases: Mapping[str, Sequen
 
     ``cases`` maps a label (drawn as plain text) to the budget at each distance.
     """
-    import matplotlib.pyplot as plt
+    from matplotlib.figure import Figure
 
-    fig, ax = plt.subplots(figsize=figsize)
+    fig = Figure(figsize=figsize)
+    ax = fig.add_subplot()
     d = np.asarray(distance_nm, dtype=np.float64)
     for i, (label, values) in enumerate(cases.items()):
         ax.plot(d, np.asarray(values, dtype=np.float64), label=str(label), color=f"C{i}", alpha=1.0 if i == 0 else 0.8)

@@ -131,9 +131,13 @@ def plot_route_map(result: Any, ax=None, model: Any = None, mesh: int = 140, iso
     mesh : int
         Points per side of the field mesh over the map.
     """
-    import matplotlib.pyplot as plt
+    import warnings
+
+    from matplotlib.figure import Figure
+    from matplotlib.lines import Line2D
     from matplotlib.patches import Patch
 
+    from ..errors import UndefinedDeclinationWarning
     from ..field import BLACKOUT_NT, CAUTION_NT, field_arrays
     from ..headings import format_heading
     from .basemap import map_axes, plot_lonlat, scatter_lonlat
@@ -142,8 +146,8 @@ def plot_route_map(result: Any, ax=None, model: Any = None, mesh: int = 140, iso
     lat = samples.lat_deg.to_numpy()
     lon = samples.lon_deg.to_numpy()
     kind, extent, central_lon = choose_map(lat, lon)
-    if ax is None:
-        _, ax = plt.subplots(figsize=(8.0, 8.0))
+    if ax is None:  # a Figure object, not pyplot's global state (safe from widget callbacks)
+        ax = Figure(figsize=(8.0, 8.0)).add_subplot()
     ax, to_map = map_axes(kind, extent, ax=ax, central_lon=central_lon)
     year = float(legs.attrs.get("decimal_year", samples.attrs.get("decimal_year")))
 
@@ -158,7 +162,9 @@ def plot_route_map(result: Any, ax=None, model: Any = None, mesh: int = 140, iso
         ok = np.isfinite(glon) & np.isfinite(glat) & (np.abs(glat) <= 90.0)
         dec = np.full(glon.size, np.nan)
         h = np.full(glon.size, np.nan)
-        fld = field_arrays(glat[ok], glon[ok], year, 0.0, model=model, allow_extrapolation=True)
+        with warnings.catch_warnings():  # the mesh may touch the dip pole (H ~ 0); the map masks it, no warning
+            warnings.simplefilter("ignore", UndefinedDeclinationWarning)
+            fld = field_arrays(glat[ok], glon[ok], year, 0.0, model=model, allow_extrapolation=True)
         dec[ok] = fld["declination_deg"]
         h[ok] = fld["horizontal_nT"]
         dec, h = dec.reshape(gx.shape), h.reshape(gx.shape)
@@ -184,7 +190,7 @@ def plot_route_map(result: Any, ax=None, model: Any = None, mesh: int = 140, iso
             levels = np.arange(-180.0 + step, 180.0, step)
             cs = ax.contour(gx, gy, masked, levels=levels, colors="#6a3d9a", linewidths=0.7, zorder=1.8)
             ax.clabel(cs, fmt=_variation_label, fontsize=7, inline=True)
-            handles.append(plt.Line2D([], [], color="#6a3d9a", lw=0.7, label=f"isogonic lines every {step:g}° (west dashed)"))
+            handles.append(Line2D([], [], color="#6a3d9a", lw=0.7, label=f"isogonic lines every {step:g}° (west dashed)"))
 
     drawn = _evenly(len(lon), MAX_DRAWN_POINTS)  # a 10,000-waypoint route: draw what the figure can show
     plot_lonlat(ax, to_map, lon[drawn], lat[drawn], color=_ROUTE_COLOUR, linewidth=2.0, zorder=5, label="route")
@@ -197,7 +203,7 @@ def plot_route_map(result: Any, ax=None, model: Any = None, mesh: int = 140, iso
         x, y, name = wx[i], wy[i], names[i]
         ax.annotate(str(name), (x, y), xytext=(4, 4), textcoords="offset points", fontsize=8, zorder=7,
                     bbox={"boxstyle": "round,pad=0.15", "fc": "white", "ec": "none", "alpha": 0.8})
-    handles.insert(0, plt.Line2D([], [], color=_ROUTE_COLOUR, lw=2.0, label=f"route ({legs.attrs.get('path', 'geodesic')})"))
+    handles.insert(0, Line2D([], [], color=_ROUTE_COLOUR, lw=2.0, label=f"route ({legs.attrs.get('path', 'geodesic')})"))
     ax.legend(handles=handles, loc="lower left", fontsize=7, framealpha=0.85)
     total = float(legs.distance_nm.sum())
     first_course = format_heading(float(legs.true_course_deg.iloc[0]), reference="T")
@@ -212,14 +218,14 @@ def plot_route_map(result: Any, ax=None, model: Any = None, mesh: int = 140, iso
 
 def plot_route_profile(result: Any, fig=None):
     """Variation, H and declination uncertainty against distance along the route; returns the Figure."""
-    import matplotlib.pyplot as plt
+    from matplotlib.figure import Figure
 
     from ..field import BLACKOUT_NT, CAUTION_NT, NO_HEADING_DEG
 
     legs, samples = result.legs, result.samples
     dist = samples.distance_along_route_nm.to_numpy()
     if fig is None:
-        fig = plt.figure(figsize=(9.0, 7.5))
+        fig = Figure(figsize=(9.0, 7.5))
     axes = fig.subplots(3, 1, sharex=True)
     series = [
         ("variation_deg", "variation (°, E +)", "#6a3d9a"),

@@ -144,11 +144,12 @@ def plot_zone_map(ds, *, tracks=None, title: str | None = None, figsize: tuple[f
 
 def plot_pole_tracks(tracks, *, title: str | None = None, figsize: tuple[float, float] = (11.0, 5.8)):
     """North and south caps side by side with the dip and geomagnetic pole tracks."""
-    import matplotlib.pyplot as plt
+    from matplotlib.figure import Figure
 
     from .basemap import map_axes
 
-    fig, axes = plt.subplots(1, 2, figsize=figsize)
+    fig = Figure(figsize=figsize)
+    axes = fig.subplots(1, 2)
     for ax, hemisphere in zip(axes, ("north", "south"), strict=True):
         part = tracks[tracks.pole == hemisphere]
         cap_edge = CAPS[hemisphere].edge_lat_deg
