@@ -64,7 +64,7 @@ def _run_map(args, models) -> int:
 
     from ..compare import difference_grid
     from ..errors import InputError
-    from ..io import atomic_path
+    from ..netcdf import write_netcdf
     from ..units import decimal_year
 
     lat0, lat1, lon0, lon1 = _box(args.map)
@@ -77,8 +77,7 @@ def _run_map(args, models) -> int:
     when = decimal_year(args.date or _dt.datetime.now(_dt.UTC).date().isoformat())
     ds = difference_grid(lats, lons, when, models[0], models[1], allow_extrapolation=args.extrapolate)
     if args.netcdf:
-        with atomic_path(args.netcdf) as tmp:
-            ds.to_netcdf(tmp, engine="h5netcdf")
+        write_netcdf(args.netcdf, ds)  # time as a CF datetime (headingref.netcdf)
         print(f"wrote {args.netcdf}")
     if args.plot:
         from ..plots import save_figure

@@ -106,7 +106,8 @@ def save_plot(function_name: str, data, target: str) -> None:
 
 
 def run(args) -> int:
-    from ..io import all_or_nothing, atomic_path
+    from ..io import all_or_nothing
+    from ..netcdf import write_netcdf
     from ..notices import CAUTION
     from ..units import parse_height_km
     from ..zones import write_geojson, zone_areas, zone_change, zone_geojson, zones
@@ -145,8 +146,7 @@ def run(args) -> int:
             write_geojson(args.geojson, collection)
             print(f"wrote {args.geojson} ({len(collection['features'])} features)")
         if args.netcdf:
-            with atomic_path(args.netcdf) as tmp:
-                ds.to_netcdf(tmp, engine="h5netcdf")
+            write_netcdf(args.netcdf, ds)  # time as a CF datetime, decimal_year beside it
             print(f"wrote {args.netcdf}")
         if args.png:
             save_plot("plot_zone_map", ds, args.png)
