@@ -329,6 +329,7 @@ def _stream(places: _Places, model, extrapolate: bool, sinks, keep: bool):
 
 def run(args) -> int:
     import contextlib
+    import warnings
 
     import numpy as np
 
@@ -342,6 +343,9 @@ def run(args) -> int:
     check_outputs(files=[args.output], inputs=[args.input, args.model])
     places = _inputs(args)
     model = load_model(args.model)
+    with warnings.catch_warnings():  # dates checked before any output starts; the warning comes once, later
+        warnings.simplefilter("ignore")
+        model.check_dates(np.atleast_1d(np.asarray(places.years, dtype=np.float64)), args.extrapolate)
     n = len(places.lat)
     keep = n <= TABLE_ROWS and not args.csv
     with contextlib.ExitStack() as stack:
