@@ -199,7 +199,7 @@ def _umask() -> int:
     return mask
 
 
-def _target_kind(target: Path) -> str:
+def check_target(target: Path) -> str:
     """'file' (absent or regular: written through a temporary) or 'special' (written directly).
 
     Raises InputError for an unusable name, a missing folder, a folder, or a symbolic link.
@@ -271,7 +271,7 @@ def one_line_reason(exc: BaseException) -> str:
 def _atomic(target: str | os.PathLike) -> Iterator[tuple[Path, int | None]]:
     """The machinery of :func:`atomic_path`: yields (path to write, mkstemp's descriptor or None for a device)."""
     target = Path(target)
-    if _target_kind(target) == "special":
+    if check_target(target) == "special":
         try:
             yield target, None
         except OSError as exc:

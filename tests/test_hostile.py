@@ -87,6 +87,17 @@ def test_a_target_that_is_a_symbolic_link_is_refused(tmp_path):
     assert leftovers(tmp_path) == []
 
 
+def test_a_linked_figure_name_is_refused_before_any_output(tmp_path):
+    # runways writes its table, then its figure: the link is refused before either is written.
+    (tmp_path / "elsewhere.png").write_bytes(b"old")
+    (tmp_path / "rw.png").symlink_to(tmp_path / "elsewhere.png")
+    code, _, err = run(["runways", "--input", RUNWAYS, "--date", DATE, "--horizon", "1", "--output", tmp_path / "rw.csv",
+                        "--plot", tmp_path / "rw.png"])
+    assert "symbolic link" in error_line(code, err, "runways")
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["elsewhere.png", "rw.png"]
+    assert (tmp_path / "elsewhere.png").read_bytes() == b"old"
+
+
 def test_outputs_get_the_usual_permissions_not_mkstemps_private_ones(tmp_path):
     # mkstemp creates files 0600; an output should be like any new file: 0666 less the umask.
     old = os.umask(0o022)

@@ -85,6 +85,7 @@ def check_outputs(files=(), figures=(), inputs=()) -> None:
     from pathlib import Path
 
     from ..errors import InputError
+    from ..io import check_target
 
     given = [str(t) for t in (*files, *figures) if t is not None]
     seen: dict[str, str] = {}
@@ -104,6 +105,7 @@ def check_outputs(files=(), figures=(), inputs=()) -> None:
             raise InputError(f"cannot write {target!r}: {exc.strerror or exc}") from None
         if key in read:
             raise InputError(f"cannot write {target!r}: it is an input of this command; give another file name")
+        check_target(path)  # a symbolic link is refused before any work, as at writing time
         if key in seen:
             raise InputError(f"{target!r} is given for two outputs ({seen[key]!r} and {target!r}); give each its own name")
         seen[key] = target
