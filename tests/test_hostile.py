@@ -144,6 +144,26 @@ def test_a_failing_last_output_leaves_the_earlier_ones_unchanged(tmp_path, argv,
     assert leftovers(tmp_path) == []
 
 
+def test_a_folder_refusing_the_second_output_leaves_nothing(tmp_path, monkeypatch):
+    # As if the folder of --samples refused new files (EACCES; root ignores permissions, so the refusal
+    # is simulated where the temporary file is created): one line, and --output is not written either.
+    import tempfile
+
+    real_mkstemp = tempfile.mkstemp
+
+    def mkstemp(*args, **kwargs):
+        if str(kwargs.get("prefix", "")).startswith(".samples"):
+            raise PermissionError(13, "Permission denied")
+        return real_mkstemp(*args, **kwargs)
+
+    monkeypatch.setattr(tempfile, "mkstemp", mkstemp)
+    code, _, err = run(["route", "--input", ROUTE, "--date", DATE, "--spacing", "100", "--output", tmp_path / "legs.csv",
+                        "--samples", tmp_path / "samples.csv"])
+    line = error_line(code, err, "route")
+    assert "samples.csv" in line and "Permission denied" in line
+    assert list(tmp_path.iterdir()) == []
+
+
 def test_a_failed_rename_puts_the_earlier_outputs_back(tmp_path, monkeypatch):
     # The renames themselves can fail half-way (an immutable file, a folder made read-only): the
     # outputs already renamed are restored from their backups, so all change or none does.
