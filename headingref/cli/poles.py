@@ -41,13 +41,14 @@ def register(subparsers) -> None:
 
 def _years(text: str) -> tuple[float, float]:
     from ..errors import InputError
+    from ..units import parse_number
 
     parts = str(text).split(":")
     try:
         if len(parts) != 2:
             raise ValueError
-        return float(parts[0]), float(parts[1])
-    except ValueError:
+        return parse_number(parts[0], "--years"), parse_number(parts[1], "--years")  # plain ASCII decimal only
+    except (ValueError, InputError):
         raise InputError(f"--years {text!r} is not understood; give FIRST:LAST such as 1990:2030") from None
 
 
