@@ -84,12 +84,13 @@ def _budget_settings(args) -> dict:
 
 def parse_thresholds(text: str) -> list[float]:
     from ..errors import InputError
+    from ..units import parse_number
 
     values = []
     for part in str(text).split(","):
         try:
-            values.append(float(part))
-        except ValueError:
+            values.append(parse_number(part, "--thresholds"))  # plain ASCII decimal only (not 2_000)
+        except InputError:
             raise InputError(f"--thresholds {text!r}: {part.strip()!r} is not a number; give nT values such as 2000,6000") from None
     return values
 
