@@ -30,8 +30,15 @@ poles live in :mod:`headingref.poles`.
 
 Public API
 ----------
-:func:`zones`, :func:`zone_geojson`, :func:`zone_areas`, :func:`zone_change`,
-:func:`write_geojson`, :func:`zone_dtype`. The package exports ``zones`` at top level, so
+:func:`zones`, :func:`zone_geojson`, :func:`zone_kml`, :func:`zone_areas`, :func:`zone_change`,
+:func:`write_geojson`, :func:`zone_dtype`.
+
+KML (:func:`zone_kml`, OGC 07-147r2) is drawn by globe viewers that join vertices by great
+circles and take a polygon's inside to be its smaller side, so a lon/lat polygon closed round a
+pole or cut at the antimeridian is not read as meant. The KML zones are therefore traced again
+in longitude sectors of at most 90 degrees (each piece is far smaller than a hemisphere, with
+the pole as one vertex where a zone covers it), repeated points are dropped and edges are
+densified to 0.5 degree, so a great-circle edge follows the lon/lat line within metres. The package exports ``zones`` at top level, so
 ``headingref.zones`` is the function: reach the rest with ``from headingref.zones import ...``.
 
 >>> import headingref
@@ -64,6 +71,10 @@ from .units import decimal_year
 
 DEFAULT_THRESHOLDS_NT = (2000.0, 6000.0)  # WMM2020/WMM2025 technical reports: blackout, caution
 DEFAULT_LABELS = ("blackout", "caution")
+SEVERITY_COLOURS = ("#8c1c13", "#e4572e", "#f3a712", "#a8c686", "#669bbc")
+"""Zone colours, most severe band first (maps and KML)."""
+KML_SECTOR_DEG = 90.0
+KML_STEP_DEG = 0.5
 
 
 def _check_thresholds(thresholds: Any, labels: Any) -> tuple[tuple[float, ...], tuple[str, ...]]:
@@ -240,3 +251,82 @@ def zone_change(area: Any, date1: Any, date2: Any, **options) -> tuple[Any, pd.D
 def write_geojson(path: str | os.PathLike, collection: dict) -> None:
     """Write a FeatureCollection atomically (UTF-8 JSON)."""
     write_text(path, json.dumps(collection, separators=(",", ":")))
+
+
+def _clean_ring(ring: np.ndarray, step_deg: float = KML_STEP_DEG) -> np.ndarray:
+    """Drop repeated points (a pole row collapses to one vertex) and densify to ``step_deg`` in lon/lat."""
+    ring = np.asarray(ring, dtype=np.float64)
+    polar = np.abs(ring[:, 1]) >= 90.0
+    # a run of pole points (every longitude names the same pole) becomes its first point
+    same = np.all(np.diff(ring, axis=0) == 0.0, axis=1) | (polar[1:] & polar[:-1])
+    ring = ring[np.concatenate(([True], ~same))]
+    if len(ring) > 1 and abs(ring[0, 1]) >= 90.0 and abs(ring[-1, 1]) >= 90.0:
+        ring = ring[:-1]  # the ring ran round through the pole at its start
+    if not np.array_equal(ring[0], ring[-1]):
+        ring = np.vstack([ring, ring[:1]])
+    out = [ring[:1]]
+    for a, b in zip(ring[:-1], ring[1:], strict=True):
+        if abs(a[1]) >= 90.0 or abs(b[1]) >= 90.0:  # along a meridian to the pole: already a great circle
+            out.append(b[None, :])
+            continue
+        n = max(1, math.ceil(float(np.max(np.abs(b - a))) / step_deg))
+        t = np.arange(1, n + 1)[:, None] / n
+        out.append(a + t * (b - a))
+    return np.vstack(out)
+
+
+def _sector_pieces(one, sector_deg: float) -> list:
+    """The single-date grid cut into longitude sectors of at most ``sector_deg`` (sharing edge columns)."""
+    lons = np.asarray(one["lon"].values, dtype=np.float64)
+    span = float(lons[-1] - lons[0])
+    count = max(1, math.ceil(span / sector_deg - 1e-9))
+    cuts = np.unique(np.round(np.linspace(0, lons.size - 1, count + 1)).astype(int))
+    return [one.isel(lon=slice(a, b + 1)) for a, b in zip(cuts[:-1], cuts[1:], strict=True) if b > a]
+
+
+def zone_kml(ds, name: str | None = None, sector_deg: float = KML_SECTOR_DEG) -> str:
+    """The zones of a :func:`zones` Dataset as a KML 2.2 document (OGC 07-147r2), as text.
+
+    One Folder per date, one Placemark per zone (a ``MultiGeometry`` of Polygons), styled per
+    zone (the map colours, half-transparent), with the thresholds and the geodesic area
+    (:func:`zone_areas`) in its description. Pieces are traced per longitude sector of at most
+    ``sector_deg`` degrees, repeated points dropped, edges densified (see the module notes), so
+    a zone round a pole or across the antimeridian draws as meant on a globe.
+    """
+    from .kml import add_style, coordinates_text, kml_colour, new_document, sub, to_text
+
+    if not 0.0 < float(sector_deg) <= 90.0:
+        raise InputError(f"sector_deg {sector_deg!r} must be above 0 and at most 90 degrees")
+    thresholds = ", ".join(f"{t:g}" for t in ds.attrs.get("thresholds_nT", DEFAULT_THRESHOLDS_NT))
+    title = name or f"weak horizontal field zones ({ds.attrs.get('model', 'IGRF-14')}, {ds.attrs.get('alt_km', 0.0):g} km)"
+    root, doc = new_document(title, f"H thresholds {thresholds} nT; areas geodesic on WGS84. Planning aid only: "
+                                    "official publications and charts govern.")
+    bands = _bands(ds)
+    for i in range(len(bands)):
+        colour = SEVERITY_COLOURS[min(i, len(SEVERITY_COLOURS) - 1)]
+        add_style(doc, f"zone{i}", line=(kml_colour(colour), 1.5), poly=kml_colour(colour, 0.45))
+    for one in _by_date(ds):
+        year = float(one["time"].values)
+        folder = sub(doc, "Folder")
+        sub(folder, "name", date_label(year))
+        pieces = _sector_pieces(one, float(sector_deg))
+        for i, (label, lo, hi) in enumerate(bands):
+            polygons = [rings for piece in pieces for rings in threshold_polygons(piece, "horizontal_nT", lo, hi)]
+            if not polygons:
+                continue
+            mark = sub(folder, "Placemark")
+            sub(mark, "name", f"{label} {date_label(year)}")
+            upper = f"below {hi:g} nT" if lo <= 0 else f"{max(lo, 0.0):g} to {hi:g} nT"
+            sub(mark, "description", f"H {upper}; area {polygons_area_km2(polygons):,.0f} km2")
+            sub(mark, "styleUrl", f"#zone{i}")
+            multi = sub(mark, "MultiGeometry")
+            for rings in polygons:
+                polygon = sub(multi, "Polygon")
+                sub(polygon, "tessellate", "1")
+                for k, ring in enumerate(rings):
+                    ring = _clean_ring(ring)
+                    if len(ring) < 4:
+                        continue
+                    boundary = sub(polygon, "outerBoundaryIs" if k == 0 else "innerBoundaryIs")
+                    sub(sub(boundary, "LinearRing"), "coordinates", coordinates_text(ring[:, 0], ring[:, 1]))
+    return to_text(root)

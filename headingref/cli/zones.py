@@ -6,7 +6,7 @@ import sys
 
 EXAMPLES = """\
   headingref zones --cap north --date 2026-12-02
-  headingref zones --cap south --date 2026-12-02 --thresholds 2000,6000 --geojson south.geojson --png south.png
+  headingref zones --cap south --date 2026-12-02 --thresholds 2000,6000 --geojson south.geojson --kml south.kml --png south.png
   headingref zones --cap north --date 2015-01-01 --date2 2026-12-02 --geojson moved.geojson --png moved.png
   headingref zones --region 60,85,150,-120 --date 2027.0 --resolution 0.25 --netcdf region.nc
   headingref zones --region=-75,-55,100,170 --date 2026-12-02 --thresholds 3000,8000
@@ -44,6 +44,8 @@ def register(subparsers) -> None:
     parser.add_argument("--resolution", type=float, default=0.5, metavar="DEG", help="grid spacing in degrees (default 0.5)")
     parser.add_argument("--alt", default="0", help="height above the WGS84 ellipsoid: km, or 35000 ft, FL350 (default 0)")
     parser.add_argument("--geojson", metavar="FILE", help="zone boundaries as GeoJSON polygons")
+    parser.add_argument("--kml", metavar="FILE", help="zone polygons as KML 2.2 for globe viewers (cut into pieces "
+                        "of at most 90 degrees of longitude, safe across the antimeridian and round the poles)")
     parser.add_argument("--png", metavar="FILE", help="map of the zones (and of the second date's boundaries)")
     parser.add_argument("--netcdf", metavar="FILE", help="the grid (H, uncertainty, inclination, zone codes) as netCDF")
     budget = parser.add_argument_group(
@@ -107,14 +109,14 @@ def save_plot(function_name: str, data, target: str) -> None:
 
 
 def run(args) -> int:
-    from ..io import all_or_nothing
+    from ..io import all_or_nothing, write_text
     from ..netcdf import write_netcdf
     from ..notices import CAUTION
     from ..units import parse_height_km
-    from ..zones import write_geojson, zone_areas, zone_change, zone_geojson, zones
+    from ..zones import write_geojson, zone_areas, zone_change, zone_geojson, zone_kml, zones
     from .common import check_outputs
 
-    check_outputs(files=[args.geojson, args.netcdf], figures=[args.png, args.budget_png], inputs=[args.model])
+    check_outputs(files=[args.geojson, args.kml, args.netcdf], figures=[args.png, args.budget_png], inputs=[args.model])
     area = args.cap or args.region
     if args.budget_png:  # check the budget options before anything is computed or written
         _budget_options_checked(args)
@@ -146,6 +148,9 @@ def run(args) -> int:
         if args.geojson:
             write_geojson(args.geojson, collection)
             print(f"wrote {args.geojson} ({len(collection['features'])} features)")
+        if args.kml:
+            write_text(args.kml, zone_kml(ds))
+            print(f"wrote {args.kml}")
         if args.netcdf:
             write_netcdf(args.netcdf, ds)  # time as a CF datetime, decimal_year beside it
             print(f"wrote {args.netcdf}")

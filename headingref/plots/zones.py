@@ -24,12 +24,12 @@ from typing import Any
 import numpy as np
 
 from ..geogrid import CAPS
+from ..zones import SEVERITY_COLOURS as _SEVERITY_COLOURS  # most severe first; the KML uses them too
 from . import plain_text
 from .route import save_figure
 
 __all__ = ["plot_zone_map", "plot_pole_tracks", "plot_error_map", "save_figure"]
 
-_SEVERITY_COLOURS = ("#8c1c13", "#e4572e", "#f3a712", "#a8c686", "#669bbc")  # most severe first
 _TRACK_STYLE = {"dip": {"color": "#3a0ca3", "marker": "o"}, "geomagnetic": {"color": "#2a9d8f", "marker": "s"}}
 
 
