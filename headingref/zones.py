@@ -38,8 +38,11 @@ circles and take a polygon's inside to be its smaller side, so a lon/lat polygon
 pole or cut at the antimeridian is not read as meant. The KML zones are therefore traced again
 in longitude sectors of at most 90 degrees (each piece is far smaller than a hemisphere, with
 the pole as one vertex where a zone covers it), repeated points are dropped and edges are
-densified to 0.5 degree, so a great-circle edge follows the lon/lat line within metres. The package exports ``zones`` at top level, so
-``headingref.zones`` is the function: reach the rest with ``from headingref.zones import ...``.
+densified to 0.5 degree, so a great-circle edge follows the lon/lat line within about 30 m
+(the bulge of a great circle over a parallel, about ``R * dlon^2 / 8 * sin(lat) * cos(lat)``).
+
+The package exports ``zones`` at top level, so ``headingref.zones`` is the function: reach the
+rest with ``from headingref.zones import ...``.
 
 >>> import headingref
 >>> from headingref.zones import zone_areas
