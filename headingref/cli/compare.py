@@ -64,6 +64,7 @@ def _run_map(args, models) -> int:
 
     from ..compare import difference_grid
     from ..errors import InputError
+    from ..io import all_or_nothing
     from ..netcdf import write_netcdf
     from ..units import decimal_year
 
@@ -76,15 +77,17 @@ def _run_map(args, models) -> int:
 
     when = decimal_year(args.date or _dt.datetime.now(_dt.UTC).date().isoformat())
     ds = difference_grid(lats, lons, when, models[0], models[1], allow_extrapolation=args.extrapolate)
-    if args.netcdf:
-        write_netcdf(args.netcdf, ds)  # time as a CF datetime (headingref.netcdf)
-        print(f"wrote {args.netcdf}")
-    if args.plot:
-        from ..plots import save_figure
-        from ..plots.compare import plot_difference_map
+    with all_or_nothing():  # both outputs appear together, or neither
+        if args.netcdf:
+            write_netcdf(args.netcdf, ds)  # time as a CF datetime (headingref.netcdf)
+        if args.plot:
+            from ..plots import save_figure
+            from ..plots.compare import plot_difference_map
 
-        save_figure(plot_difference_map(ds), args.plot)
-        print(f"wrote {args.plot}")
+            save_figure(plot_difference_map(ds), args.plot)
+    for written in (args.netcdf, args.plot):
+        if written:
+            print(f"wrote {written}")
     diff = np.abs(ds.declination_diff_deg.values)
     print(f"{models[1].name} minus {models[0].name} over {args.map} at {args.step:g} deg ({diff.size:,} nodes): "
           f"median |difference| {np.nanmedian(diff):.3f} deg, largest {np.nanmax(diff):.3f} deg; "
