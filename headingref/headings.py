@@ -64,7 +64,7 @@ import numpy as np
 import pyproj
 
 from .errors import DataQualityWarning, InputError
-from .units import decimal_year, format_dm, parse_coordinate
+from .units import decimal_year, format_dm, parse_coordinate, parse_number
 
 __all__ = [
     "AUTO_GRID",
@@ -347,12 +347,9 @@ class Grid:
 
 def _number(text: str, what: str, spec: str) -> float:
     try:
-        value = float(text)
-    except ValueError:
-        raise InputError(f"grid {spec!r}: {what} {text!r} is not a number; give {_GRID_HELP}") from None
-    if not math.isfinite(value):
-        raise InputError(f"grid {spec!r}: {what} {text!r} is not finite; give {_GRID_HELP}")
-    return value
+        return parse_number(text, what)  # plain ASCII decimal, finite (not 4_5, nan, other scripts' digits)
+    except InputError:
+        raise InputError(f"grid {spec!r}: {what} {text!r} is not a finite plain number; give {_GRID_HELP}") from None
 
 
 def _check_range(value: float, low: float, high: float, what: str, spec: str) -> float:
@@ -471,7 +468,7 @@ def parse_grid(spec: Any) -> Grid:
         proj = f"+proj=lcc +lat_1={lat1!r} +lat_2={lat2!r} +lat_0={(lat1 + lat2) / 2!r} +lon_0={lon0!r} +datum=WGS84 +units=m +no_defs"
         return _make_grid(f"lcc:{lat1:g},{lat2:g},{lon0:g}", proj, spec)
     if kind == "utm":
-        match = re.fullmatch(r"\s*(\d{1,2})\s*([ns]?)\s*", rest)
+        match = re.fullmatch(r"\s*([0-9]{1,2})\s*([ns]?)\s*", rest)  # ASCII digits only
         if not match or not 1 <= int(match[1]) <= 60:
             raise InputError(f"grid {spec!r}: utm needs a zone 1 to 60 with optional N or S (utm:33N); give {_GRID_HELP}")
         zone, south = int(match[1]), match[2] == "s"
@@ -500,7 +497,7 @@ def convergence_deg(lat: Any, lon: Any, grid: Any = "polar") -> Any:
 
 _HEADING_RE = re.compile(
     r"^\s*(?P<num>\d{1,3}(?:\.\d*)?|\.\d+)\s*(?:°|º|deg)?\s*(?P<ref>[TMGC]|true|mag|grid|compass)?\s*$",
-    re.IGNORECASE,
+    re.IGNORECASE | re.ASCII,  # \d: ASCII digits only (not Arabic-Indic or full-width ones)
 )
 _REFERENCE_NAMES = {"t": "T", "true": "T", "m": "M", "mag": "M", "g": "G", "grid": "G", "c": "C", "compass": "C"}
 _HEADING_HELP = "0 to 360 degrees, e.g. 045, 045°T, 270.5 M (360 is read as 000)"
