@@ -353,6 +353,10 @@ def test_parse_number_reads_plain_numbers(text, value):
         ["runways", "--input", RUNWAYS, "--date", DATE, "--horizon", "٣"],
         ["field", "--lat", "6_1", "--lon", "10", "--date", DATE],
         ["field", "--lat", "61", "--lon", "10", "--date", "2026_5"],
+        ["zones", "--cap", "north", "--date", DATE, "--resolution", "5", "--thresholds", "2_000,6000"],
+        ["poles", "--years", "2_020:2022"],
+        ["route", "--input", ROUTE, "--date", DATE, "--output", "legs.csv", "--grid", "polar:4_5"],
+        ["route", "--input", ROUTE, "--date", DATE, "--output", "legs.csv", "--grid", "utm:\u0663\u0663N"],
     ],
 )
 def test_lenient_numbers_in_options_are_refused(tmp_path, monkeypatch, argv):
@@ -361,6 +365,15 @@ def test_lenient_numbers_in_options_are_refused(tmp_path, monkeypatch, argv):
     code, _, err = run(argv)
     error_line(code, err, argv[0])
     assert list(tmp_path.iterdir()) == []
+
+
+@pytest.mark.parametrize("text", ["\u0664\u0665", "\uff14\uff15", "4_5"])
+def test_headings_take_ascii_digits_only(text):
+    # Arabic-Indic (U+0664 U+0665) and full-width (U+FF14 U+FF15) '45' were read as 045.
+    from headingref.headings import parse_heading
+
+    with pytest.raises(InputError, match="heading .* is not understood"):
+        parse_heading(text)
 
 
 @pytest.mark.parametrize("cell", ["٦٩.٠", "6_9", "６９"])
