@@ -39,20 +39,20 @@ def chunk_sizes(chunks: Any, sizes: dict[str, int]) -> dict[str, int]:
     return out
 
 
-def _block(lats, lons, years, alt_km, model) -> dict[str, np.ndarray]:
-    """One chunk: an eager field_grid (dates already checked), as a dict of (time, lat, lon) arrays."""
-    from .field import field_grid
-
+def _block(eager, lats, lons, years, alt_km, model) -> dict[str, np.ndarray]:
+    """One chunk: an eager grid (``eager`` is field_grid; dates already checked), as a dict of (time, lat, lon) arrays."""
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", UndefinedDeclinationWarning)  # issued once for the whole grid
-        ds = field_grid(lats, lons, np.asarray(years, dtype=np.float64), alt_km=alt_km, model=model,
-                        allow_extrapolation=True)
+        ds = eager(lats, lons, np.asarray(years, dtype=np.float64), alt_km=alt_km, model=model, allow_extrapolation=True)
     return {name: ds[name].values for name in ds.data_vars}
 
 
 def chunked_field_grid(lat_a: np.ndarray, lon_a: np.ndarray, years: np.ndarray, alt_km: float, model, chunks: Any,
-                       multi: bool):
-    """The lazy (dask-backed) counterpart of :func:`headingref.field.field_grid` (inputs already validated)."""
+                       multi: bool, eager):
+    """The lazy (dask-backed) counterpart of :func:`headingref.field.field_grid` (inputs already validated).
+
+    ``eager`` is :func:`headingref.field.field_grid` itself, passed in so this module does not import
+    :mod:`headingref.field` (which imports this one)."""
     try:
         import dask
         import dask.array as da
@@ -60,14 +60,12 @@ def chunked_field_grid(lat_a: np.ndarray, lon_a: np.ndarray, years: np.ndarray, 
         raise InputError('field_grid chunks= needs dask, an optional dependency: pip install "headingref[dask]"') from None
     import xarray as xr
 
-    from .field import field_grid
-
     sizes = {"time": years.size, "lat": lat_a.size, "lon": lon_a.size}
     step = chunk_sizes(chunks, sizes)
     # the variables, their attributes and dtypes from a one-node eager grid: the template of every chunk
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", UndefinedDeclinationWarning)
-        template = field_grid(lat_a[:1], lon_a[:1], years[:1], alt_km=alt_km, model=model, allow_extrapolation=True)
+        template = eager(lat_a[:1], lon_a[:1], years[:1], alt_km=alt_km, model=model, allow_extrapolation=True)
     names = list(template.data_vars)
     bounds = {dim: list(range(0, sizes[dim], step[dim])) for dim in DIMS}
     pieces: dict[str, list] = {name: [] for name in names}
@@ -78,7 +76,7 @@ def chunked_field_grid(lat_a: np.ndarray, lon_a: np.ndarray, years: np.ndarray, 
             cols = {name: [] for name in names}
             for o0 in bounds["lon"]:
                 ty, la, lo = years[t0:t0 + step["time"]], lat_a[a0:a0 + step["lat"]], lon_a[o0:o0 + step["lon"]]
-                task = block(la, lo, ty, alt_km, model)
+                task = block(eager, la, lo, ty, alt_km, model)
                 shape = (ty.size, la.size, lo.size)
                 for name in names:
                     cols[name].append(da.from_delayed(task[name], shape=shape, dtype=template[name].dtype))

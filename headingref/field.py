@@ -416,7 +416,7 @@ def field_grid(
         model.check_dates(years, allow_extrapolation)
         from .chunked import chunked_field_grid
 
-        return chunked_field_grid(lat_a, lon_a, years, alt, model, chunks, multi)
+        return chunked_field_grid(lat_a, lon_a, years, alt, model, chunks, multi, field_grid)
     nodes = lat_a.size * lon_a.size * years.size
     if nodes > MAX_GRID_NODES:
         raise InputError(
