@@ -37,7 +37,8 @@ from .units import format_dm, timestamp_from_decimal_year
 
 __all__ = ["explorer", "render", "styled", "status_line", "date_picker", "slider", "choice", "with_warnings", "show"]
 
-_FIRST_COLUMNS = ("name", "from", "to", "airport", "runway", "ident", "zone", "verdict", "exceeds", "declination_flag",
+_FIRST_COLUMNS = ("case", "name", "from", "to", "airport", "runway", "ident", "zone", "verdict", "exceeds", "exceeds_limit",
+                  "saturated_by", "declination_flag",
                   "blackout_stretches_nm", "caution_stretches_nm")
 _ZONE_COLOURS = {"blackout": "background-color: #f4c7c3", "caution": "background-color: #fce8b2"}
 
@@ -121,7 +122,7 @@ def explorer(update: Callable[..., Any], controls: Mapping[str, Any], title: str
     for control in controls.values():
         control.observe(redraw, names="value")
     redraw()
-    children = ([widgets.HTML(f"<b>{title}</b>")] if title else []) + [widgets.HBox(list(controls.values())), output]
+    children = ([widgets.HTML(f"<b>{title}</b>")] if title else []) + [widgets.HBox(list(controls.values()), layout=widgets.Layout(flex_flow="row wrap")), output]
     box = widgets.VBox(children)
     box.add_class("headingref-explorer")
     return box
@@ -188,7 +189,8 @@ def status_line(text: str, level: str = "warning") -> dict[str, str]:
     import html
 
     colours = {"info": "#e8f0fe", "warning": "#fef7e0", "error": "#fce8e6"}
-    style = f"background:{colours.get(level, colours['warning'])};padding:4px 8px;border-radius:3px"
+    style = (f"background:{colours.get(level, colours['warning'])};padding:4px 8px;border-radius:3px;"
+             "white-space:pre-wrap")
     return {"text/html": f'<div style="{style}">{html.escape(level.upper())}: {html.escape(text)}</div>',
             "text/plain": f"{level.upper()}: {text}"}
 

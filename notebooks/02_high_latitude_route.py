@@ -32,9 +32,9 @@
 # date (`None` takes the scenario's analysis date).
 
 # %%
-from headingref.notices import DATA_DIR
+from headingref.scenario import DEMO_SCENARIO
 
-SCENARIO = DATA_DIR / "demo" / "scenario.toml"
+SCENARIO = DEMO_SCENARIO  # or the path of your own scenario TOML
 ROUTE_FILE = None  # e.g. "my_route.csv" or "my_route.gpx"
 DATE = None  # e.g. "2027-06-01"
 

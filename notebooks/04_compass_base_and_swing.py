@@ -29,67 +29,71 @@
 #
 # *Planning and engineering aid only, not approved for navigation. Official publications and charts, the aircraft's approved data, the compass base's own survey and licensed engineering and survey practice govern. The field model omits local crustal anomalies.*
 
+# %% [markdown]
+# ## Your inputs
+# A scenario file (the demo is invented: data/demo/README.md). Its `[compass_bases]` section names the bases CSV
+# and the planned swing date, its `[swing]` section the readings CSV; give your own files or date here to
+# override them (`None` keeps the scenario's).
+
 # %%
+from headingref.scenario import DEMO_SCENARIO
+
+SCENARIO = DEMO_SCENARIO  # or the path of your own scenario TOML
+BASES_FILE = None  # e.g. "my_bases.csv"
+SWING_FILE = None  # e.g. "my_swing.csv"
+SWING_DATE = None  # e.g. "2027-05-01"
+
+# %%
+# %matplotlib inline
 import ipywidgets as widgets
-import matplotlib.pyplot as plt
 import pandas as pd
 
-import headingref
 from headingref.compass_base import base_upkeep, read_sites_csv, setting_out
 from headingref.headings import compass_to_true, format_heading, format_variation
-from headingref.notices import DATA_DIR
+from headingref.plots.compass_base import plot_survey_history
 from headingref.plots.swing import card_figure, deviation_figure
 from headingref.scenario import load_scenario
-from headingref.swing import COEFFICIENT_MEANINGS, read_swing_csv
+from headingref.swing import analyse_swing, read_swing_csv, swing_from_scenario
 from headingref.units import decimal_year
+from headingref.workbench import choice, date_picker, explorer, show, slider, status_line, styled, with_warnings
 
-scenario = load_scenario(DATA_DIR / "demo" / "scenario.toml")  # the invented demo scenario (data/demo/README.md)
-DATE = scenario.analysis_date
-BASES = scenario.compass_bases  # file, swing_date, tolerance, setting-out lines and distances
-SWING_DATE = BASES["swing_date"]
+scenario = load_scenario(SCENARIO)
+BASES = {**scenario.compass_bases, **({"file": BASES_FILE} if BASES_FILE else {})}
+SWING = {**scenario.swing, **({"file": SWING_FILE} if SWING_FILE else {})}
+SWING_DATE = SWING_DATE or BASES["swing_date"]
 SWING_YEAR = float(decimal_year(SWING_DATE))
-sites = read_sites_csv(BASES["file"], tolerance_deg=BASES["tolerance_deg"], resurvey_years=BASES["resurvey_years"])
-pd.DataFrame(sites)
+sites, notes = with_warnings(read_sites_csv, BASES["file"], tolerance_deg=BASES["tolerance_deg"],
+                             resurvey_years=BASES["resurvey_years"])
+show(*notes, styled(pd.DataFrame(sites).drop(columns="history")))
 
 # %% [markdown]
 # ## Upkeep for the planned swing
-# One column per base: the latest survey carried forward with the model's change, the value to mark, when the
+# One row per base: the latest survey carried forward with the model's change, the value to mark, when the
 # surveyed value drifts out of tolerance and when a resurvey is due (overdue if on or before the swing).
 
 # %%
-upkeep = base_upkeep(sites, SWING_DATE)
-upkeep.drop(columns="caution").T
+UPKEEP_COLUMNS = ["name", "overdue", "caution", "predicted_variation_deg", "variation_to_mark", "annual_change",
+                  "survey_off_date", "mark_off_date", "mark_off_note", "resurvey_due_date"]
+upkeep, notes = with_warnings(base_upkeep, sites, SWING_DATE)
+show(*notes, styled(upkeep[[c for c in UPKEEP_COLUMNS if c in upkeep.columns]]))
 
 # %% [markdown]
-# ## One base through time
-# The model's variation at the base, the same carried from the latest survey (model plus the survey's local
+# ## The bases through time
+# The model's variation at each base, the same carried from the latest survey (model plus the survey's local
 # offset), the surveys, and the band the new mark stays valid in.
 
 # %%
-site, base = sites[0], upkeep.iloc[0]
-through_time = headingref.field(site.lat_deg, site.lon_deg, pd.date_range("2014-01-01", "2030-01-01", freq="MS"))
-fig, ax = plt.subplots(figsize=(9, 4))
-ax.plot(through_time.decimal_year, through_time.declination_deg, color="0.5", label="IGRF-14 main field")
-ax.plot(through_time.decimal_year, through_time.declination_deg + base.survey_minus_model_deg,
-        label="carried from the latest survey")
-surveys = pd.DataFrame([*site.history, (site.survey_year, site.surveyed_variation_deg)], columns=["year", "variation_deg"])
-ax.scatter(surveys.year, surveys.variation_deg, color="k", zorder=3, label="surveys")
-ax.axhspan(base.variation_to_mark_deg - base.tolerance_deg, base.variation_to_mark_deg + base.tolerance_deg,
-           color="C2", alpha=0.15, label=f"mark {base.variation_to_mark} ± {base.tolerance_deg:g}°")
-ax.axvline(SWING_YEAR, color="C1", linestyle=":", label="swing")
-ax.set_xlabel("year")
-ax.set_ylabel("variation (°, east positive)")
-ax.set_title(site.name)
-ax.legend(fontsize=8)
-plt.show()
+surveys = [(site.name, year, value) for site in sites
+           for year, value in (*site.history, (site.survey_year, site.surveyed_variation_deg))]
+show(plot_survey_history(upkeep, surveys, SWING_YEAR))
 
 # %% [markdown]
 # ## Setting out the heading lines
 # For the survey party: each marked magnetic line's true and grid azimuth and the points along it.
 
 # %%
-setting_out(upkeep, lines_deg=BASES["setting_out_lines_deg"], distances_m=BASES["setting_out_distances_m"],
-            grid=scenario.routes["grid"]).round(6)
+styled(setting_out(upkeep, lines_deg=BASES["setting_out_lines_deg"], distances_m=BASES["setting_out_distances_m"],
+                   grid=scenario.routes["grid"]).head(24))
 
 
 # %% [markdown]
@@ -97,37 +101,31 @@ setting_out(upkeep, lines_deg=BASES["setting_out_lines_deg"], distances_m=BASES[
 # Move the planned swing date; the value to mark is rounded to the marking step.
 
 # %%
-def explore_upkeep(swing_year=SWING_YEAR, mark_step_deg=0.5):
-    display(base_upkeep(sites, swing_year, mark_step_deg=mark_step_deg)[["name", "predicted_variation_deg", "variation_to_mark", "annual_change",
-                                              "survey_off_date", "mark_off_date", "mark_off_note",
-                                              "resurvey_due_date", "overdue"]])
+def explore_upkeep(day, mark_step_deg):
+    table, found = with_warnings(base_upkeep, sites, day, mark_step_deg=mark_step_deg)
+    return [*found, styled(table[[c for c in UPKEEP_COLUMNS if c in table.columns]])]
 
 
-widgets.interact(explore_upkeep,
-                 swing_year=widgets.FloatSlider(value=SWING_YEAR, min=2025, max=2030, step=0.25),
-                 mark_step_deg=widgets.FloatSlider(value=0.5, min=0.1, max=1.0, step=0.1));
+explorer(explore_upkeep, {"day": date_picker(SWING_DATE, "planned swing date"),
+                          "mark_step_deg": slider(0.5, 0.1, 1.0, 0.1, "marking step (°)")})
 
 # %% [markdown]
 # ## The swing
-# Twelve readings taken on the Svalbrekka base (invented). The standard errors come from the fit's residual
-# scatter; the inflation is 1 for readings spread evenly round the circle.
+# The readings of the scenario's swing (invented). Two verdicts: the deviation as measured, and what is left
+# once the compensator removes B and C; the scenario says which one decides. The standard errors come from the
+# fit's residual scatter; the inflation is 1 for readings spread evenly round the circle.
 
 # %%
-magnetic, compass, rows = read_swing_csv(scenario.swing["file"])
-swing = headingref.analyse_swing(magnetic, compass, limit_deg=scenario.swing["limit_deg"], rows=rows)
-print(f"verdict {swing.verdict}: largest deviation after B and C removed {swing.max_residual_deg:.2f}° "
-      f"(limit {swing.limit_deg:g}°), rms fit residual {swing.rms_fit_residual_deg:.2f}°")
-swing.coefficients
+(swing, details), notes = with_warnings(swing_from_scenario, SWING, bases_file=BASES["file"])
+level = "info" if swing.verdict == "pass" else "warning"
+show(*notes, *(status_line(line, level=level) for line in swing.verdict_text().splitlines()),
+     styled(swing.coefficients))
 
 # %%
-COEFFICIENT_MEANINGS
+show(deviation_figure(swing), card_figure(swing, title="Compass correction card (invented aircraft)", details=details))
 
 # %%
-display(deviation_figure(swing))
-display(card_figure(swing, title="Compass correction card (invented aircraft)"))
-
-# %%
-swing.readings.round(2)
+styled(swing.readings)
 
 # %% [markdown]
 # ## Using the fitted curve
@@ -148,17 +146,27 @@ print(f"compass {format_heading(reads, reference='C')}: magnetic {format_heading
 
 # %% [markdown]
 # ## Explore the fit
-# Fit fewer coefficients, change the limit, or print the card for after the compensator has removed B and C.
+# Fit fewer coefficients, change the limits, or print the card for after the compensator has removed B and C.
+# Both verdicts and the card follow.
 
 # %%
-def explore_swing(coefficients="ABCDE", limit_deg=scenario.swing["limit_deg"], after_compensation=False):
-    explored = headingref.analyse_swing(magnetic, compass, limit_deg=limit_deg, coefficients=coefficients,
-                                        card_after_compensation=after_compensation, rows=rows)
-    print(f"verdict {explored.verdict}: {explored.max_residual_deg:.2f}° after B and C (limit {limit_deg:g}°); "
-          f"rms fit residual {explored.rms_fit_residual_deg:.2f}°")
-    display(explored.card[["for_magnetic", "steer_compass", "deviation_deg"]].T.round(1))
+magnetic, compass, rows = read_swing_csv(SWING["file"])
 
 
-widgets.interact(explore_swing, coefficients=widgets.Dropdown(options=["ABCDE", "ABC", "BC"], value="ABCDE"),
-                 limit_deg=widgets.FloatSlider(value=scenario.swing["limit_deg"], min=0.5, max=15, step=0.5),
-                 after_compensation=widgets.Checkbox(value=False));
+def explore_swing(coefficients, limit_deg, compensated_limit_deg, after_compensation):
+    explored, found = with_warnings(analyse_swing, magnetic, compass, limit_deg=limit_deg,
+                                    compensated_limit_deg=compensated_limit_deg, coefficients=coefficients,
+                                    verdict_on=SWING["verdict_on"], card_after_compensation=after_compensation,
+                                    rows=rows)
+    lines = [status_line(line, level="info" if explored.verdict == "pass" else "warning")
+             for line in explored.verdict_text().splitlines()]
+    return [*found, *lines, card_figure(explored, title="Compass correction card (invented aircraft)", details=details)]
+
+
+explorer(explore_swing, {
+    "coefficients": choice(["ABCDE", "ABC", "BC"], "ABCDE", "coefficients fitted"),
+    "limit_deg": slider(SWING["limit_deg"], 0.5, 15, 0.5, "limit as measured (°)"),
+    "compensated_limit_deg": slider(swing.compensated_limit_deg, 0.5, 15, 0.5, "limit after compensation (°)"),
+    "after_compensation": widgets.Checkbox(value=bool(SWING["card_after_compensation"]),
+                                           description="card after compensation"),
+})
