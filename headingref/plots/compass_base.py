@@ -74,5 +74,6 @@ def plot_survey_history(upkeep: pd.DataFrame, surveys: Sequence[tuple[str, float
         ax.set_ylabel("variation (° east +)")
         ax.grid(True, alpha=0.3)
         ax.legend(fontsize=7)
+    plain_text(fig)  # base names are drawn as typed, never as mathtext (before tight_layout draws them)
     fig.tight_layout()
-    return plain_text(fig)  # base names are drawn as typed, never as mathtext
+    return fig
