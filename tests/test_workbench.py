@@ -65,3 +65,57 @@ def test_field_history_figure_draws_the_table_and_the_wmm_thresholds():
     # caution and blackout thresholds of H: 6000 and 2000 nT (WMM2025 technical report, section on blackout zones)
     assert sorted(line.get_ydata()[0] for line in middle.lines[1:]) == [2000.0, 6000.0]
     assert fig._suptitle.get_text() == "Apron $2 pad $3" and not fig._suptitle.get_parse_math()
+
+
+def test_slider_starts_on_its_step():
+    from headingref.workbench import slider
+
+    # the case: 2026.918 on a 0.25 step from 1990; the nearest step is 2027.00 (147.67 steps -> 148)
+    year = slider(2026.918, 1990, 2030, 0.25, "year")
+    assert year.value == 2027.0
+    assert ((year.value - year.min) / year.step).is_integer()
+    assert slider(99.0, 0.5, 10, 0.5, "limit (°)").value == 10.0  # clipped to the top end
+    assert year.style.description_width == "initial"  # the label in words is shown whole
+
+
+def test_with_warnings_turns_headingref_warnings_into_status_lines():
+    import warnings
+
+    from headingref.errors import DataQualityWarning
+    from headingref.workbench import with_warnings
+
+    def noisy(x):
+        warnings.warn("runways.csv line 8: weak horizontal field", DataQualityWarning, stacklevel=2)
+        warnings.warn("runways.csv line 8: weak horizontal field", DataQualityWarning, stacklevel=2)
+        return x + 1
+
+    result, lines = with_warnings(noisy, 1)
+    assert result == 2
+    assert [line["text/plain"] for line in lines] == ["WARNING: runways.csv line 8: weak horizontal field"]
+
+
+def test_other_libraries_warnings_pass_through():
+    import warnings
+
+    import pytest
+
+    from headingref.workbench import with_warnings
+
+    with pytest.warns(RuntimeWarning, match="not ours"):
+        _, lines = with_warnings(lambda: warnings.warn("not ours", RuntimeWarning, stacklevel=2))
+    assert lines == []
+
+
+def test_plots_used_by_explorers_leave_pyplot_alone():
+    # figures drawn from a widget callback must not touch pyplot's global figure list
+    # (JupyterLab runs the callback on another thread while later cells draw)
+    import matplotlib.pyplot as plt
+
+    from headingref.plots.basemap import map_axes
+    from headingref.plots.detector import plot_budget_profile
+
+    before = plt.get_fignums()
+    ax, _ = map_axes("north", 70.0, coastlines=False, graticule=False)
+    fig = plot_budget_profile([0.0, 10.0], {"steady": [0.5, 1.0]}, limit_deg=2.0)
+    assert plt.get_fignums() == before
+    assert isinstance(ax.figure, Figure) and isinstance(fig, Figure)
