@@ -302,6 +302,50 @@ def test_runways_plot_with_a_mathtext_airport_name(tmp_path):
     assert (tmp_path / "rw.png").stat().st_size > 1000
 
 
+SMALL_SCENARIO = """\
+title = "Dollar names"
+operator = "Invented operator"
+analysis_date = "2026-12-02"
+
+[routes]
+spacing_nm = 100.0
+
+[[routes.plan]]
+name = "Apron $2 pad $3 ferry"
+file = "r.csv"
+
+[compass_bases]
+file = "compass_bases.csv"
+
+[swing]
+file = "swing_readings.csv"
+base = "$\\\\foo{$ base"
+
+[runways]
+file = "runways.csv"
+horizon_years = 1.0
+"""
+
+
+def test_report_with_dollar_names_in_every_drawn_section(tmp_path):
+    # A base, an airport and waypoints named as mathtext: every section of the report is still made.
+    for name in ("compass_bases.csv", "swing_readings.csv", "runways.csv"):
+        (tmp_path / name).write_text((DEMO / name).read_text(encoding="utf-8"), encoding="utf-8")
+    bases = pd.read_csv(tmp_path / "compass_bases.csv", dtype=str)
+    bases.loc[bases["name"] == bases["name"].iloc[0], "name"] = r"$\foo{$ base"
+    bases.to_csv(tmp_path / "compass_bases.csv", index=False)
+    runways = pd.read_csv(tmp_path / "runways.csv", dtype=str)
+    runways.loc[runways["airport"] == runways["airport"].iloc[0], "airport"] = r"$\foo{$ field"
+    runways.to_csv(tmp_path / "runways.csv", index=False)
+    write_route(tmp_path / "r.csv", ["A", "Apron $2 pad $3", r"$\foo{$"])
+    (tmp_path / "s.toml").write_text(SMALL_SCENARIO, encoding="utf-8")
+    code, _, err = run(["report", tmp_path / "s.toml", "--out", tmp_path / "out", "--no-progress"])
+    assert code == 0, err
+    assert "not made" not in err and "could not" not in err and "ValueError" not in err, err
+    html = (tmp_path / "out" / "report.html").read_text(encoding="utf-8")
+    assert r"$\foo{$ base" in html and "Apron $2 pad $3" in html
+
+
 # --------------------------------------------------------------------------- 8. empty option values
 
 
