@@ -5,8 +5,12 @@
   line number in the file, so that every later error can name its row.
 - :func:`float_column`, :func:`coordinate_column`, :func:`date_column` turn one
   column into a numpy array or raise :class:`InputError` naming file, line and value.
-- :func:`atomic_path` and the ``write_*`` helpers write to a temporary file beside
-  the target and rename it into place, so an output is either complete or absent.
+- :func:`atomic_file`, :func:`atomic_path` and the ``write_*`` helpers write to a temporary
+  file beside the target (``tempfile.mkstemp``: exclusive, random name; a target that is a
+  symbolic link is refused) and rename it into place, so an output is either complete or absent.
+- :func:`all_or_nothing` groups the outputs of one command: all appear at its end, or none.
+- :func:`spreadsheet_safe` makes text cells inert for spreadsheets (OWASP CSV injection);
+  :func:`write_csv` applies it.
 """
 
 from __future__ import annotations
