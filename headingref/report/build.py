@@ -23,7 +23,7 @@ from ..io import write_csv, write_text
 from ..model import load_model
 from ..routes import _json_value
 from ..scenario import Scenario, load_scenario
-from . import compass_bases, error_budget, routes, runways, swing, zones
+from . import compare, compass_bases, error_budget, navaids, routes, runways, swing, zones
 from .content import Section, SummaryItem
 from .context import Context
 from .folder import check_out_dir, staged
@@ -40,6 +40,9 @@ JOBS: tuple[tuple[ModuleType, Callable[[Scenario], bool]], ...] = (
     (compass_bases, lambda sc: sc.compass_bases is not None),
     (swing, lambda sc: sc.swing is not None),
     (runways, lambda sc: sc.runways is not None),
+    (navaids, lambda sc: sc.navaids is not None),
+    # after routes (its samples are compared) and runways (the designators by model)
+    (compare, lambda sc: sc.compare_models is not None),
 )
 
 
@@ -48,8 +51,8 @@ class ReportResult:
     """What :func:`build_report` produced.
 
     ``html`` is the report's path; ``files`` every file written (in ``out_dir``); ``summary``
-    the summary lines by topic as plain text (``routes``, ``bases``, ``runways``, ``swing``,
-    ``zones``); ``failed`` the sections that could not be made and why (shown in the report
+    the summary lines by topic as plain text (``routes``, ``bases``, ``runways``, ``navaids``,
+    ``swing``, ``models``, ``zones``); ``failed`` the sections that could not be made and why (shown in the report
     too); ``tables`` the main result tables by name; ``sections`` what each job returned.
     """
 
@@ -96,6 +99,8 @@ def _write_files(stage: Path, sections: list[Section]) -> list[str]:
                 raise HeadingrefError(f"report section {section.title!r} writes {item.name!r} a second time")
             if isinstance(item.content, pd.DataFrame):
                 write_csv(stage / item.name, item.content)
+            elif isinstance(item.content, str):
+                write_text(stage / item.name, item.content)
             else:
                 write_text(stage / item.name, json.dumps(item.content, separators=(",", ":"), default=_json_value))
             names.append(item.name)

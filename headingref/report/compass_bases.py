@@ -29,8 +29,10 @@ _UPKEEP_COLUMNS = {
 }
 _HISTORY_COLUMNS = {"name": "base", "survey_date": "survey", "surveyed_variation_deg": "surveyed °",
                     "model_variation_at_survey_deg": "model °", "survey_minus_model_deg": "survey − model °"}
-_SETTING_OUT_COLUMNS = {"name": "base", "line": "magnetic line", "true_azimuth_deg": "true azimuth °",
-                        "grid_azimuth_deg": "grid azimuth °", "distance_m": "distance m", "lat_deg": "lat °", "lon_deg": "lon °"}
+_SETTING_OUT_COLUMNS = {"name": "base", "line": "magnetic line", "variation_used": "variation used",
+                        "true_azimuth_deg": "true azimuth °", "grid_azimuth_deg": "grid azimuth °", "distance_m": "distance m",
+                        "east_m": "east of centre m", "north_m": "north of centre m", "lat_text": "lat °", "lon_text": "lon °",
+                        "utm_zone": "UTM zone", "utm_easting_m": "UTM easting m", "utm_northing_m": "UTM northing m"}
 
 
 def survey_history(ctx: Context, sites: list) -> pd.DataFrame:
@@ -72,11 +74,12 @@ def job(ctx: Context) -> Section:
     sites = read_sites_csv(c["file"], tolerance_deg=c["tolerance_deg"], resurvey_years=c["resurvey_years"])
     upkeep = base_upkeep(sites, c["swing_date"], **ctx.common)
     history = survey_history(ctx, sites)
-    grid = sc.routes["grid"] if sc.routes else "polar"
+    grid = sc.routes["grid"] if sc.routes else "auto"  # auto: the polar grid of each base's hemisphere
     lines = setting_out(upkeep, lines_deg=c["setting_out_lines_deg"], distances_m=c["setting_out_distances_m"], grid=grid)
     figure = plot_survey_history(upkeep, list(zip(history["name"], history["survey_year"], history["surveyed_variation_deg"], strict=True)),
                                  float(decimal_year(c["swing_date"])), **ctx.common)
     levels = ["bad" if flag(overdue) else "" for overdue in upkeep["overdue"]]
+    shown_lines = lines.assign(lat_text=[f"{v:.6f}" for v in lines["lat_deg"]], lon_text=[f"{v:.6f}" for v in lines["lon_deg"]])
     return Section(
         KEY, TITLE, TOPIC,
         summary=_summary(upkeep, c["swing_date"]),
@@ -90,7 +93,13 @@ def job(ctx: Context) -> Section:
             Part("Survey history against the model", tables=[Table(history, _HISTORY_COLUMNS)],
                  figures=[figure_from(figure, "survey history",
                                       "Surveys, the model carried from the latest survey, and the band the new mark stays valid in.")]),
-            Part("Setting-out table for the survey party", tables=[Table(lines, _SETTING_OUT_COLUMNS)], collapsed=True),
+            Part("Setting-out table for the survey party", text=[
+                "Each line is laid out with the variation marked on the base for the swing (column 'variation used': the "
+                "surveyed value carried to the swing date and rounded to the marking step), not the unrounded prediction, so "
+                "the painted lines and the painted value agree: true azimuth = magnetic line + marked variation. Points are "
+                "given as east/north metres from the base centre (local tangent plane of the WGS84 ellipsoid), as latitude "
+                "and longitude (WGS84 geodesic) and in UTM (WGS84, the centre's zone; empty beyond 84° N / 80° S, where UPS "
+                "applies)."], tables=[Table(shown_lines, _SETTING_OUT_COLUMNS)], collapsed=True),
         ],
         files=[OutputFile("compass_bases.csv", upkeep), OutputFile("compass_base_history.csv", history),
                OutputFile("setting_out.csv", lines)],

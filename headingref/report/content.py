@@ -13,7 +13,8 @@ text (route, airport and base names) is escaped in one place.
   :func:`figure_from` turns a matplotlib Figure from :mod:`headingref.plots` into one.
 - :class:`Part`: a sub-heading with paragraphs, bullet items, tables and figures (``collapsed``
   folds it).
-- :class:`OutputFile`: a data file of the report: a DataFrame (CSV) or a dict (GeoJSON/JSON).
+- :class:`OutputFile`: a data file of the report: a DataFrame (CSV), a dict (GeoJSON/JSON) or
+  text (``str``, written as UTF-8, e.g. a printable HTML card).
 - :class:`Section`: ``key`` (the HTML anchor), ``title``, ``topic`` (the summary heading it
   feeds), ``summary`` items, ``parts``, ``files``, ``notes`` (plain sentences) and ``tables``
   (result tables by name, handed to the caller in ``ReportResult.tables``); ``failed`` holds the
@@ -93,10 +94,10 @@ class Part:
 
 @dataclass
 class OutputFile:
-    """A data file written with the report: ``content`` a DataFrame (CSV) or a dict (JSON)."""
+    """A data file written with the report: ``content`` a DataFrame (CSV), a dict (JSON) or text (as is)."""
 
     name: str
-    content: pd.DataFrame | dict
+    content: pd.DataFrame | dict | str
 
 
 @dataclass

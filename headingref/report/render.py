@@ -26,7 +26,9 @@ SUMMARY_TOPICS = (
     ("routes", "Routes: where the magnetic reference is lost"),
     ("bases", "Compass bases: resurvey"),
     ("runways", "Runways: redesignation"),
+    ("navaids", "Navaids: station declination"),
     ("swing", "Compass swing"),
+    ("models", "Field models: where the choice matters"),
     ("zones", "Weak-field zones"),
 )
 

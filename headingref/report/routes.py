@@ -41,6 +41,32 @@ def _position(part: pd.DataFrame, distance_nm: float) -> tuple[float, float]:
                                  distance_nm)
 
 
+def _flags(part: pd.DataFrame) -> str:
+    """The declination flags met along one leg (headingref.field's declination_flag), with where, or ''."""
+    flags = part["declination_flag"].astype(str).to_numpy()
+    out = []
+    for reason in dict.fromkeys(f for f in flags if f):
+        at = part["distance_along_leg_nm"].to_numpy()[flags == reason]
+        out.append(f"{reason} ({at.min():.0f}–{at.max():.0f} NM)" if at.size > 1 else f"{reason} (at {at[0]:.0f} NM)")
+    return "; ".join(out)
+
+
+def _shown_legs(legs: pd.DataFrame, samples: pd.DataFrame) -> pd.DataFrame:
+    """The legs as the page shows them: where a leg's start or end has a flagged declination, the
+    variation and the courses that depend on it are blank and the flag says why (no huge numbers)."""
+    shown = legs.copy()
+    for i in range(len(legs)):
+        part = samples[samples["leg"] == i + 1]
+        start, end = (str(part["declination_flag"].iloc[k]) for k in (0, -1))
+        if start:
+            shown.loc[i, ["variation_deg", "magnetic_course_deg", "grivation_deg"]] = np.nan
+        if end:
+            shown.loc[i, "variation_deg_end"] = np.nan
+        if shown.loc[i, "max_declination_uncertainty_deg"] >= 180.0:
+            shown.loc[i, "max_declination_uncertainty_deg"] = np.nan
+    return shown
+
+
 def _with_budget(ctx: Context, samples: pd.DataFrame) -> pd.DataFrame:
     lat, lon, alt = (samples[c].to_numpy() for c in ("lat_deg", "lon_deg", "alt_km"))
     sc = ctx.scenario
@@ -91,11 +117,9 @@ def _one_leg(ctx: Context, name: str, leg: pd.Series, part: pd.DataFrame, summar
 
 
 def _one_route(ctx: Context, plan: dict, summary: list[SummaryItem], features: list[dict]) -> tuple[pd.DataFrame, pd.DataFrame, Part]:
-    settings = ctx.scenario.routes
     name = plan["name"]
     try:
-        result = route(str(plan["file"]), ctx.date, alt_km=settings["alt"], grid=settings["grid"],
-                       spacing_nm=settings["spacing_nm"], path=settings["path"], **ctx.common)
+        result = route(str(plan["file"]), ctx.date, **ctx.scenario.route_options(plan), **ctx.common)
     except HeadingrefError as exc:
         raise type(exc)(f"route {name!r} ({plan['file'].name}): {exc}") from None
     ctx.routes.append((name, result))
@@ -108,6 +132,7 @@ def _one_route(ctx: Context, plan: dict, summary: list[SummaryItem], features: l
         lost.append(_one_leg(ctx, name, leg, part, summary, features))
     legs["max_budget_steady_deg"] = steady_max
     legs["no_magnetic_reference"] = lost
+    legs["declination_flag"] = [_flags(samples[samples["leg"] == i + 1]) for i in range(len(legs))]
     for feature in route_geojson(result)["features"]:
         # the legs; the weak-field stretches are the report's own (the scenario's thresholds), waypoints are in the legs
         if feature["properties"]["kind"] == "leg":
@@ -121,7 +146,8 @@ def _one_route(ctx: Context, plan: dict, summary: list[SummaryItem], features: l
     part = Part(
         title=name,
         text=[f"{len(legs)} legs, {legs['distance_nm'].sum():,.0f} NM."],
-        tables=[Table(legs, _LEG_COLUMNS, levels)],
+        tables=[Table(_shown_legs(legs.drop(columns="route"), samples), _LEG_COLUMNS if not legs["declination_flag"].any()
+                      else {**_LEG_COLUMNS, "declination_flag": "declination flagged"}, levels)],
         figures=[
             figure_from(plot_route_map(result, model=ctx.model), f"map of {name}", "Route with isogonic lines and weak-field zones."),
             figure_from(plot_route_profile(result), f"profile of {name}", "Variation, H and declination uncertainty along the route."),
