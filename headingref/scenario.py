@@ -14,6 +14,7 @@ Layout (every section is optional; a missing section's job is left out of the re
     analysis_date = "2026-12-02"       # required: ISO date or decimal year
     model = "IGRF-14"                  # or a coefficient file (.shc / .COF)
     allow_extrapolation = false
+    compare_models = ["IGRF-14", "WMM2025"]   # optional: the report's model comparison
 
     [routes]        spacing_nm, path, grid, alt, and [[routes.plan]] name, file[, grid, alt]
     [zones]         cap, edge_lat_deg, step_deg, blackout_nT, caution_nT, compare_date
@@ -81,6 +82,8 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "model": Key("model", None, doc="a model name (IGRF-14 default, WMM2015, WMM2015v2, WMM2020, WMM2025, WMMHR2025; "
                      "see `headingref models`) or a coefficient file (.shc or WMM .COF)"),
         "allow_extrapolation": Key("bool", False, doc="evaluate the model outside its validity (warns)"),
+        "compare_models": Key("models", None, doc="two or more models to compare in the report, the first the reference "
+                              "(names or coefficient files), e.g. [\"IGRF-14\", \"WMM2025\", \"WMMHR2025\"]"),
     },
     "routes": {
         "spacing_nm": Key("float", 10.0, high=500.0, doc="sample spacing along legs, NM", **_POSITIVE),
@@ -178,6 +181,7 @@ class Scenario:
     swing: dict | None = None
     runways: dict | None = None
     navaids: dict | None = None
+    compare_models: list | None = None
     raw: dict = field(default_factory=dict, repr=False)
 
     @property
@@ -193,7 +197,8 @@ class Scenario:
         paths = [self.path] + ([self.model] if isinstance(self.model, Path) else [])
         if self.routes:
             paths += [plan["file"] for plan in self.routes["plan"]]
-        paths += [section["file"] for section in (self.compass_bases, self.swing, self.runways) if section]
+        paths += [section["file"] for section in (self.compass_bases, self.swing, self.runways, self.navaids) if section]
+        paths += [m for m in self.compare_models or () if isinstance(m, Path)]
         return paths
 
     def route_options(self, plan: dict) -> dict:
@@ -342,6 +347,12 @@ def _value(value: Any, section: str, key: str, spec: Key, where: str, folder: Pa
         if named is not None:  # a model known by name (headingref.model.MODEL_NAMES)
             return None if named == "IGRF-14" else named
         return _path(value, label, spec, where, folder)
+    if kind == "models":  # a list of model names or files (the report's model comparison)
+        items = [v.strip() for v in value.split(",")] if isinstance(value, str) else value
+        if not isinstance(items, list) or len(items) < 2 or not all(isinstance(v, str) and v.strip() for v in items):
+            raise InputError(f"{where}: {label} = {value!r}; give two or more model names or files, {spec.doc}")
+        models = [_value(v, section, key, spec._replace(kind="model"), where, folder) for v in items]
+        return ["IGRF-14" if m is None else m for m in models]
     if kind == "plans":
         if not isinstance(value, list) or not value or not all(isinstance(v, dict) for v in value):
             raise InputError(f"{where}: {label} must be one or more [[routes.plan]] tables with name and file")
@@ -443,6 +454,7 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
         decimal_year=float(decimal_year(top["analysis_date"])),
         model=top["model"],
         allow_extrapolation=top["allow_extrapolation"],
+        compare_models=top["compare_models"],
         raw=raw,
         **sections,
     )
