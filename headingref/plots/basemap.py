@@ -20,7 +20,11 @@ polylines crossing the antimeridian or running close to a pole draw correctly.
 Public API: :func:`load_coastlines`, :func:`map_crs`, :func:`map_axes`, :func:`draw_coastlines`,
 :func:`draw_graticule`, :func:`plot_lonlat`, :func:`scatter_lonlat`, :func:`fill_lonlat`,
 :func:`draw_geojson`, :func:`split_projected`, :func:`format_lat`, :func:`format_lon`,
-:data:`COASTLINE_FILE`.
+:func:`frame_limits`, :func:`declutter_labels`, :func:`draw_dip_poles`, :data:`COASTLINE_FILE`.
+
+A map can be framed on points (``map_axes(..., frame=(lon, lat))``, e.g. a route) rather than
+the whole cap; graticule labels that would overprint one another are hidden
+(:func:`declutter_labels`, thinned on their rendered boxes, so never two on top of each other).
 
 Example
 -------
@@ -57,6 +61,11 @@ _DENSIFY_STEP_DEG = 1.0
 _COAST_STYLE = {"color": "0.35", "linewidth": 0.6, "zorder": 2}
 _GRID_STYLE = {"color": "0.6", "linewidth": 0.4, "linestyle": ":", "zorder": 1}
 _LABEL_STYLE = {"fontsize": 7, "color": "0.3"}
+LABEL_GID = "graticule-label"
+"""The ``gid`` of every graticule label (see :func:`declutter_labels`)."""
+FRAME_MARGIN = 0.12
+"""Margin round a framed map's points, as a fraction of their projected extent."""
+DIP_POLE_STYLE = {"marker": "*", "s": 140, "color": "#3a0ca3", "edgecolor": "white", "linewidths": 0.6, "zorder": 6}
 
 
 # --------------------------------------------------------------------------- coastline data
@@ -457,12 +466,17 @@ def draw_graticule(
     lon_step: float | None = None,
     labels: bool = True,
     label_lon: float | None = None,
+    edge_labels: bool | None = None,
 ) -> list:
     """Draw parallels and meridians with degree labels on a map axes.
 
     Meridians are labelled where they leave the frame; parallels where they cross the left
-    edge of a region map, or along the meridian ``label_lon`` inside a polar cap.
+    edge of a region map, or along the meridian ``label_lon`` inside a polar cap. With
+    ``edge_labels`` (default: region maps) parallels are labelled at the left or right edge and
+    meridians at any edge (a cap framed on a route). Labels carry the gid ``graticule-label``;
+    :func:`declutter_labels` hides those that would overprint one another.
     """
+    edge_labels = (kind == "region") if edge_labels is None else edge_labels
     view = _view(ax)
     lat_lo, lat_hi = lat_range
     lon_lo, lon_hi = lon_range
@@ -482,25 +496,27 @@ def draw_graticule(
         for px, py in split_projected(x, y, jump):
             artists.extend(ax.plot(px, py, **_GRID_STYLE))
             if labels:
-                edges = ("left", "right", "bottom", "top") if kind != "region" else ("bottom",)
+                edges = ("bottom",) if kind == "region" else ("bottom", "left", "right", "top")
                 hit = _edge_crossing(px, py, view, edges)
                 if hit:
-                    artists.append(ax.text(hit[0], hit[1], format_lon(lon), clip_on=False, **_EDGE_ALIGN[hit[2]], **_LABEL_STYLE))
+                    artists.append(ax.text(hit[0], hit[1], format_lon(lon), clip_on=False, gid=LABEL_GID,
+                                           **_EDGE_ALIGN[hit[2]], **_LABEL_STYLE))
     for lat in parallels:
         x, y = _project(transformer, lon_samples, np.full_like(lon_samples, lat))
         for px, py in split_projected(x, y, jump):
             artists.extend(ax.plot(px, py, **_GRID_STYLE))
         if not labels:
             continue
-        if kind == "region":
-            hit = _edge_crossing(x, y, view, ("left",))
+        if edge_labels:
+            hit = _edge_crossing(x, y, view, ("left",) if kind == "region" else ("left", "right"))
             if hit:
-                artists.append(ax.text(hit[0], hit[1], format_lat(lat), clip_on=False, **_EDGE_ALIGN["left"], **_LABEL_STYLE))
+                artists.append(ax.text(hit[0], hit[1], format_lat(lat), clip_on=False, gid=LABEL_GID,
+                                       **_EDGE_ALIGN[hit[2]], **_LABEL_STYLE))
         else:
             lx, ly = _project(transformer, [label_lon if label_lon is not None else 0.0], [lat])
             if np.isfinite(lx[0]) and view[0] <= lx[0] <= view[1] and view[2] <= ly[0] <= view[3]:
                 artists.append(
-                    ax.text(lx[0], ly[0], format_lat(lat), ha="center", va="center", zorder=3,
+                    ax.text(lx[0], ly[0], format_lat(lat), ha="center", va="center", zorder=3, gid=LABEL_GID,
                             bbox={"boxstyle": "round,pad=0.1", "fc": "white", "ec": "none", "alpha": 0.7}, **_LABEL_STYLE)
                 )
     return artists
@@ -518,6 +534,8 @@ def map_axes(
     lat_step: float | None = None,
     lon_step: float | None = None,
     figsize: tuple[float, float] = (7.0, 7.0),
+    frame: tuple[Any, Any] | None = None,
+    margin: float = FRAME_MARGIN,
 ):
     """A matplotlib axes set up as a map, and the lon/lat -> map x/y transformer.
 
@@ -535,7 +553,13 @@ def map_axes(
     coastlines, graticule : bool
         Draw the shipped coastline and a labelled graticule (default both).
     lat_step, lon_step : float, optional
-        Graticule spacing in degrees (default 10/30 on caps, chosen from the span on regions).
+        Graticule spacing in degrees (default 10/30 on caps, chosen from the span on regions
+        and framed maps).
+    frame : (lon, lat) arrays of degrees, optional
+        Frame the map on these points (e.g. a route) instead of the whole cap or region: the
+        view is their projected bounding box with ``margin`` (fraction of its larger side, at
+        least 100 km) on each side, widened so that neither side is under 0.6 of the other
+        (:func:`frame_limits`). Graticule labels then sit on the edges.
 
     Returns
     -------
@@ -571,6 +595,18 @@ def map_axes(
         lat_range = (max(edge - 25.0, -89.0), 90.0) if kind == "north" else (-90.0, min(edge + 25.0, 89.0))
         lon_range = (-180.0, 180.0)
         label_lon = lon_0 + 180.0 + 15.0 if kind == "north" else lon_0 + 15.0
+    edge_labels = kind == "region"
+    if frame is not None:
+        limits = frame_limits(transformer, frame[0], frame[1], margin=margin)
+        lat_range, lon_range = _view_ranges(transformer, limits)
+        lat_step = lat_step or _nice_step(lat_range[1] - lat_range[0])
+        lon_step = lon_step or _nice_step(lon_range[1] - lon_range[0])
+        # parallels round a pole in view are labelled along a meridian through the view, else on the edges
+        edge_labels = lon_range != (-180.0, 180.0)
+        if not edge_labels:
+            cx, cy = 0.5 * (limits[0] + limits[1]), 0.5 * (limits[2] + limits[3])
+            centre_lon = transformer.transform(cx, cy, direction="INVERSE", errcheck=False)[0]
+            label_lon = (float(centre_lon) if np.isfinite(centre_lon) else lon_0) + 10.0
     if ax is None:  # a Figure object, not pyplot's global state (safe from widget callbacks)
         ax = Figure(figsize=figsize).add_subplot()
     ax.set_xlim(limits[0], limits[1])
@@ -579,9 +615,118 @@ def map_axes(
     ax.set_xticks([])
     ax.set_yticks([])
     if graticule:
-        draw_graticule(ax, transformer, kind, lat_range, lon_range, lat_step, lon_step, labels=True, label_lon=label_lon)
+        draw_graticule(ax, transformer, kind, lat_range, lon_range, lat_step, lon_step, labels=True, label_lon=label_lon,
+                       edge_labels=edge_labels)
     if coastlines:
         draw_coastlines(ax, transformer)
     ax.set_xlim(limits[0], limits[1])
     ax.set_ylim(limits[2], limits[3])
+    declutter_labels(ax)
     return ax, transformer
+
+
+def frame_limits(transformer: Transformer, lon: Any, lat: Any, margin: float = FRAME_MARGIN,
+                 min_half_m: float = 100e3, min_ratio: float = 0.6) -> tuple[float, float, float, float]:
+    """``(x0, x1, y0, y1)`` in map metres framing the points (lon, lat degrees) with a margin.
+
+    The projected bounding box, widened by ``margin`` times its larger side on every side (at
+    least ``min_half_m`` from the centre), and its shorter side raised to ``min_ratio`` of the
+    longer one (an east-west route is not drawn as a thin strip). Points that do not project
+    are ignored; raises InputError when none does.
+    """
+    x, y = _project(transformer, lon, lat)
+    keep = np.isfinite(x) & np.isfinite(y)
+    if not keep.any():
+        raise InputError("none of the points to frame lies on this map projection")
+    x0, x1, y0, y1 = x[keep].min(), x[keep].max(), y[keep].min(), y[keep].max()
+    cx, cy = 0.5 * (x0 + x1), 0.5 * (y0 + y1)
+    half = 0.5 * max(x1 - x0, y1 - y0)
+    pad = margin * 2.0 * half
+    hx = max(0.5 * (x1 - x0) + pad, min_half_m)
+    hy = max(0.5 * (y1 - y0) + pad, min_half_m)
+    hx, hy = max(hx, min_ratio * hy), max(hy, min_ratio * hx)
+    return float(cx - hx), float(cx + hx), float(cy - hy), float(cy + hy)
+
+
+def _view_ranges(transformer: Transformer, limits: Sequence[float]) -> tuple[tuple[float, float], tuple[float, float]]:
+    """Latitude and (unwrapped) longitude ranges, degrees, seen in a view of map metres."""
+    x0, x1, y0, y1 = limits
+    gx, gy = np.meshgrid(np.linspace(x0, x1, 41), np.linspace(y0, y1, 41))
+    with np.errstate(invalid="ignore"):
+        lon, lat = transformer.transform(gx.ravel(), gy.ravel(), direction="INVERSE", errcheck=False)
+    lon, lat = np.asarray(lon), np.asarray(lat)
+    ok = np.isfinite(lon) & np.isfinite(lat) & (np.abs(lat) <= 90.0)
+    lon, lat = lon[ok], lat[ok]
+    lat_range = (max(-90.0, float(lat.min()) - 1.0), min(90.0, float(lat.max()) + 1.0))
+    pole_in_view = False
+    for pole in (90.0, -90.0):
+        px, py = _project(transformer, [0.0], [pole])
+        pole_in_view |= bool(np.isfinite(px[0]) and x0 <= px[0] <= x1 and y0 <= py[0] <= y1)
+    if pole_in_view:
+        return lat_range, (-180.0, 180.0)
+    rad = np.radians(lon)
+    centre = float(np.degrees(np.arctan2(np.sin(rad).mean(), np.cos(rad).mean())))
+    unwrapped = centre + ((lon - centre + 180.0) % 360.0) - 180.0
+    return lat_range, (float(unwrapped.min()) - 1.0, float(unwrapped.max()) + 1.0)
+
+
+def _renderer(fig):
+    canvas = fig.canvas
+    if hasattr(canvas, "get_renderer"):
+        return canvas.get_renderer()
+    return fig._get_renderer()  # a bare Figure (no pyplot): matplotlib's own renderer lookup
+
+
+def declutter_labels(ax, pad_px: float = 2.0) -> int:
+    """Hide graticule labels (gid :data:`LABEL_GID`) that would overprint an earlier one; returns how many.
+
+    Labels are tested in the order drawn (meridians, then parallels) on their rendered
+    bounding boxes, after the axes take their final equal-aspect shape. Call it again after
+    anything that resizes the axes (a colour bar); hidden labels are reconsidered each time.
+    """
+    labels = [t for t in ax.texts if t.get_gid() == LABEL_GID]
+    if not labels:
+        return 0
+    ax.apply_aspect()
+    renderer = _renderer(ax.figure)
+    kept, hidden = [], 0
+    for text in labels:
+        text.set_visible(True)
+        box = text.get_window_extent(renderer).padded(pad_px)
+        if any(box.overlaps(other) for other in kept):
+            text.set_visible(False)
+            hidden += 1
+        else:
+            kept.append(box)
+    return hidden
+
+
+def draw_dip_poles(ax, transformer: Transformer, date: Any, model: Any = None, label: bool = True) -> list:
+    """Mark the dip poles (H = 0, :func:`headingref.poles.dip_poles`) that lie in the view.
+
+    ``date`` is any date or decimal year; ``model`` a Model or a model name (default IGRF-14).
+    Each pole in view gets a star (:data:`DIP_POLE_STYLE`) and, with ``label``, the words
+    ``dip pole`` beside it; returns the scatter artists (the first carries the legend label
+    ``dip pole (H = 0), <date>``), none when no pole is in view.
+    """
+    import warnings
+
+    from ..errors import ExtrapolationWarning
+    from ..poles import dip_poles
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ExtrapolationWarning)  # the map already says which date it shows
+        poles = dip_poles(date, model=model, allow_extrapolation=True)
+    x, y = _project(transformer, poles.lon.to_numpy(), poles.lat.to_numpy())
+    x0, x1, y0, y1 = _view(ax)
+    artists = []
+    for i in range(len(poles)):
+        if not (np.isfinite(x[i]) and x0 <= x[i] <= x1 and y0 <= y[i] <= y1):
+            continue
+        legend = f"dip pole (H = 0), {poles.date.iloc[i]}" if not artists else None
+        artists.append(ax.scatter([x[i]], [y[i]], label=legend, **DIP_POLE_STYLE))
+        if label:
+            ax.annotate("dip pole", (x[i], y[i]), xytext=(6, -10), textcoords="offset points", fontsize=7,
+                        color=DIP_POLE_STYLE["color"], zorder=7,
+                        bbox={"boxstyle": "round,pad=0.1", "fc": "white", "ec": "none", "alpha": 0.7})
+    return artists

@@ -140,7 +140,7 @@ def plot_route_map(result: Any, ax=None, model: Any = None, mesh: int = 140, iso
     from ..errors import UndefinedDeclinationWarning
     from ..field import BLACKOUT_NT, CAUTION_NT, field_arrays
     from ..headings import format_heading
-    from .basemap import map_axes, plot_lonlat, scatter_lonlat
+    from .basemap import declutter_labels, draw_dip_poles, map_axes, plot_lonlat, scatter_lonlat
 
     legs, samples = result.legs, result.samples
     lat = samples.lat_deg.to_numpy()
@@ -148,7 +148,8 @@ def plot_route_map(result: Any, ax=None, model: Any = None, mesh: int = 140, iso
     kind, extent, central_lon = choose_map(lat, lon)
     if ax is None:  # a Figure object, not pyplot's global state (safe from widget callbacks)
         ax = Figure(figsize=(8.0, 8.0)).add_subplot()
-    ax, to_map = map_axes(kind, extent, ax=ax, central_lon=central_lon)
+    # framed on the route (with a margin), not on the whole cap: the route fills the map
+    ax, to_map = map_axes(kind, extent, ax=ax, central_lon=central_lon, frame=(lon, lat))
     year = float(legs.attrs.get("decimal_year", samples.attrs.get("decimal_year")))
 
     handles = []
@@ -171,10 +172,11 @@ def plot_route_map(result: Any, ax=None, model: Any = None, mesh: int = 140, iso
         if zones and np.nanmin(h) < CAUTION_NT:
             ax.contourf(gx, gy, h, levels=[0.0, BLACKOUT_NT, CAUTION_NT], colors=[_ZONE_COLOURS["blackout"], _ZONE_COLOURS["caution"]],
                         alpha=0.35, zorder=1.2)
-            handles += [
-                Patch(color=_ZONE_COLOURS["caution"], alpha=0.5, label=f"caution: H < {CAUTION_NT:g} nT"),
-                Patch(color=_ZONE_COLOURS["blackout"], alpha=0.5, label=f"blackout: H < {BLACKOUT_NT:g} nT"),
-            ]
+            # the legend lists only the zones the map shows
+            if np.nanmax(np.where(h < CAUTION_NT, h, np.nan)) >= BLACKOUT_NT:
+                handles.append(Patch(color=_ZONE_COLOURS["caution"], alpha=0.5, label=f"caution: H < {CAUTION_NT:g} nT"))
+            if np.nanmin(h) < BLACKOUT_NT:
+                handles.append(Patch(color=_ZONE_COLOURS["blackout"], alpha=0.5, label=f"blackout: H < {BLACKOUT_NT:g} nT"))
         if isogonics:
             # hide the +-180 seam of the variation so that no false lines gather along it
             seam = np.zeros(dec.shape, dtype=bool)
@@ -189,8 +191,11 @@ def plot_route_map(result: Any, ax=None, model: Any = None, mesh: int = 140, iso
             step = _isogonic_step(masked)
             levels = np.arange(-180.0 + step, 180.0, step)
             cs = ax.contour(gx, gy, masked, levels=levels, colors="#6a3d9a", linewidths=0.7, zorder=1.8)
-            ax.clabel(cs, fmt=_variation_label, fontsize=7, inline=True)
-            handles.append(Line2D([], [], color="#6a3d9a", lw=0.7, label=f"isogonic lines every {step:g}° (west dashed)"))
+            ax.clabel(cs, fmt=_variation_label, fontsize=7, inline=True)  # matplotlib keeps labels upright
+            drawn_levels = [lv for lv, segs in zip(cs.levels, cs.allsegs, strict=True) if any(len(g) > 1 for g in segs)]
+            if drawn_levels:
+                west = " (west dashed)" if min(drawn_levels) < 0 else ""
+                handles.append(Line2D([], [], color="#6a3d9a", lw=0.7, label=f"isogonic lines every {step:g}°{west}"))
 
     drawn = _evenly(len(lon), MAX_DRAWN_POINTS)  # a 10,000-waypoint route: draw what the figure can show
     plot_lonlat(ax, to_map, lon[drawn], lat[drawn], color=_ROUTE_COLOUR, linewidth=2.0, zorder=5, label="route")
@@ -204,14 +209,17 @@ def plot_route_map(result: Any, ax=None, model: Any = None, mesh: int = 140, iso
         ax.annotate(str(name), (x, y), xytext=(4, 4), textcoords="offset points", fontsize=8, zorder=7,
                     bbox={"boxstyle": "round,pad=0.15", "fc": "white", "ec": "none", "alpha": 0.8})
     handles.insert(0, Line2D([], [], color=_ROUTE_COLOUR, lw=2.0, label=f"route ({legs.attrs.get('path', 'geodesic')})"))
-    ax.legend(handles=handles, loc="lower left", fontsize=7, framealpha=0.85)
+    handles += draw_dip_poles(ax, to_map, year, model=model)  # only a pole inside the view
+    # the legend below the map, clear of the route and of the edge labels
+    ax.legend(handles=handles, loc="upper center", bbox_to_anchor=(0.5, -0.05), ncol=2, fontsize=7, framealpha=0.85)
+    declutter_labels(ax)
     total = float(legs.distance_nm.sum())
     first_course = format_heading(float(legs.true_course_deg.iloc[0]), reference="T")
     ax.set_title(
         f"Route {names[0]} to {names[-1]}: {len(legs)} legs, {total:,.0f} NM (first course {first_course})\n"
         f"variation and weak-field zones, decimal year {year:.2f}",
         fontsize=10,
-        pad=16,
+        pad=18,  # above the meridian labels on the top edge
     )
     return plain_text(ax.figure)
 

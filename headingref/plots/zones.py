@@ -109,7 +109,7 @@ def plot_zone_map(ds, *, tracks=None, title: str | None = None, figsize: tuple[f
     from matplotlib.patches import Patch
 
     from ..zones import zone_geojson
-    from .basemap import draw_geojson, map_axes, plot_lonlat
+    from .basemap import declutter_labels, draw_geojson, map_axes, plot_lonlat
 
     kind, extent = _map_for(ds)
     bounds = list(ds.attrs.get("area_bounds", list(CAPS["north"].bounds())))
@@ -123,7 +123,8 @@ def plot_zone_map(ds, *, tracks=None, title: str | None = None, figsize: tuple[f
         first = {"type": "FeatureCollection", "features": [f for f in collection["features"] if f["properties"]["date"] == dates[0]]}
         draw_geojson(ax, to_map, first, lambda p: {"facecolor": colours[p["zone"]], "edgecolor": "none", "alpha": 0.55})
         _draw_boundaries(ax, to_map, first, bounds, colours, linewidth=0.8, zorder=3)
-        handles = [Patch(facecolor=colours[name], alpha=0.55, label=f"{name} ({dates[0]})") for name in labels]
+        drawn = {f["properties"]["zone"] for f in first["features"]}  # the legend lists only zones on the map
+        handles = [Patch(facecolor=colours[name], alpha=0.55, label=f"{name} ({dates[0]})") for name in labels if name in drawn]
     for date in dates[1:]:
         later = {"type": "FeatureCollection", "features": [f for f in collection["features"] if f["properties"]["date"] == date]}
         _draw_boundaries(ax, to_map, later, bounds, colours, linestyle="--", linewidth=1.4, zorder=3)
@@ -132,14 +133,28 @@ def plot_zone_map(ds, *, tracks=None, title: str | None = None, figsize: tuple[f
         plot_lonlat(ax, to_map, lon, lat, color=f"C{i}", linewidth=1.6, zorder=4, label=str(label))
     if tracks is not None and len(tracks):
         _draw_tracks(ax, to_map, tracks, kind)
+    if dates and (tracks is None or not (tracks["kind"] == "dip").any()):
+        _mark_dip_poles(ax, to_map, ds, dates[0])
     line_handles, _ = ax.get_legend_handles_labels()
     handles.extend(line_handles)
     if handles:
         ax.legend(handles=handles, loc="lower left", fontsize=7, framealpha=0.85)
     thresholds = ds.attrs.get("thresholds_nT", [2000.0, 6000.0])
     ax.set_title(title or f"Weak horizontal field, H thresholds {', '.join(f'{t:g}' for t in thresholds)} nT "
-                 f"({ds.attrs.get('model', 'IGRF')}, {ds.attrs.get('alt_km', 0):g} km)", fontsize=9)
+                 f"({ds.attrs.get('model', 'IGRF')}, {ds.attrs.get('alt_km', 0):g} km)", fontsize=9, pad=16)
+    declutter_labels(ax)
     return plain_text(ax.figure)  # names from users drawn as typed
+
+
+def _mark_dip_poles(ax, to_map, ds, date: str) -> None:
+    """The dip pole(s) in view at ``date``, from the map's own model when it is a named one."""
+    from ..errors import HeadingrefError
+    from .basemap import draw_dip_poles
+
+    try:
+        draw_dip_poles(ax, to_map, date, model=ds.attrs.get("model"))
+    except HeadingrefError:  # a model file no longer at hand: the pole from the default model
+        draw_dip_poles(ax, to_map, date)
 
 
 def plot_pole_tracks(tracks, *, title: str | None = None, figsize: tuple[float, float] = (11.0, 5.8)):
@@ -186,7 +201,7 @@ def plot_error_map(ds, *, title: str | None = None, vmax_deg: float = 10.0, figs
     Where the budget is saturated by one term (``saturated_by`` of
     :func:`headingref.detector.heading_error_grid`) the map is hatched and a note says which term.
     """
-    from .basemap import draw_coastlines, map_axes
+    from .basemap import declutter_labels, draw_coastlines, map_axes
 
     kind = ds.attrs.get("area_kind", "north")
     limit = float(ds.attrs.get("limit_deg", 2.0))
@@ -216,5 +231,11 @@ def plot_error_map(ds, *, title: str | None = None, vmax_deg: float = 10.0, figs
     bar = ax.figure.colorbar(mesh, ax=ax, shrink=0.75, extend="max")
     bar.set_label("heading error budget, root-sum-square (deg)")
     area = ds.attrs.get("area_exceeding_limit_km2", float("nan"))
-    ax.set_title(title or f"Heading-reference error budget; contour {limit:g}°, beyond it {area:,.0f} km²", fontsize=9)
+    ax.set_title(title or f"Heading-reference error budget; contour {limit:g}°, beyond it {area:,.0f} km²", fontsize=9, pad=16)
+    year = ds.attrs.get("decimal_year", ds["time"].values if "time" in ds.coords and ds["time"].size == 1 else None)
+    if year is not None:
+        _mark_dip_poles(ax, to_map, ds, float(year))
+        if ax.get_legend_handles_labels()[0]:
+            ax.legend(loc="lower left", fontsize=7, framealpha=0.85)
+    declutter_labels(ax)  # after the colour bar narrowed the map
     return plain_text(ax.figure)  # names from users drawn as typed
