@@ -137,11 +137,11 @@ def test_heading_error_options_map_the_budget_section():
 
 
 def test_input_paths_list_every_file_the_scenario_reads():
-    # The demo names 4 route files, the bases, the swing and the runway CSVs (data/demo/scenario.toml);
+    # The demo names 4 route files, the bases, the swing, the runway and the navaid CSVs (data/demo/scenario.toml);
     # the report refuses to write into any folder holding one of them.
     sc = load_scenario(DEMO_SCENARIO)
     paths = sc.input_paths()
     expected = {DEMO_SCENARIO.resolve(), *(p["file"] for p in sc.routes["plan"]), sc.compass_bases["file"],
-                sc.swing["file"], sc.runways["file"]}
-    assert set(paths) == expected and len(expected) == 8
+                sc.swing["file"], sc.runways["file"], sc.navaids["file"]}
+    assert set(paths) == expected and len(expected) == 9
     assert all(p.is_absolute() and p.is_file() for p in paths)
