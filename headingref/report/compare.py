@@ -46,8 +46,9 @@ def _places(ctx: Context) -> pd.DataFrame:
         s = result.samples
         for lat, lon, alt, leg, dist in zip(s["lat_deg"], s["lon_deg"], s["alt_km"], s["from"] + "–" + s["to"],
                                             s["distance_along_leg_nm"], strict=True):
-            rows.append({"kind": "route", "name": f"{name}, {leg} {dist:.0f} NM", "route": name, "lat": lat, "lon": lon, "alt_km": alt})
-    return pd.DataFrame(rows, columns=["kind", "name", "route", "lat", "lon", "alt_km"])
+            rows.append({"kind": "route", "name": f"{name}, {leg} {dist:.0f} NM", "route": name, "where": f"{leg} {dist:.0f} NM",
+                         "lat": lat, "lon": lon, "alt_km": alt})
+    return pd.DataFrame(rows, columns=["kind", "name", "route", "where", "lat", "lon", "alt_km"])
 
 
 def _runways(ctx: Context, models: list) -> tuple[pd.DataFrame, pd.DataFrame]:
@@ -71,14 +72,14 @@ def _runways(ctx: Context, models: list) -> tuple[pd.DataFrame, pd.DataFrame]:
         table[name] = series.reindex(pd.MultiIndex.from_frame(points[["airport", "runway_id"]])).to_numpy()
     names = list(implied)
     table["depends_on_model"] = table[names].nunique(axis=1) > 1
-    places = pd.DataFrame({"kind": "runway", "name": points["airport"] + " " + points["runway_id"], "route": None,
+    places = pd.DataFrame({"kind": "runway", "name": points["airport"] + " " + points["runway_id"], "route": "", "where": "",
                            "lat": points["lat"], "lon": points["lon"], "alt_km": points["alt_km"]})
     return places, table
 
 
 def _wide(long: pd.DataFrame, places: pd.DataFrame, names: list[str]) -> pd.DataFrame:
     """One row per place: declination per model (or its flag), largest |difference| to the reference, significant."""
-    wide = places[["kind", "name"]].reset_index(drop=True).copy()
+    wide = places[["kind", "name", "route", "where"]].reset_index(drop=True).copy()
     wide["position"] = [latlon_text(a, b) for a, b in zip(places["lat"], places["lon"], strict=True)]
     flagged = np.zeros(len(wide), dtype=bool)
     for name in names:
@@ -95,6 +96,8 @@ def _wide(long: pd.DataFrame, places: pd.DataFrame, names: list[str]) -> pd.Data
         wide["max_diff_deg"] = np.where(flagged, np.nan, np.nanmax(diff, axis=1))
         wide["combined_uncertainty_deg"] = np.where(flagged, np.nan, np.nanmax(combined, axis=1))
     wide["significant"] = significant.any(axis=1) & ~flagged
+    wide["max_diff_text"] = [f"{v:.2f}" if np.isfinite(v) else "" for v in wide["max_diff_deg"]]
+    wide["combined_text"] = [f"{v:.2f}" if np.isfinite(v) else "" for v in wide["combined_uncertainty_deg"]]
     wide["flag"] = ["; ".join(dict.fromkeys(f for f in long[long["place"] == i]["declination_flag"].astype(str) if f))
                     for i in range(len(wide))]
     return wide
@@ -141,8 +144,8 @@ def job(ctx: Context) -> Section:
     if not fixed.empty:
         levels = ["bad" if s else "warn" if f else "" for s, f in zip(fixed["significant"], fixed["flag"], strict=True)]
         columns = {"kind": "place", "name": "name", "position": "position", **{n: f"{n} °" for n in names},
-                   "max_diff_deg": f"largest |difference| to {ref} °", "combined_uncertainty_deg": "combined 1σ °",
-                   "significant": "significant"}
+                   "max_diff_text": f"largest |difference| to {ref} °", "combined_text": "combined 1σ °",
+                   "significant": "significant", "flag": "flag"}
         parts.append(Part("Compass bases and runways", tables=[Table(fixed, columns, levels)]))
         for r in fixed[fixed["significant"]].itertuples():
             summary.append(SummaryItem(f"the models disagree by {r.max_diff_deg:.2f}°, more than their combined uncertainty "
@@ -167,18 +170,19 @@ def job(ctx: Context) -> Section:
             i = int(np.nanargmax(worst)) if np.isfinite(worst).any() else 0
             per_route.append({"route": name, "samples": len(mine), "significant": int(mine["significant"].sum()),
                               "flagged": int((mine["flag"] != "").sum()), "max_diff_deg": worst[i] if worst.size else np.nan,
-                              "where": mine["name"].iat[i].removeprefix(f"{name}, ")})
+                              "max_diff_text": f"{worst[i]:.2f}" if worst.size and np.isfinite(worst[i]) else "",
+                              "where": mine["where"].iat[i]})
             if mine["significant"].any():
                 summary.append(SummaryItem(f"{int(mine['significant'].sum())} of {len(mine)} samples where the models disagree "
                                            f"by more than their combined uncertainty; largest {worst[i]:.2f}° at "
                                            f"{per_route[-1]['where']}.", name, "warn"))
         table = pd.DataFrame(per_route)
         shown = route_rows[route_rows["significant"] | (route_rows["flag"] != "")].head(TABLE_LIMIT)
-        columns = {"name": "sample", "position": "position", **{n: f"{n} °" for n in names},
-                   "max_diff_deg": f"largest |difference| to {ref} °", "combined_uncertainty_deg": "combined 1σ °", "flag": "flag"}
+        columns = {"route": "route", "where": "leg and distance along it", "position": "position", **{n: f"{n} °" for n in names},
+                   "max_diff_text": f"largest |difference| to {ref} °", "combined_text": "combined 1σ °", "flag": "flag"}
         route_part = Part("Along the routes", tables=[Table(table, {"route": "route", "samples": "samples",
                                                                     "significant": "significant samples", "flagged": "flagged samples",
-                                                                    "max_diff_deg": "largest |difference| °", "where": "where"})])
+                                                                    "max_diff_text": "largest |difference| °", "where": "where"})])
         if not shown.empty:
             route_part.text.append(f"The samples where the models disagree significantly or a model flags the declination "
                                    f"({len(shown)} listed):")

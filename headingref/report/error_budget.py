@@ -79,7 +79,7 @@ def job(ctx: Context) -> Section:
                      f"slaving stays on at {b['slaving_rate_deg_per_min']:g}°/min and drags the gyro toward the tilted "
                      f"detector by at most rate × duration = {b['slaving_rate_deg_per_min'] * b['turn_duration_s'] / 60.0:g}° "
                      "or the tilt error, whichever is smaller.")
-    saturated = [r for r in rows if r["saturated_by"] not in (_TERMS["none"],) and r["saturated_percent"] > 0]
+    saturated = [r for r in rows if r["saturated_by"] != _TERMS["none"] and r["saturated_percent"] >= 1.0]
     if saturated:
         turn_text += " " + " ".join(
             f"Case '{r['case']}': where the budget exceeds the limit, {r['saturated_percent']:.0f}% of the area sits at a "

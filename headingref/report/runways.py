@@ -37,7 +37,7 @@ VERDICT_WORDS = {
 
 _RUNWAY_COLUMNS = {
     "airport": "airport", "runway_id": "runway", "runway_magnetic_deg": "runway magnetic °", "variation_deg": "variation °",
-    "implied": "implied", "verdict_text": "verdict", "margin_deg": "margin to boundary °", "band_deg": "band °",
+    "implied": "implied", "verdict_text": "verdict", "margin_text": "margin to boundary °", "band_text": "band °",
     "last_fit_text": "painted designator last fitted", "changes_text": "changes within the horizon", "pair_check": "pair check",
 }
 _END_COLUMNS = {
@@ -47,7 +47,7 @@ _END_COLUMNS = {
     "reason": "reason",
 }
 _CHANGE_COLUMNS = {"change_date": "changes on", "airport": "airport", "runway_id": "runway", "change": "designators",
-                   "years_to_change": "in years"}
+                   "years_text": "in years"}
 _NOT_CHECKED_COLUMNS = {"input_row": "row", "airport": "airport", "runway": "runway", "reason": "reason"}
 
 
@@ -71,7 +71,8 @@ def _change_events(changes: pd.DataFrame) -> pd.DataFrame:
     grouped = changes.groupby(["airport", "runway_id", "change_date"], sort=False)
     rows = [{"change_date": date, "airport": airport, "runway_id": rid,
              "change": f"{'/'.join(g['designator_before'])} → {'/'.join(g['next_designator'])}",
-             "after": "/".join(g["next_designator"]), "years_to_change": float(g["years_to_change"].iloc[0])}
+             "after": "/".join(g["next_designator"]), "years_to_change": float(g["years_to_change"].iloc[0]),
+             "years_text": f"{float(g['years_to_change'].iloc[0]):.1f}"}
             for (airport, rid, date), g in grouped]
     return pd.DataFrame(rows).sort_values(["change_date", "airport", "runway_id"], kind="stable").reset_index(drop=True)
 
@@ -88,12 +89,14 @@ def _runway_table(table: pd.DataFrame, events: pd.DataFrame, check_date: str) ->
             "variation_deg": first["variation_deg"], "implied": "/".join(g["designator_implied"]), "verdict": first["verdict"],
             "verdict_text": VERDICT_WORDS.get(first["verdict"], first["verdict"]), "margin_deg": first["margin_deg"],
             "band_deg": first["band_deg"], "last_fit_date": first["last_fit_date"],
+            "margin_text": f"{first['margin_deg']:.2f}", "band_text": f"{first['band_deg']:.2f}",
             "last_fit_text": _last_fit_words(first["last_fit_date"], check_date),
             "changes_text": "; ".join(f"{d}: {c}" for d, c in zip(mine["change_date"], mine["change"], strict=True)),
             "first_change": mine["change_date"].iloc[0] if len(mine) else "",
             "pair_check": ", ".join(dict.fromkeys(g["pair_check"].astype(str))), "status": ", ".join(dict.fromkeys(g["status"])),
         })
-    return pd.DataFrame(rows, columns=[*_RUNWAY_COLUMNS, "verdict", "last_fit_date", "first_change", "status"])
+    return pd.DataFrame(rows, columns=[*_RUNWAY_COLUMNS, "verdict", "margin_deg", "band_deg", "last_fit_date", "first_change",
+                                       "status"])
 
 
 def _level(verdict: str, status: str, changing: bool) -> str:
@@ -147,7 +150,14 @@ def job(ctx: Context) -> Section:
     events = _change_events(changes)
     runways = _runway_table(table, events, s["date"])
     levels = [_level(v, st, bool(c)) for v, st, c in zip(runways["verdict"], runways["status"], runways["first_change"], strict=True)]
-    first, *rest = result.summary_text().splitlines()
+    first = result.summary_text().splitlines()[0]
+    counts = [
+        f"{s['rows']} runway ends ({s['checked']} checked, {s['errors']} with errors, {s['warnings']} with warnings).",
+        f"Verdicts by end: {s['match']} fit, {s['match_near_boundary']} still fit near a boundary, {s['mismatch_within_band']} "
+        f"no longer fit within the band, {s['mismatch']} no longer fit (band: {s['band']}).",
+        f"Painted designators that no longer fit: {s['stale']} ends, {s['never_fitted']} of them never fitted since {s['search_from']}.",
+        f"Implied designator changes before {s['forecast_end']}: {s['change_events']} at {s['changes_within_horizon']} ends.",
+    ]
     main = Part(text=[
         first + ".",
         "A runway is renamed as a pair: both ends are decided on one magnetic azimuth, the runway's (the circular mean of "
@@ -158,7 +168,7 @@ def job(ctx: Context) -> Section:
         "across a boundary that lies within the band: it has already changed, within the uncertainty); 'no longer fits'. "
         "For a designator that no longer fits, 'last fitted' gives the last date it did, searched back to the model's "
         f"start ({s['search_from']}): an old painting shows as 'stale since', a designator that never fitted as a likely "
-        "data error."], items=[line.strip() for line in rest])
+        "data error."], items=counts)
     shown, shown_levels = runways, levels
     if len(table) > TABLE_LIMIT:  # a large batch: list only the runways that need attention
         keep = [level != "" for level in levels]
