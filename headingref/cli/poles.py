@@ -47,7 +47,8 @@ def _years(text: str) -> tuple[float, float]:
     try:
         if len(parts) != 2:
             raise ValueError
-        return parse_number(parts[0], "--years"), parse_number(parts[1], "--years")  # plain ASCII decimal only
+        # plain ASCII decimal only; nan is let through to be refused as a date by decimal_year
+        return parse_number(parts[0], "--years", allow_nan=True), parse_number(parts[1], "--years", allow_nan=True)
     except (ValueError, InputError):
         raise InputError(f"--years {text!r} is not understood; give FIRST:LAST such as 1990:2030") from None
 
