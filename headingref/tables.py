@@ -9,6 +9,10 @@
   workbook), with ``attrs['source']`` the file name, so that every later error names its row.
 - :func:`write_table` writes a result table as CSV or ``.xlsx`` (by the file name), with values
   rounded per column and, in a workbook, the unit beside each column name in the header.
+- :func:`write_output` is what every command's ``--output`` calls: a name ending in ``.xlsx``
+  gives a workbook (units read from the column names, :func:`column_units`; values rounded by
+  unit, :func:`column_decimals`), anything else the CSV of :func:`headingref.io.write_csv`.
+  Text cells that a spreadsheet would run as a formula are made inert in both (OWASP).
 
 Writing goes through :func:`headingref.io.atomic_path` (temporary file, then rename).
 """
@@ -24,9 +28,9 @@ import numpy as np
 import pandas as pd
 
 from .errors import InputError
-from .io import MAX_TABLE_BYTES, atomic_path, read_table
+from .io import MAX_TABLE_BYTES, atomic_path, read_table, spreadsheet_safe, write_csv
 
-__all__ = ["apply_column_mapping", "parse_column_mapping", "read_source", "write_table"]
+__all__ = ["apply_column_mapping", "column_decimals", "column_units", "parse_column_mapping", "read_source", "write_output", "write_table"]
 
 EXCEL_SUFFIXES = (".xlsx", ".xlsm")
 
@@ -202,6 +206,7 @@ def write_table(
     for name in out.columns:
         if out[name].dtype.kind == "f":
             out[name] = out[name].round(decimals.get(name, 6))
+    out = spreadsheet_safe(out)  # formula-like text made inert in CSV and workbook alike (OWASP CSV injection)
     if target.suffix.lower() not in EXCEL_SUFFIXES:
         with atomic_path(target) as tmp:
             out.to_csv(tmp, index=False)
@@ -230,3 +235,51 @@ def _excel_value(value):
     if isinstance(value, (int, np.integer)):
         return int(value)
     return str(value)
+
+
+# unit words of headingref's column names (the naming rule in DEVELOPERS.md): shown unit, decimals kept
+_UNIT_SUFFIXES = (("km2", "km²", 1), ("deg", "deg", 3), ("nT", "nT", 1), ("km", "km", 3), ("nm", "NM", 2),
+                  ("m", "m", 2), ("ft", "ft", 0), ("percent", "%", 2), ("s", "s", 2), ("min", "min", 2))
+_RATE = "_per_year"
+
+
+def _unit_of(name: str) -> tuple[str, int] | None:
+    text = str(name)
+    if text == "decimal_year":
+        return "year", 6
+    rate = _RATE in text
+    tokens = text.replace(_RATE, "").split("_")
+    if (tokens[-1] == "deg" and ("lat" in tokens or "lon" in tokens)) or tokens[0] in ("lat", "lon") and "deg" not in tokens:
+        return "deg", 6  # positions (also the pole tables' bare lat, lon): 0.000001 deg is 0.1 m
+    for token in reversed(tokens[1:]):  # the unit is the last unit-like token after the first word
+        for suffix, unit, places in _UNIT_SUFFIXES:
+            if token == suffix:
+                return (f"{unit}/year", places + 1) if rate else (unit, places)
+    return None
+
+
+def column_units(columns: Sequence[str]) -> dict[str, str]:
+    """The unit of each column whose name carries one (``variation_deg`` -> ``deg``, ``H_nT_per_year`` -> ``nT/year``)."""
+    return {str(c): found[0] for c in columns if (found := _unit_of(c)) is not None}
+
+
+def column_decimals(columns: Sequence[str]) -> dict[str, int]:
+    """Decimals kept per column by unit: deg 3 (0.001 deg = 3.6 arc-seconds), nT 1, km 3, NM 2, year 6, rates one more."""
+    return {str(c): found[1] for c in columns if (found := _unit_of(c)) is not None}
+
+
+def write_output(target: str | os.PathLike, frame: pd.DataFrame, units: Mapping[str, str] | None = None,
+                 decimals: Mapping[str, int] | None = None, sheet: str = "headingref", float_format: str | None = None) -> Path:
+    """A command's table output: ``.xlsx`` as a rounded workbook with units in the header, else CSV.
+
+    A workbook gets :func:`column_units` and :func:`column_decimals` from the column names,
+    overridden by ``units`` and ``decimals``; it holds at most 1,048,575 data rows (the .xlsx
+    sheet limit, ECMA-376). A CSV is written by :func:`headingref.io.write_csv` (values as
+    computed, ``float_format`` if given). Both make formula-like text inert. Atomic.
+    """
+    if Path(target).suffix.lower() not in EXCEL_SUFFIXES:
+        return write_csv(target, frame, float_format=float_format)
+    if len(frame) > 1_048_575:
+        raise InputError(f"{target}: {len(frame):,} rows do not fit in one .xlsx sheet (1,048,575 at most); write a .csv")
+    return write_table(target, frame, units={**column_units(frame.columns), **dict(units or {})},
+                       decimals={**column_decimals(frame.columns), **dict(decimals or {})}, sheet=sheet)

@@ -76,6 +76,7 @@ def run(args) -> int:
     from ..compass_base import SITE_CAUTION, base_upkeep, setting_out, setting_out_parameters
     from ..headings import format_variation
     from ..io import write_csv
+    from ..tables import write_output
     from .common import check_outputs
 
     check_outputs(files=[args.output, args.setting_out], inputs=[args.input, args.model])
@@ -111,7 +112,7 @@ def run(args) -> int:
         print("setting-out lines use the variation marked on each base for the swing (rounded), not the unrounded prediction")
     print(SITE_CAUTION)
     if args.output:
-        write_csv(args.output, table)
+        write_output(args.output, table)  # .xlsx: a workbook with units in the header
     if args.setting_out:
         write_csv(args.setting_out, points)
     return 0

@@ -98,10 +98,10 @@ def _run_map(args, models) -> int:
 def run(args) -> int:
     import sys
 
-    from .. import io
     from ..compare import compare_models, parse_models
     from ..errors import InputError
     from ..notices import CAUTION
+    from ..tables import write_output
     from .common import check_outputs
     from .field import _inputs
 
@@ -119,7 +119,7 @@ def run(args) -> int:
     table = compare_models(places.lat, places.lon, places.years, models, alt_km=places.alt, names=places.names,
                            allow_extrapolation=args.extrapolate)
     if args.output:
-        io.write_csv(args.output, table)
+        write_output(args.output, table)  # .xlsx: a workbook with units in the header
     view = table[["name", "model", "declination_deg", "declination_uncertainty_deg", "declination_diff_deg",
                   "horizontal_nT", "horizontal_diff_nT", "significant"]].copy()
     view.columns = ["place", "model", "decl_deg", "sigma_deg", "diff_deg", "H_nT", "dH_nT", "beyond_sigma"]

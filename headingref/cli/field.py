@@ -329,14 +329,18 @@ def _stream(places: _Places, model, extrapolate: bool, sinks, keep: bool):
 
 def run(args) -> int:
     import contextlib
+    import io as _io
     import warnings
+    from pathlib import Path
 
     import numpy as np
 
     from .. import io
+    from ..errors import InputError
     from ..field import FLAG_REASONS, NO_DECLINATION_NT, ZONE_NAMES
     from ..model import load_model
     from ..notices import CAUTION
+    from ..tables import EXCEL_SUFFIXES, write_output
     from ..units import format_dm, timestamp_from_decimal_year
     from .common import check_outputs
 
@@ -348,13 +352,20 @@ def run(args) -> int:
         model.check_dates(np.atleast_1d(np.asarray(places.years, dtype=np.float64)), args.extrapolate)
     n = len(places.lat)
     keep = n <= TABLE_ROWS and not args.csv
+    workbook = args.output and Path(args.output).suffix.lower() in EXCEL_SUFFIXES
+    if workbook and n > 1_048_575:
+        raise InputError(f"--output {args.output}: {n:,} rows do not fit in one .xlsx sheet (1,048,575 at most); write a .csv")
     with contextlib.ExitStack() as stack:
         sinks = []
-        if args.output:
-            sinks.append(stack.enter_context(io.atomic_file(args.output, "w")))
+        if args.output:  # a workbook is made from the same CSV text once every row is computed
+            sinks.append(_io.StringIO() if workbook else stack.enter_context(io.atomic_file(args.output, "w")))
         if args.csv:
             sinks.append(sys.stdout)
         summary, f = _stream(places, model, args.extrapolate, sinks, keep)
+    if workbook:
+        import pandas as pd
+
+        write_output(args.output, pd.read_csv(_io.StringIO(sinks[0].getvalue()), keep_default_na=False, na_values=[""]))
     if args.csv:
         return 0
     model_name = args.model or "IGRF-14"

@@ -30,15 +30,15 @@ def register(subparsers) -> None:
 def run(args) -> int:
     import sys
 
-    from .. import io
     from ..model import list_models
     from ..notices import CAUTION
+    from ..tables import write_output
     from .common import check_outputs
 
     check_outputs(files=[args.output])
     table = list_models()
     if args.output:
-        io.write_csv(args.output, table)
+        write_output(args.output, table)  # .xlsx: a workbook with units in the header
     for row in table.itertuples():
         print(f"{row.name:<10} valid {row.valid_from:g} to {row.valid_to:g}  degree {row.nmax:>3} "
               f"(secular variation to {row.sv_nmax})")

@@ -56,9 +56,9 @@ def _years(text: str) -> tuple[float, float]:
 def run(args) -> int:
     import pandas as pd
 
-    from ..io import write_csv
     from ..notices import CAUTION
     from ..poles import TRACK_COLUMNS, dip_poles, geomagnetic_poles, pole_tracks
+    from ..tables import write_output
     from ..units import format_dm
     from .common import check_outputs
 
@@ -73,7 +73,7 @@ def run(args) -> int:
         table = pd.concat([dip, geo], ignore_index=True)
     table = table[list(TRACK_COLUMNS)]
     if args.output:
-        write_csv(args.output, table, float_format="%.6f")
+        write_output(args.output, table, float_format="%.6f")  # .xlsx: a workbook with units in the header
     view = table[["date", "pole", "kind"]].copy()
     view["latitude"] = [format_dm(v, "N", "S", 1) for v in table.lat]
     view["longitude"] = [format_dm(v, "E", "W", 1) for v in table.lon]

@@ -78,9 +78,10 @@ def run(args) -> int:
     import json
 
     from ..field import BLACKOUT_NT, CAUTION_NT
-    from ..io import all_or_nothing, write_csv, write_text
+    from ..io import all_or_nothing, write_text
     from ..notices import CAUTION
     from ..routes import route, route_geojson, route_kml
+    from ..tables import write_output
     from .common import check_outputs
 
     check_outputs(files=[args.output, args.samples, args.geojson, args.kml], figures=[args.plot, args.profile],
@@ -115,9 +116,9 @@ def run(args) -> int:
     print(CAUTION)
 
     with all_or_nothing():  # every output, or none (a full disk half-way leaves the old files)
-        write_csv(args.output, legs)
+        write_output(args.output, legs)  # .xlsx: a workbook with units in the header
         if args.samples:
-            write_csv(args.samples, result.samples)
+            write_output(args.samples, result.samples)
         if geojson_text is not None:
             write_text(args.geojson, geojson_text + "\n")
         if kml_text is not None:

@@ -114,6 +114,7 @@ def _details(args, result_date):
 def run(args) -> int:
     from ..io import all_or_nothing, write_csv, write_text
     from ..swing import analyse_swing, card_html, read_swing_csv
+    from ..tables import write_output
     from .common import check_outputs
 
     check_outputs(files=[args.output, args.card, args.residuals, args.card_html], figures=[args.plot, args.card_plot],
@@ -166,7 +167,7 @@ def run(args) -> int:
     print("  steer compass " + " ".join(result.card.steer_compass))
     with all_or_nothing():  # every output, or none
         if args.output:
-            write_csv(args.output, result.summary_row())
+            write_output(args.output, result.summary_row())  # .xlsx: a workbook with units in the header
         if args.card:
             write_csv(args.card, result.card)
         if args.residuals:

@@ -5,7 +5,7 @@ from __future__ import annotations
 import sys
 
 EXAMPLES = """\
-  headingref zones --cap north --date 2026-12-02
+  headingref zones --cap north --date 2026-12-02 --output areas.xlsx
   headingref zones --cap south --date 2026-12-02 --thresholds 2000,6000 --geojson south.geojson --kml south.kml --png south.png
   headingref zones --cap north --date 2015-01-01 --date2 2026-12-02 --geojson moved.geojson --png moved.png
   headingref zones --region 60,85,150,-120 --date 2027.0 --resolution 0.25 --netcdf region.nc
@@ -43,6 +43,7 @@ def register(subparsers) -> None:
                         help="increasing H thresholds in nT (default 2000,6000: blackout, caution)")
     parser.add_argument("--resolution", type=float, default=0.5, metavar="DEG", help="grid spacing in degrees (default 0.5)")
     parser.add_argument("--alt", default="0", help="height above the WGS84 ellipsoid: km, or 35000 ft, FL350 (default 0)")
+    parser.add_argument("--output", metavar="FILE", help="the area table (.csv, or .xlsx with units in the header)")
     parser.add_argument("--geojson", metavar="FILE", help="zone boundaries as GeoJSON polygons")
     parser.add_argument("--kml", metavar="FILE", help="zone polygons as KML 2.2 for globe viewers (cut into pieces "
                         "of at most 90 degrees of longitude, safe across the antimeridian and round the poles)")
@@ -112,11 +113,12 @@ def run(args) -> int:
     from ..io import all_or_nothing, write_text
     from ..netcdf import write_netcdf
     from ..notices import CAUTION
+    from ..tables import write_output
     from ..units import parse_height_km
     from ..zones import write_geojson, zone_areas, zone_change, zone_geojson, zone_kml, zones
     from .common import check_outputs
 
-    check_outputs(files=[args.geojson, args.kml, args.netcdf], figures=[args.png, args.budget_png], inputs=[args.model])
+    check_outputs(files=[args.output, args.geojson, args.kml, args.netcdf], figures=[args.png, args.budget_png], inputs=[args.model])
     area = args.cap or args.region
     if args.budget_png:  # check the budget options before anything is computed or written
         _budget_options_checked(args)
@@ -145,6 +147,9 @@ def run(args) -> int:
     print(f"Weak-field zones, {place}, grid {args.resolution:g} deg, model {ds.attrs.get('model', 'IGRF-14')} (areas in km^2)")
     print(text)
     with all_or_nothing():  # every output, or none
+        if args.output:
+            write_output(args.output, table.assign(zone=table["zone"].astype(str)), sheet="zones")
+            print(f"wrote {args.output}")
         if args.geojson:
             write_geojson(args.geojson, collection)
             print(f"wrote {args.geojson} ({len(collection['features'])} features)")
