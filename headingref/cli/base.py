@@ -89,7 +89,7 @@ def run(args) -> int:
     for _, row in table.iterrows():
         print(f"{row['name']} ({row.lat_deg:.4f}, {row.lon_deg:.4f}), swing {row.swing_date}")
         print(
-            f"  model variation {row.model_variation_deg:+.2f}° changing {row.annual_change}; "
+            f"  model variation {format_variation(row.model_variation_deg)} changing {row.annual_change}; "
             f"change since survey of {row.survey_date}: {row.model_change_since_survey_deg:+.2f}°"
         )
         print(f"  mark {row.variation_to_mark} (record {row.variation_record}); tolerance {row.tolerance_deg:g}°")
