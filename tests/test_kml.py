@@ -52,8 +52,13 @@ def _placemarks(text: str) -> dict[str, list[list[np.ndarray]]]:
     for mark in root.iter(NS + "Placemark"):
         zone = mark.find(NS + "name").text.split()[0]
         assert mark.find(NS + "styleUrl").text.startswith("#zone")
+        # child order of the schema's sequences (07-147r2: Feature's name, description, styleUrl
+        # before the Geometry; Polygon's tessellate, then outerBoundaryIs, then innerBoundaryIs)
+        assert [c.tag[len(NS):] for c in mark] == ["name", "description", "styleUrl", "MultiGeometry"]
         polygons = []
         for polygon in mark.iter(NS + "Polygon"):
+            tags = [c.tag[len(NS):] for c in polygon]
+            assert tags[:2] == ["tessellate", "outerBoundaryIs"] and set(tags[2:]) <= {"innerBoundaryIs"}
             outer = polygon.findall(f"{NS}outerBoundaryIs/{NS}LinearRing/{NS}coordinates")
             assert len(outer) == 1  # exactly one outer boundary per Polygon (07-147r2, 10.8)
             inner = polygon.findall(f"{NS}innerBoundaryIs/{NS}LinearRing/{NS}coordinates")
