@@ -24,3 +24,16 @@ def test_notebook_runs(path, tmp_path, monkeypatch):
     client.execute()
     errors = [o for c in notebook.cells if c.cell_type == "code" for o in c.outputs if o.output_type == "error"]
     assert not errors
+    # warnings reach the reader as status lines (headingref.workbench.with_warnings), not raw stderr blocks
+    stderr = [o.text for c in notebook.cells if c.cell_type == "code" for o in c.outputs
+              if o.output_type == "stream" and o.name == "stderr"]
+    assert not stderr, stderr
+
+
+@pytest.mark.parametrize("path", NOTEBOOKS, ids=[p.name for p in NOTEBOOKS])
+def test_notebook_opens_with_your_inputs(path):
+    """The first code cell is the one a user edits, under a "Your inputs" heading (issue 15)."""
+    cells = nbformat.read(path, as_version=4).cells
+    first_code = next(i for i, c in enumerate(cells) if c.cell_type == "code")
+    assert any(c.cell_type == "markdown" and "## Your inputs" in c.source for c in cells[:first_code])
+    assert "import ipywidgets" not in cells[first_code].source and "=" in cells[first_code].source
