@@ -179,6 +179,10 @@ class Model:
     meta: dict = field(default_factory=dict)
     error_spans: tuple = ()
 
+    def __repr__(self) -> str:  # the coefficient arrays are too long to print
+        return (f"Model(name={self.name!r}, nmax={self.nmax}, valid {self.valid_from:g}-{self.valid_to:g}, "
+                f"{len(self.starts)} interval(s), source={self.source!r})")
+
     def __post_init__(self):
         if not self.error_spans:
             object.__setattr__(self, "error_spans", error_spans_for(self.name))

@@ -327,6 +327,12 @@ def _stream(places: _Places, model, extrapolate: bool, sinks, keep: bool):
 # --------------------------------------------------------------------------- the command
 
 
+def _error_model_label(model, year: float) -> str:
+    """Which declination error model gave the uncertainty (a WMM edition, or the proxy used for IGRF)."""
+    error_model = model.error_model(float(year))
+    return f"error model {error_model.label}" if error_model is not None else "no error model for this date"
+
+
 def run(args) -> int:
     import contextlib
     import io as _io
@@ -380,14 +386,15 @@ def run(args) -> int:
         else:
             declination = (f"{r['declination_deg']:9.3f}°" if np.isfinite(r["declination_deg"]) else f"{'':>10}") + (
                 f"   {format_dm(r['declination_deg'])}")
-            uncertainty = f"{r['declination_uncertainty_deg']:9.2f}°   (1 sigma, excludes crustal anomalies)"
+            uncertainty = (f"{r['declination_uncertainty_deg']:9.2f}°   (1 sigma, excludes crustal anomalies)"
+                           if np.isfinite(r["declination_uncertainty_deg"]) else f"{'not given':>10}")
         change = f"{abs(rate_min):9.1f}′/yr {'E' if rate_min >= 0 else 'W'}" if np.isfinite(rate_min) else f"{'undefined':>9}"
         lines = [
             f"Field at {format_dm(r['lat_deg'], 'N', 'S', 1)} {format_dm(r['lon_deg'], 'E', 'W', 1)}, "
             f"{r['alt_km']:g} km above WGS84, {when} ({r['decimal_year']:.3f}), model {model_name}",
             f"  declination (variation)  {declination}" + (f"   [{flag}]" if flag else ""),
             f"  annual change            {change}",
-            f"  uncertainty (WMM model)  {uncertainty}",
+            f"  uncertainty              {uncertainty}   [{_error_model_label(model, r['decimal_year'])}]",
             f"  inclination (dip)        {r['inclination_deg']:9.3f}°   ({r['inclination_deg_per_year'] * 60:+.1f}′/yr)",
             f"  horizontal H             {r['horizontal_nT']:9.1f} nT ({r['horizontal_nT_per_year']:+.1f} nT/yr)   "
             f"zone: {ZONE_NAMES[r['zone_code']]}",
