@@ -188,3 +188,23 @@ def test_frame_limits():
     assert min(x1 - x0, y1 - y0) >= 0.6 * max(x1 - x0, y1 - y0) - 1e-6
     with pytest.raises(headingref.InputError, match="none of the points"):
         basemap.frame_limits(to_map, [0.0], [-90.0])  # the south pole is off the north polar map
+
+
+def test_region_zone_map_lists_only_tracks_in_view():
+    # the geomagnetic poles (about 80 N 73 W and 80 S 107 E; pyproj-projected below) lie outside a
+    # region over the Chukchi and Beaufort seas; the dip-pole track of the 1990s passes through it
+    tracks = headingref.pole_tracks(1990, 2030, 10)
+    ds = headingref.zones((60.0, 85.0, 150.0, -120.0), DATE, resolution_deg=2.0)
+    fig = plot_zone_map(ds, tracks=tracks)
+    ax = _map_axes(fig)
+    labels = [t.get_text() for t in ax.get_legend().get_texts()]
+    assert len(labels) == len(set(labels))  # each entry once
+    to_map = basemap._transformer(basemap.map_crs("region", (60.0, 85.0, 150.0, -120.0)))
+    x0, x1 = ax.get_xlim()
+    y0, y1 = ax.get_ylim()
+    for kind, group in tracks.groupby("kind"):
+        x, y = to_map.transform(group.lon.to_numpy(), group.lat.to_numpy())
+        seen = bool(np.any((x >= x0) & (x <= x1) & (y >= y0) & (y <= y1)))
+        listed = sum(t.startswith(f"{kind} pole") for t in labels)
+        assert listed == int(seen), kind
+    assert not any(t.startswith("geomagnetic") for t in labels) and any(t.startswith("dip pole") for t in labels)

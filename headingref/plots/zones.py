@@ -51,9 +51,15 @@ def _band_colours(labels: list[str]) -> dict[str, str]:
 def _draw_tracks(ax, to_map, tracks, hemisphere: str | None) -> None:
     from .basemap import plot_lonlat, scatter_lonlat
 
+    x0, x1 = sorted(ax.get_xlim())
+    y0, y1 = sorted(ax.get_ylim())
     for (kind, pole), group in tracks.groupby(["kind", "pole"], sort=True):
         if hemisphere not in (None, "region") and pole != hemisphere:
             continue
+        gx, gy = to_map.transform(group.lon.to_numpy(), group.lat.to_numpy(), errcheck=False)
+        with np.errstate(invalid="ignore"):
+            if not np.any((gx >= x0) & (gx <= x1) & (gy >= y0) & (gy <= y1)):
+                continue  # a track wholly outside the view is neither drawn nor listed in the legend
         group = group.sort_values("decimal_year")
         style = _TRACK_STYLE.get(kind, {"color": "k", "marker": "x"})
         plot_lonlat(ax, to_map, group.lon, group.lat, color=style["color"], linewidth=1.2, zorder=4,
