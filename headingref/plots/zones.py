@@ -153,14 +153,14 @@ def plot_zone_map(ds, *, tracks=None, title: str | None = None, figsize: tuple[f
 
 
 def _mark_dip_poles(ax, to_map, ds, date: str) -> None:
-    """The dip pole(s) in view at ``date``, from the map's own model when it is a named one."""
+    """The dip pole(s) in view at ``date``, from the map's own model (by its name; IGRF-14 if none)."""
     from ..errors import HeadingrefError
     from .basemap import draw_dip_poles
 
     try:
         draw_dip_poles(ax, to_map, date, model=ds.attrs.get("model"))
-    except HeadingrefError:  # a model file no longer at hand: the pole from the default model
-        draw_dip_poles(ax, to_map, date)
+    except HeadingrefError:  # the grid's model file is no longer at hand: no pole from another model
+        pass
 
 
 def plot_pole_tracks(tracks, *, title: str | None = None, figsize: tuple[float, float] = (11.0, 5.8)):
