@@ -2,9 +2,11 @@
 
 An *explorer* is a row of controls above an output. When a control changes, the explorer calls
 your ``update`` function with every control's value by name and shows what it returns (figures,
-tables, text) in the output, replacing what was there. Two habits make explorers stable in
+tables, text) in the output, replacing what was there. Three habits make explorers stable in
 JupyterLab, where a control's change can arrive on another thread while later cells still run:
 
+- a change that arrives on another thread is redrawn on the kernel's main thread (its asyncio
+  loop, between cells), so an explorer never draws while a cell draws;
 - the output is replaced in one step (``Output.outputs`` set to finished display data), never
   captured through ``with output:`` (which routes whatever the kernel prints meanwhile into it);
 - figures are :class:`matplotlib.figure.Figure` objects rendered to PNG here, never pyplot's
@@ -109,6 +111,7 @@ def explorer(update: Callable[..., Any], controls: Mapping[str, Any], title: str
 
     output = widgets.Output()
     lock = threading.Lock()
+    home, loop = threading.current_thread(), _running_loop()
 
     def redraw(_change=None) -> None:
         values = {name: control.value for name, control in controls.items()}
@@ -119,13 +122,32 @@ def explorer(update: Callable[..., Any], controls: Mapping[str, Any], title: str
                 outputs = _as_outputs(status_line(f"{type(error).__name__}: {error}", level="error"))
             output.outputs = outputs
 
+    def changed(change=None) -> None:
+        # JupyterLab may deliver a control's change on a comm subshell thread while the notebook's
+        # cells still run (and draw) on the main thread; matplotlib's font cache is shared, so draw
+        # on the kernel's main thread, between cells, instead.
+        if loop is not None and threading.current_thread() is not home and not loop.is_closed():
+            loop.call_soon_threadsafe(redraw)
+        else:
+            redraw(change)
+
     for control in controls.values():
-        control.observe(redraw, names="value")
+        control.observe(changed, names="value")
     redraw()
     children = ([widgets.HTML(f"<b>{title}</b>")] if title else []) + [widgets.HBox(list(controls.values()), layout=widgets.Layout(flex_flow="row wrap")), output]
     box = widgets.VBox(children)
     box.add_class("headingref-explorer")
     return box
+
+
+def _running_loop():
+    """The asyncio loop running on this thread (the kernel's main loop inside a cell), or None."""
+    import asyncio
+
+    try:
+        return asyncio.get_running_loop()
+    except RuntimeError:
+        return None
 
 
 def date_picker(value: Any, description: str):

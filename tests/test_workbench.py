@@ -119,3 +119,29 @@ def test_plots_used_by_explorers_leave_pyplot_alone():
     fig = plot_budget_profile([0.0, 10.0], {"steady": [0.5, 1.0]}, limit_deg=2.0)
     assert plt.get_fignums() == before
     assert isinstance(ax.figure, Figure) and isinstance(fig, Figure)
+
+
+def test_a_change_from_another_thread_is_drawn_on_the_explorers_own_thread():
+    # JupyterLab can deliver a widget change on a comm subshell thread while cells run on the main
+    # thread (ipykernel 7 subshells); the explorer hands the redraw to the loop it was built on
+    import asyncio
+    import threading
+
+    drawn_on = []
+
+    def update(n):
+        drawn_on.append(threading.current_thread())
+        return f"n is {n}"
+
+    async def notebook():
+        slider = widgets.IntSlider(value=1, min=0, max=5)
+        box = explorer(update, {"n": slider})
+        worker = threading.Thread(target=lambda: setattr(slider, "value", 2))
+        worker.start()
+        worker.join()
+        assert box.children[-1].outputs[0]["data"]["text/plain"] == "n is 1"  # not drawn on the worker
+        await asyncio.sleep(0.05)
+        return box.children[-1].outputs[0]["data"]["text/plain"]
+
+    assert asyncio.run(notebook()) == "n is 2"
+    assert drawn_on == [threading.main_thread()] * 2
