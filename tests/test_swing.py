@@ -14,6 +14,7 @@ Sources named beside each check:
 
 from __future__ import annotations
 
+import csv
 import math
 import warnings
 
@@ -21,6 +22,7 @@ import numpy as np
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
+from reference import ppigrf_declination
 
 from headingref import headings
 from headingref.cli import main
@@ -36,6 +38,22 @@ from headingref.swing import (
 )
 
 DATA = __import__("pathlib").Path(__file__).parent / "data"
+
+
+def _latest_demo_survey(demo_dir, name: str) -> dict:
+    """The base's latest survey row in data/demo/compass_bases.csv, read with the csv module."""
+    with (demo_dir / "compass_bases.csv").open(encoding="utf-8", newline="") as fh:
+        rows = [row for row in csv.DictReader(fh) if row["name"] == name]
+    row = max(rows, key=lambda r: r["survey_date"])
+    text = row["surveyed_variation"]
+    value = float(text[:-1]) * (1.0 if text.endswith("E") else -1.0)
+    return {"value_deg": value, "date": row["survey_date"], "lat": float(row["lat"]), "lon": float(row["lon"])}
+
+
+def _dm_east(value_deg: float) -> str:
+    """Degrees and whole minutes with E/W, the card's form (10.7 -> 10°42′ E)."""
+    minutes = round(abs(value_deg) * 60)
+    return f"{minutes // 60}°{minutes % 60:02d}′ {'E' if value_deg >= 0 else 'W'}"
 
 # Pub. 226 art. 501 deviations on N, NE, E, SE, S, SW, W, NW (east +, west -).
 HANDBOOK_501 = [10.5, 20.0, 11.5, -1.2, -5.5, -8.0, -12.5, -6.8]
@@ -446,7 +464,7 @@ def test_cli_refuses_non_finite_limits(tmp_path, capsys, option):
 # ------------------------------------------------------------------------------ the card as a document
 
 
-def test_card_document_html_and_pdf(tmp_path, capsys):
+def test_card_document_html_and_pdf(tmp_path, capsys, demo_dir):
     html_path, pdf_path = tmp_path / "card.html", tmp_path / "card.pdf"
     code = main([
         "swing", "--input", str(DATA / "swing_handbook_501.csv"), "--date", "2026-12-02",
@@ -460,9 +478,12 @@ def test_card_document_html_and_pdf(tmp_path, capsys):
     assert "@media print" in text and "Signature" in text and "A. N. Other" in text
     assert "ZZ-&lt;b&gt;INV&lt;/b&gt;" in text and "<b>INV</b>" not in text  # user text escaped
     assert "engines running, radios on" in text and "2026-12-02" in text
-    # The base link: the demo file's latest survey of this base is 10.7E on 2021-06-22; at 0.5 deg
-    # tolerance and about +0.4 deg a year it is overdue by the 2026 swing (data/demo/README.md).
-    assert "marked variation 10°42′ E, surveyed 2021-06-22" in text
+    # The base link: the demo file's latest survey of this base (read here with the csv module),
+    # printed as degrees and minutes; ppigrf's IGRF-14 variation there has moved more than the
+    # 0.5 deg tolerance by the 2026 swing, so the base is overdue (data/demo/README.md).
+    survey = _latest_demo_survey(demo_dir, "Svalbrekka compass base")
+    assert f"marked variation {_dm_east(survey['value_deg'])}, surveyed {survey['date']}" in text
+    assert abs(ppigrf_declination(survey["lat"], survey["lon"], "2026-12-02") - survey["value_deg"]) > 0.5
     assert "OVERDUE" in text and "OVERDUE" in out
     # The after-compensation card names the terms it keeps.
     assert "A +1.0°, D +5.0°, E +1.5°" in text
@@ -494,7 +515,7 @@ def test_deviation_column_forms(tmp_path_factory, value, style):
     assert float(deviation_from_readings(magnetic, compass)[0]) == pytest.approx(value, abs=1e-9)
 
 
-def test_swing_from_the_demo_scenario():
+def test_swing_from_the_demo_scenario(demo_dir):
     # The demo's [swing] section on the demo bases: the card links to the base's latest survey in
     # data/demo/compass_bases.csv (Svalbrekka 10.7E on 2021-06-22, overdue by the 2027-03-15 swing:
     # drift about +0.4 deg a year against a 0.5 deg tolerance, data/demo/README.md).
@@ -508,5 +529,8 @@ def test_swing_from_the_demo_scenario():
     # (sigma sqrt(2/12) = 0.08 deg for B..E; Gauss-Markov).
     for name, value in {"A": 0.5, "B": 6.5, "C": -5.0, "D": 0.8, "E": -0.4}.items():
         assert analysis.curve.coefficients()[name] == pytest.approx(value, abs=0.25), name
-    assert details.swing_date == "2027-03-15" and details.base_marked_variation == "10°42′ E"
-    assert details.base_survey_date == "2021-06-22" and "OVERDUE" in details.base_status
+    survey = _latest_demo_survey(demo_dir, "Svalbrekka compass base")
+    assert details.swing_date == "2027-03-15" and details.base_marked_variation == _dm_east(survey["value_deg"])
+    assert details.base_survey_date == survey["date"] == "2021-06-22" and "OVERDUE" in details.base_status
+    # ppigrf (IGRF-14) at the base on the swing date: more than the 0.5 deg tolerance from the survey
+    assert abs(ppigrf_declination(survey["lat"], survey["lon"], "2027-03-15") - survey["value_deg"]) > 0.5

@@ -1,12 +1,16 @@
 """Regenerate the invented demo scenario's CSV files in data/demo/ (one-off, for maintainers).
 
-Everything here is invented: the operator (Tern Meridian Air), the airfield names and their
-identifiers (first letter ``J``, which ICAO allocates to no region), the survey history of the
-compass bases (the model's variation at the survey date plus a small invented local offset) and
-the swing readings (an invented deviation curve plus Gaussian noise). Only the coordinates are
-real places. Invented en-route waypoints are named ``TM`` + letter + two digits. Runway geometry is placed with the field model (IGRF-14) so that, on the analysis
-date, each runway end sits where the demo wants it (well inside its designator, near a rounding
-boundary, or already past one). Run from the repository root::
+Everything here is invented: the operator (Tern Meridian Air), the airfield names, their
+identifiers (first letter ``J``, which ICAO allocates to no region) and their coordinates (open
+ground or ice 35 km or more from any aerodrome or landing strip listed in the ``airportsdata``
+package, release 20261103, kept in the same high-latitude regions so the routes, zones and drift
+rates stay interesting), the survey history of the compass bases (the model's variation at the
+survey date plus a small invented local offset) and the swing readings (an invented deviation
+curve plus Gaussian noise). Invented en-route waypoints are named ``TM`` + letter + two digits.
+Runway geometry is placed with the field model (IGRF-14) so that, on the analysis date, each
+runway sits where the demo wants it (well inside its designator, near a rounding boundary, or
+already past one): the true azimuth and the variation are both taken at the runway's midpoint,
+the reference point :func:`headingref.runways.check_runways` uses. Run from the repository root::
 
     PYTHONPATH=. python tools/make_demo_data.py
 """
@@ -25,18 +29,18 @@ DEMO = Path(__file__).resolve().parent.parent / "data" / "demo"
 ANALYSIS_DATE = "2026-12-02"
 GEOD = pyproj.Geod(ellps="WGS84")
 
-# Invented names and identifiers at real high-latitude coordinates.
+# Invented names, identifiers and coordinates (the midpoint of each airfield's first runway).
 AIRFIELDS = {
-    "JXKV": ("Kvitnes Strand", 69.6830, 18.9190),
-    "JXSF": ("Svalbrekka", 78.2460, 15.4660),
-    "JXRH": ("Ravnhogda", 76.5310, -68.7030),
-    "JXTB": ("Tallurut Bight", 69.1080, -105.1380),
-    "JXSB": ("Sikutaq Bay", 71.2850, -156.7660),
-    "JXLS": ("Lisovets Spit", 64.7350, 177.7410),
-    "JXBK": ("Birchkettle Field", 64.8150, -147.8560),
-    "JXQR": ("Qarsaq Ridge", 74.7170, -94.9690),
-    "JXNL": ("Nareslys", 82.5180, -62.2810),
-    "JXYV": ("Yelvik Sound", 67.0110, -50.7110),
+    "JXKV": ("Kvitnes Strand", 69.4200, 21.7800),
+    "JXSF": ("Svalbrekka", 78.6000, 17.9000),
+    "JXRH": ("Ravnhogda", 77.0200, -66.1000),
+    "JXTB": ("Tallurut Bight", 69.6000, -104.5000),
+    "JXSB": ("Sikutaq Bay", 70.5500, -155.2000),
+    "JXLS": ("Lisovets Spit", 65.2800, 175.9500),
+    "JXBK": ("Birchkettle Field", 65.3500, -146.4000),
+    "JXQR": ("Qarsaq Ridge", 75.0500, -99.3000),
+    "JXNL": ("Nareslys", 82.1200, -66.4000),
+    "JXYV": ("Yelvik Sound", 66.5500, -51.9500),
 }
 
 ROUTES = {
@@ -56,7 +60,7 @@ RUNWAYS = [
     ("JXKV", "19", "01", 186.0, 2450, 0, "well inside its designator"),
     ("JXKV", "11", "29", 108.0, 1600, 900, "well inside its designator"),
     ("JXSF", "28", "10", 276.0, 2480, 0, "1.0 deg from 275: becomes 27 in about two years"),
-    ("JXRH", "25", "07", 245.3, 3050, 0, "0.3 deg from 245: becomes 24 within months"),
+    ("JXRH", "25", "07", 245.25, 3050, 0, "0.25 deg from 245: becomes 24 within months"),
     ("JXTB", "13", "31", 136.0, 1550, 0, "out of date: magnetic 136 is runway 14"),
     ("JXSB", "07", "25", 74.0, 2130, 0, "1.0 deg from 075: becomes 08 in about two years"),
     ("JXLS", "01", "19", 14.6, 2500, 0, "0.4 deg from 015: becomes 02 soon"),
@@ -68,10 +72,11 @@ RUNWAYS = [
     ("JXYV", "09", "27", 93.0, 2810, 0, "well inside its designator"),
 ]
 
-# Compass bases: (name, lat, lon, invented local offset deg, survey dates, tolerance, resurvey years)
+# Compass bases: (name, airfield, north and east offset of the base from the airfield's reference
+# point in degrees, invented local offset deg, survey dates, tolerance, resurvey years)
 BASES = [
-    ("Svalbrekka compass base", 78.2431, 15.4905, 0.15, ["2015-06-16", "2018-06-20", "2021-06-22"], 0.5, 5),
-    ("Birchkettle compass base", 64.8112, -147.8712, -0.10, ["2018-05-09", "2021-05-10", "2024-05-14"], 1.0, 5),
+    ("Svalbrekka compass base", "JXSF", -0.0029, 0.0245, 0.15, ["2015-06-16", "2018-06-20", "2021-06-22"], 0.5, 5),
+    ("Birchkettle compass base", "JXBK", -0.0038, -0.0152, -0.10, ["2018-05-09", "2021-05-10", "2024-05-14"], 1.0, 5),
 ]
 
 # Invented deviation curve of the swung aircraft's standby compass, degrees (east positive).
@@ -105,15 +110,15 @@ def make_routes() -> None:
 def make_runways() -> None:
     rows = []
     for ident, this, other, magnetic, length_m, offset_m, _note in RUNWAYS:
-        _, lat0, lon0 = AIRFIELDS[ident]
-        if offset_m:
-            lon0, lat0, _ = GEOD.fwd(lon0, lat0, 90.0, offset_m)
-        true_bearing = magnetic
-        for _ in range(3):  # variation at the runway midpoint depends (weakly) on the geometry
-            lon1, lat1, _ = GEOD.fwd(lon0, lat0, true_bearing, length_m)
-            lon_m, lat_m, _ = GEOD.fwd(lon0, lat0, true_bearing, length_m / 2)
-            true_bearing = magnetic + variation(lat_m, lon_m, ANALYSIS_DATE)
-        lon1, lat1, _ = GEOD.fwd(lon0, lat0, true_bearing, length_m)
+        _, lat_m, lon_m = AIRFIELDS[ident]
+        if offset_m:  # a second runway: its midpoint lies offset_m east of the airfield's reference point
+            lon_m, lat_m, _ = GEOD.fwd(lon_m, lat_m, 90.0, offset_m)
+        # True azimuth and variation at the same point, the midpoint: the geodesic through the
+        # midpoint with that azimuth, half the length either way, has its midpoint there and its
+        # forward azimuth there equal to true_bearing.
+        true_bearing = magnetic + variation(lat_m, lon_m, ANALYSIS_DATE)
+        lon0, lat0, _ = GEOD.fwd(lon_m, lat_m, true_bearing + 180.0, length_m / 2)
+        lon1, lat1, _ = GEOD.fwd(lon_m, lat_m, true_bearing, length_m / 2)
         a = [f"{lat0:.6f}", f"{((lon0 + 180) % 360) - 180:.6f}"]
         b = [f"{lat1:.6f}", f"{((lon1 + 180) % 360) - 180:.6f}"]
         rows.append([ident, this, *a, *b])
@@ -123,7 +128,8 @@ def make_runways() -> None:
 
 def make_bases() -> None:
     rows = []
-    for name, lat, lon, offset, dates, tolerance, interval in BASES:
+    for name, airfield, dlat, dlon, offset, dates, tolerance, interval in BASES:
+        lat, lon = AIRFIELDS[airfield][1] + dlat, AIRFIELDS[airfield][2] + dlon
         for date in dates:
             value = round(variation(lat, lon, date) + offset, 1)
             text = f"{abs(value):.1f}{'E' if value >= 0 else 'W'}"
