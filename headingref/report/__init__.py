@@ -8,7 +8,9 @@ through the library, and writes into ``out_dir``:
   lose a usable magnetic reference and where, which compass bases need a resurvey and when,
   which runways need redesignation and when), then a section per job with tables and figures;
 - CSV tables (route legs and samples with the error budget, zone areas, poles, compass base
-  upkeep and setting-out, swing coefficients, residuals and card, runway check and changes);
+  upkeep and setting-out, swing coefficients, residuals and card, runway check and changes,
+  VOR station declination, the model comparison) and the print-ready swing card
+  ``swing_card.html``;
 - GeoJSON (RFC 7946): the routes (legs cut at the antimeridian, stretches without a usable
   magnetic reference) and the weak-field zones.
 
@@ -16,7 +18,8 @@ How it is made:
 
 - one module per job (:mod:`~headingref.report.routes`, :mod:`~headingref.report.zones`,
   :mod:`~headingref.report.error_budget`, :mod:`~headingref.report.compass_bases`,
-  :mod:`~headingref.report.swing`, :mod:`~headingref.report.runways`), each with ``KEY``,
+  :mod:`~headingref.report.swing`, :mod:`~headingref.report.runways`,
+  :mod:`~headingref.report.navaids`, :mod:`~headingref.report.compare`), each with ``KEY``,
   ``TITLE``, ``TOPIC`` and ``job(context) -> Section``: plain data (summary items, parts with
   text, tables and figures, files, notes) defined in :mod:`headingref.report.content`. Figures
   come from :mod:`headingref.plots`. A new job is one such module added to
