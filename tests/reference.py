@@ -23,9 +23,9 @@ import ppigrf
 
 def as_datetime(when: Any) -> dt.datetime | list[dt.datetime]:
     """One ``datetime`` (or a list of them) from an ISO string, date, datetime or Timestamp (or a sequence of them)."""
-    if isinstance(when, str | dt.date | pd.Timestamp | np.datetime64):
+    if _single_date(when):
         stamp = pd.Timestamp(when)
-        return dt.datetime(stamp.year, stamp.month, stamp.day, stamp.hour, stamp.minute, stamp.second)
+        return stamp.to_pydatetime().replace(tzinfo=None)
     if isinstance(when, Iterable):
         return [as_datetime(w) for w in when]
     raise TypeError(f"not a date: {when!r}")
@@ -42,20 +42,28 @@ def ppigrf_enu(lat: Any, lon: Any, alt_km: Any, when: Any) -> tuple[np.ndarray, 
     return np.ravel(east), np.ravel(north), np.ravel(up)
 
 
-def _one_or_many(values: np.ndarray) -> float | np.ndarray:
-    return float(values[0]) if values.size == 1 else values
+def _single_date(when: Any) -> bool:
+    return isinstance(when, str | dt.date | pd.Timestamp | np.datetime64)
+
+
+def _one_or_many(values: np.ndarray, *inputs: Any) -> float | np.ndarray:
+    """A float for scalar inputs and one date; otherwise the flat array (even of one element)."""
+    *coords, when = inputs
+    scalar = _single_date(when) and all(np.ndim(c) == 0 for c in coords)
+    return float(values[0]) if scalar else values
 
 
 def ppigrf_declination(lat: Any, lon: Any, when: Any, alt_km: Any = 0.0) -> float | np.ndarray:
     """ppigrf's IGRF-14 declination, degrees east positive: ``atan2(east, north)``.
 
-    A float when there is one point and one date, otherwise a flat array (dates first, then points).
+    A float when ``lat``, ``lon``, ``alt_km`` are scalars and ``when`` is one date; otherwise a flat
+    array (dates first, then points), even of one element.
     """
     east, north, _ = ppigrf_enu(lat, lon, alt_km, when)
-    return _one_or_many(np.degrees(np.arctan2(east, north)))
+    return _one_or_many(np.degrees(np.arctan2(east, north)), lat, lon, alt_km, when)
 
 
 def ppigrf_horizontal(lat: Any, lon: Any, when: Any, alt_km: Any = 0.0) -> float | np.ndarray:
     """ppigrf's IGRF-14 horizontal intensity ``hypot(east, north)``, nT (float or flat array, as above)."""
     east, north, _ = ppigrf_enu(lat, lon, alt_km, when)
-    return _one_or_many(np.hypot(east, north))
+    return _one_or_many(np.hypot(east, north), lat, lon, alt_km, when)

@@ -14,11 +14,11 @@ import warnings
 
 import numpy as np
 import pandas as pd
-import ppigrf
 import pytest
 from geographiclib.geodesic import Geodesic
 from hypothesis import given, settings
 from hypothesis import strategies as st
+from reference import ppigrf_declination
 
 from headingref.cli import main
 from headingref.compass_base import base_upkeep, make_site, read_sites_csv, setting_out
@@ -36,12 +36,6 @@ def constant_rate(start_deg: float, rate_deg_per_year: float, epoch: float):
         return start_deg + rate_deg_per_year * (year - epoch), np.full(year.shape, rate_deg_per_year)
 
     return variation
-
-
-def ppigrf_declination(lat, lon, when: dt.datetime) -> float:
-    """Declination from ppigrf (geodetic east/north components), degrees east positive."""
-    be, bn, _ = ppigrf.igrf(lon, lat, 0.0, when)
-    return float(np.degrees(np.arctan2(np.ravel(be)[0], np.ravel(bn)[0])))
 
 
 def as_datetime(year: float) -> dt.datetime:

@@ -18,6 +18,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 import pytest
+from reference import ppigrf_declination
 
 from headingref.errors import InputError
 from headingref.navaids import DEFAULT_TOLERANCE_DEG, check_navaids
@@ -26,19 +27,13 @@ DEMO = Path(__file__).parent.parent / "data" / "demo" / "navaids.csv"
 DATE = "2026-12-02"
 
 
-def _ppigrf_variation(lat, lon, days, alt_km=0.0):
-    ppigrf = pytest.importorskip("ppigrf")
-    east, north, _ = ppigrf.igrf(lon, lat, alt_km, [dt.datetime(d.year, d.month, d.day) for d in days])
-    return np.degrees(np.arctan2(east.ravel(), north.ravel()))
-
-
 def test_variation_and_difference_against_ppigrf():
     result = check_navaids(DEMO, DATE, horizon_years=3)
     t = result.table
     assert t.ident.tolist() == ["QVN", "QKM", "QTL", "QBS", "QHS", "QNL"]
     assert t.station_declination_deg.tolist() == [7.0, 4.0, 21.0, 20.0, 17.0, -45.0]  # 45W is west, negative
     for row in t.itertuples():
-        reference = _ppigrf_variation(row.lat, row.lon, [dt.date(2026, 12, 2)], row.alt_km)[0]
+        reference = ppigrf_declination(row.lat, row.lon, [dt.date(2026, 12, 2)], row.alt_km)[0]
         # ppigrf IGRF-14: 0.001 deg, 0.003 deg at QNL (82 N, weak horizontal field amplifies rounding)
         assert row.variation_deg == pytest.approx(reference, abs=3e-3)
         assert row.difference_deg == pytest.approx(reference - row.station_declination_deg, abs=3e-3)
@@ -50,7 +45,7 @@ def test_realign_date_against_a_daily_ppigrf_scan():
     # A station aligned 2.7 deg short of today's variation in the direction it drifts: ppigrf's first day
     # with |variation - declination| > 2.9 must be our realign_date (+-1 day, interpolation in days vs years).
     lat, lon = 61.0, 10.0
-    d = _ppigrf_variation(lat, lon, [dt.date(2026, 12, 2), dt.date(2027, 12, 2)])
+    d = ppigrf_declination(lat, lon, [dt.date(2026, 12, 2), dt.date(2027, 12, 2)])
     drift = d[1] - d[0]
     station = d[0] - math.copysign(2.7, drift)
     stations = pd.DataFrame({"ident": ["XQC"], "lat": [lat], "lon": [lon], "station_declination_deg": [station]})
@@ -58,7 +53,7 @@ def test_realign_date_against_a_daily_ppigrf_scan():
     assert not row.exceeds and row.realign_date
     found = dt.date.fromisoformat(row.realign_date)
     days = [found + dt.timedelta(days=k) for k in range(-3, 4)]
-    over = np.abs(_ppigrf_variation(lat, lon, days) - station) > 2.9
+    over = np.abs(ppigrf_declination(lat, lon, days) - station) > 2.9
     assert not over[0] and over[-1]
     assert abs((days[int(np.argmax(over))] - found).days) <= 1
 
@@ -66,7 +61,7 @@ def test_realign_date_against_a_daily_ppigrf_scan():
 def test_already_exceeding_and_never_within_the_horizon():
     stations = pd.DataFrame({"ident": ["XQD", "XQE"], "lat": [61.0, 61.0], "lon": [10.0, 10.0],
                              "station_declination_deg": ["20W", "5E"]})
-    d = _ppigrf_variation(61.0, 10.0, [dt.date(2026, 12, 2)])[0]
+    d = ppigrf_declination(61.0, 10.0, [dt.date(2026, 12, 2)])[0]
     t = check_navaids(stations, DATE, tolerance_deg=abs(d - 5.0) + 1.0, horizon_years=1).table
     assert t.exceeds.tolist() == [True, False]
     assert t.realign_date.tolist() == [DATE, ""]  # ppigrf drift here is ~0.2 deg/yr: no crossing of 1 deg in a year
@@ -121,7 +116,7 @@ def test_variation_at_alignment_against_ppigrf():
     t = check_navaids(DEMO, DATE, horizon_years=1).table
     for row in t.itertuples():
         day = dt.date.fromisoformat(row.alignment_date)
-        reference = _ppigrf_variation(row.lat, row.lon, [day], row.alt_km)[0]
+        reference = ppigrf_declination(row.lat, row.lon, [day], row.alt_km)[0]
         assert row.variation_at_alignment_deg == pytest.approx(reference, abs=3e-3)
 
 

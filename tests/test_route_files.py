@@ -160,13 +160,9 @@ def weak_route():
 
 
 def _ppigrf_h(lat, lon, alt_km):
-    import datetime as dt
+    from reference import ppigrf_horizontal
 
-    import numpy as np
-    import ppigrf
-
-    east, north, _ = ppigrf.igrf(lon, lat, alt_km, dt.datetime(2026, 12, 2))  # independent IGRF-14 synthesis
-    return float(np.hypot(east, north).ravel()[0])
+    return ppigrf_horizontal(lat, lon, "2026-12-02", alt_km)  # independent IGRF-14 synthesis
 
 
 def test_stretch_ends_sit_at_the_thresholds(weak_route):

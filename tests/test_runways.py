@@ -26,6 +26,7 @@ import pytest
 from geographiclib.geodesic import Geodesic
 from hypothesis import assume, given
 from hypothesis import strategies as st
+from reference import ppigrf_declination
 
 from headingref.errors import (
     DataQualityWarning,
@@ -192,13 +193,10 @@ def test_true_azimuth_length_and_midpoint_against_geographiclib():
 
 
 def test_variation_against_ppigrf():
-    ppigrf = pytest.importorskip("ppigrf")
     result = _quiet_check(DATA / "runways_demo.csv", DATE, horizon_years=1)
     table = result.table
-    east, north, _ = ppigrf.igrf(
-        table.ref_lon_deg.to_numpy(), table.ref_lat_deg.to_numpy(), table.alt_km.to_numpy(), dt.datetime(2026, 12, 2)
-    )
-    reference = np.degrees(np.arctan2(east.ravel(), north.ravel()))
+    reference = ppigrf_declination(table.ref_lat_deg.to_numpy(), table.ref_lon_deg.to_numpy(), "2026-12-02",
+                                   table.alt_km.to_numpy())
     # ppigrf (IGRF-14, geodetic components): same model, independent synthesis; 0.001 deg
     np.testing.assert_allclose(table.variation_deg.to_numpy(), reference, atol=1e-3)
     # magnetic = true - variation (east positive), and the rule applied to it
@@ -245,10 +243,8 @@ def test_demo_verdicts_and_pairs():
 
 def test_tolerance_band_gives_on_boundary_instead_of_a_verdict():
     # Place a runway end 0.1 deg above the 85 deg boundary using ppigrf's variation there.
-    ppigrf = pytest.importorskip("ppigrf")
     lat, lon = 61.0, 10.0
-    east, north, _ = ppigrf.igrf(lon, lat, 0.0, dt.datetime(2026, 12, 2))
-    variation = math.degrees(math.atan2(float(east.ravel()[0]), float(north.ravel()[0])))
+    variation = ppigrf_declination(lat, lon, "2026-12-02")
     ends = pd.DataFrame(
         {"airport": ["XAB"] * 3, "runway": ["08", "09", "12"], "lat": [lat] * 3, "lon": [lon] * 3,
          "true_bearing_deg": [85.1 + variation] * 3}
@@ -330,10 +326,8 @@ def test_forecast_against_daily_ppigrf(lat, lon, start):
     # first day ppigrf's IGRF-14 gives another designator must be our change_date (+-1 day:
     # ppigrf interpolates coefficients linearly in days between epochs, headingref in decimal
     # years, which differ by up to ~0.6 day within 2025-2030).
-    ppigrf = pytest.importorskip("ppigrf")
     first_year = dt.datetime(start.year, start.month, start.day)
-    e0, n0, _ = ppigrf.igrf(lon, lat, 0.0, [first_year, first_year + dt.timedelta(days=365)])
-    d = np.degrees(np.arctan2(e0.ravel(), n0.ravel()))
+    d = ppigrf_declination(lat, lon, [first_year, first_year + dt.timedelta(days=365)])
     drift = -(d[1] - d[0])  # magnetic azimuth change per year
     magnetic0 = 124.7 if drift > 0 else 125.3
     ends = pd.DataFrame({"airport": ["XAC"], "runway": ["12"], "lat": [lat], "lon": [lon], "true_bearing_deg": [magnetic0 + d[0]]})
@@ -342,8 +336,7 @@ def test_forecast_against_daily_ppigrf(lat, lon, start):
     assert row.change_date, "a change within the horizon was expected"
     change = dt.date.fromisoformat(row.change_date)
     days = [change + dt.timedelta(days=k) for k in range(-3, 4)]
-    east, north, _ = ppigrf.igrf(lon, lat, 0.0, [dt.datetime(x.year, x.month, x.day) for x in days])
-    numbers = designator_from_magnetic(ends.true_bearing_deg[0] - np.degrees(np.arctan2(east.ravel(), north.ravel())))
+    numbers = designator_from_magnetic(ends.true_bearing_deg[0] - ppigrf_declination(lat, lon, days))
     assert numbers[0] == int(row.designator_implied)
     first = days[int(np.argmax(numbers != int(row.designator_implied)))]
     assert abs((first - change).days) <= 1
@@ -483,12 +476,6 @@ def test_cli_unknown_plot_runway_is_a_one_line_error(tmp_path, capsys):
 # ----------------------------------------------------------------------------- issue 11 items 6, 7; issue 16
 
 
-def _ppigrf_declination(lat, lon, days):
-    ppigrf = pytest.importorskip("ppigrf")
-    east, north, _ = ppigrf.igrf(lon, lat, 0.0, [dt.datetime(d.year, d.month, d.day) for d in days])
-    return np.degrees(np.arctan2(east.ravel(), north.ravel()))
-
-
 @pytest.mark.parametrize(("lat", "lon", "true_bearing", "painted"), [
     (64.8, -147.6, 139.5, "11"),  # declination fell ~16 deg since 1900 here: 11 fitted decades ago
     (61.0, 10.0, 95.0, "10"),  # declination rose from about -12 deg: 10 fitted last some decades back
@@ -504,7 +491,7 @@ def test_last_fit_date_against_a_brute_force_ppigrf_scan(lat, lon, true_bearing,
     number = int(painted)
 
     def fits(days):
-        magnetic = np.mod(true_bearing - _ppigrf_declination(lat, lon, days), 360.0)
+        magnetic = np.mod(true_bearing - ppigrf_declination(lat, lon, days), 360.0)
         n = np.floor(magnetic / 10.0 + 0.5).astype(int) % 36  # the rule, written out independently
         return np.where(n == 0, 36, n) == number
 
@@ -533,10 +520,8 @@ def test_pair_gets_one_decision_and_reciprocal_designators():
     # Issue 11 item 6: two ends whose own azimuths straddle a rounding boundary (the centre line is
     # given slightly inconsistently) must still get one implied number pair differing by 18 and one
     # change date. The runway azimuth is the mean of end A and the reciprocal of end B.
-    ppigrf = pytest.importorskip("ppigrf")
     lat, lon = 64.8, -147.6
-    east, north, _ = ppigrf.igrf(lon, lat, 0.0, dt.datetime(2026, 12, 2))
-    variation = math.degrees(math.atan2(float(east.ravel()[0]), float(north.ravel()[0])))
+    variation = ppigrf_declination(lat, lon, "2026-12-02")
     a_true = 125.1 + variation  # magnetic 125.1 -> 13 alone
     b_true = (124.8 + 180.0 + variation) % 360.0  # magnetic 304.8 -> 30 alone (reciprocal of 12)
     ends = pd.DataFrame({"airport": ["XAP", "XAP"], "runway": ["13", "31"], "lat": [lat, lat], "lon": [lon, lon],
@@ -566,7 +551,7 @@ def test_every_change_within_the_horizon_is_listed():
     # Constant-rate check of the exact crossing finder against hand arithmetic (ppigrf drift at a high
     # latitude site): a 30-year extrapolated horizon at 78.2 N 15.6 E crosses several boundaries; every
     # listed change must be one designator step and the dates must increase.
-    now = float(_ppigrf_declination(78.2, 15.6, [dt.date(2026, 12, 2), dt.date(2027, 12, 2)])[0])
+    now = float(ppigrf_declination(78.2, 15.6, [dt.date(2026, 12, 2), dt.date(2027, 12, 2)])[0])
     true_bearing = 95.3 + now  # magnetic 95.3: the first change (to 09, the variation rises here) within ~2 years
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
@@ -579,7 +564,7 @@ def test_every_change_within_the_horizon_is_listed():
     assert set(steps) <= {1, 35}
     # ppigrf on the first change day and the day before gives the two designators (+-1 day)
     first = dt.date.fromisoformat(changes.change_date[0])
-    decl = _ppigrf_declination(78.2, 15.6, [first - dt.timedelta(days=2), first + dt.timedelta(days=1)])
+    decl = ppigrf_declination(78.2, 15.6, [first - dt.timedelta(days=2), first + dt.timedelta(days=1)])
     numbers = designator_from_magnetic(true_bearing - decl)
     assert [format_designator(int(n)) for n in numbers] == [changes.designator_before[0], changes.next_designator[0]]
 
