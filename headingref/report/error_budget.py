@@ -83,7 +83,7 @@ def job(ctx: Context) -> Section:
     if saturated:
         turn_text += " " + " ".join(
             f"Case '{r['case']}': where the budget exceeds the limit, {r['saturated_percent']:.0f}% of the area sits at a "
-            f"ceiling ({r['saturated_by']}), so a larger bank or a weaker field changes nothing there and the map is flat."
+            f"ceiling ({r['saturated_by']}), so a larger bank or a weaker field changes nothing there (the map is flat in that part)."
             for r in saturated)
     return Section(
         KEY, TITLE, TOPIC,
