@@ -282,87 +282,119 @@ def _path(value: Any, label: str, spec: Key, where: str, folder: Path) -> Path:
     return path.resolve()
 
 
+# One checker per schema kind, each (value, label, spec, where, folder) -> the checked value; _value
+# dispatches on Key.kind through _CHECKERS.
+def _str_value(value: Any, label: str, spec: Key, where: str, folder: Path) -> str:
+    if not isinstance(value, str):
+        raise InputError(f"{where}: {label} = {value!r} must be text in quotes; {spec.doc}")
+    return value.strip()
+
+
+def _bool_value(value: Any, label: str, spec: Key, where: str, folder: Path) -> bool:
+    if not isinstance(value, bool):
+        raise InputError(f"{where}: {label} = {value!r} must be true or false")
+    return value
+
+
+def _float_value(value: Any, label: str, spec: Key, where: str, folder: Path) -> float:
+    return _number(value, label, spec, where)
+
+
+def _floats_value(value: Any, label: str, spec: Key, where: str, folder: Path) -> list[float]:
+    if not isinstance(value, list) or not value:
+        raise InputError(f"{where}: {label} = {value!r} must be a non-empty list of numbers, e.g. [0, 90, 180]; {spec.doc}")
+    return [_number(v, label, spec, where) for v in value]
+
+
+def _choice_value(value: Any, label: str, spec: Key, where: str, folder: Path) -> str:
+    if not isinstance(value, str) or value.strip().lower() not in spec.choices:
+        raise InputError(f"{where}: {label} = {value!r} is not accepted; use one of {', '.join(spec.choices)}")
+    return value.strip().lower()
+
+
+def _date_value(value: Any, label: str, spec: Key, where: str, folder: Path) -> str:
+    from .units import decimal_year
+
+    if isinstance(value, bool) or not isinstance(value, (str, int, float)) and not hasattr(value, "isoformat"):
+        raise InputError(f"{where}: {label} = {value!r} is not a date; give an ISO date such as \"2026-12-02\" or a decimal year")
+    text = value.isoformat() if hasattr(value, "isoformat") else value
+    try:
+        decimal_year(text)
+    except InputError as exc:
+        raise InputError(f"{where}: {label}: {exc}") from None
+    return str(text)
+
+
+def _height_value(value: Any, label: str, spec: Key, where: str, folder: Path) -> float:
+    from .units import parse_height_km
+
+    if isinstance(value, bool):
+        raise InputError(f"{where}: {label} = {value!r} is not a height; give km, or text such as '35000 ft' or 'FL350'")
+    try:
+        return float(parse_height_km(value, max_km=spec.high if spec.high is not None else 1000.0))
+    except InputError as exc:
+        raise InputError(f"{where}: {label}: {exc}") from None
+
+
+def _grid_value(value: Any, label: str, spec: Key, where: str, folder: Path) -> str:
+    if not isinstance(value, str):
+        raise InputError(f"{where}: {label} = {value!r} must be text; {spec.doc}")
+    from .headings import AUTO_GRID, parse_grid
+
+    try:
+        if value.strip().lower() != AUTO_GRID:  # auto: resolved per route from its latitudes
+            parse_grid(value)
+    except InputError as exc:
+        raise InputError(f"{where}: {label}: {exc}") from None
+    return value.strip()
+
+
+def _path_value(value: Any, label: str, spec: Key, where: str, folder: Path) -> Path:
+    return _path(value, label, spec, where, folder)
+
+
+def _model_value(value: Any, label: str, spec: Key, where: str, folder: Path) -> str | Path | None:
+    if not isinstance(value, str) or not value.strip():
+        raise InputError(f"{where}: {label} = {value!r}; give a model name (`headingref models`) or a coefficient file name")
+    if value.strip().lower() in DEFAULT_MODEL_NAMES:
+        return None
+    from .model import model_name
+
+    named = model_name(value.strip())
+    if named is not None:  # a model known by name (headingref.model.MODEL_NAMES)
+        return None if named == "IGRF-14" else named
+    return _path(value, label, spec, where, folder)
+
+
+def _models_value(value: Any, label: str, spec: Key, where: str, folder: Path) -> list[str | Path]:
+    """A list of model names or files (the report's model comparison)."""
+    items = [v.strip() for v in value.split(",")] if isinstance(value, str) else value
+    if not isinstance(items, list) or len(items) < 2 or not all(isinstance(v, str) and v.strip() for v in items):
+        raise InputError(f"{where}: {label} = {value!r}; give two or more model names or files, {spec.doc}")
+    models = [_model_value(v, label, spec, where, folder) for v in items]
+    return ["IGRF-14" if m is None else m for m in models]
+
+
+def _plans_value(value: Any, label: str, spec: Key, where: str, folder: Path) -> list[dict]:
+    if not isinstance(value, list) or not value or not all(isinstance(v, dict) for v in value):
+        raise InputError(f"{where}: {label} must be one or more [[routes.plan]] tables with name and file")
+    plans = [_section(v, "routes.plan", f"{where} [[routes.plan]] #{i + 1}", folder) for i, v in enumerate(value)]
+    names = [p["name"] for p in plans]
+    dupes = sorted({n for n in names if names.count(n) > 1})
+    if dupes:
+        raise InputError(f"{where}: route name(s) {', '.join(dupes)} appear more than once in [[routes.plan]]")
+    return plans
+
+
+_CHECKERS = {
+    "str": _str_value, "bool": _bool_value, "float": _float_value, "floats": _floats_value,
+    "choice": _choice_value, "date": _date_value, "height": _height_value, "grid": _grid_value,
+    "path": _path_value, "model": _model_value, "models": _models_value, "plans": _plans_value,
+}
+
+
 def _value(value: Any, section: str, key: str, spec: Key, where: str, folder: Path) -> Any:
-    label = _label(section, key)
-    kind = spec.kind
-    if kind == "str":
-        if not isinstance(value, str):
-            raise InputError(f"{where}: {label} = {value!r} must be text in quotes; {spec.doc}")
-        return value.strip()
-    if kind == "bool":
-        if not isinstance(value, bool):
-            raise InputError(f"{where}: {label} = {value!r} must be true or false")
-        return value
-    if kind == "float":
-        return _number(value, label, spec, where)
-    if kind == "floats":
-        if not isinstance(value, list) or not value:
-            raise InputError(f"{where}: {label} = {value!r} must be a non-empty list of numbers, e.g. [0, 90, 180]; {spec.doc}")
-        return [_number(v, label, spec, where) for v in value]
-    if kind == "choice":
-        if not isinstance(value, str) or value.strip().lower() not in spec.choices:
-            raise InputError(f"{where}: {label} = {value!r} is not accepted; use one of {', '.join(spec.choices)}")
-        return value.strip().lower()
-    if kind == "date":
-        from .units import decimal_year
-
-        if isinstance(value, bool) or not isinstance(value, (str, int, float)) and not hasattr(value, "isoformat"):
-            raise InputError(f"{where}: {label} = {value!r} is not a date; give an ISO date such as \"2026-12-02\" or a decimal year")
-        text = value.isoformat() if hasattr(value, "isoformat") else value
-        try:
-            decimal_year(text)
-        except InputError as exc:
-            raise InputError(f"{where}: {label}: {exc}") from None
-        return str(text)
-    if kind == "height":
-        from .units import parse_height_km
-
-        if isinstance(value, bool):
-            raise InputError(f"{where}: {label} = {value!r} is not a height; give km, or text such as '35000 ft' or 'FL350'")
-        try:
-            return float(parse_height_km(value, max_km=spec.high if spec.high is not None else 1000.0))
-        except InputError as exc:
-            raise InputError(f"{where}: {label}: {exc}") from None
-    if kind == "grid":
-        if not isinstance(value, str):
-            raise InputError(f"{where}: {label} = {value!r} must be text; {spec.doc}")
-        from .headings import AUTO_GRID, parse_grid
-
-        try:
-            if value.strip().lower() != AUTO_GRID:  # auto: resolved per route from its latitudes
-                parse_grid(value)
-        except InputError as exc:
-            raise InputError(f"{where}: {label}: {exc}") from None
-        return value.strip()
-    if kind == "path":
-        return _path(value, label, spec, where, folder)
-    if kind == "model":
-        if not isinstance(value, str) or not value.strip():
-            raise InputError(f"{where}: {label} = {value!r}; give a model name (`headingref models`) or a coefficient file name")
-        if value.strip().lower() in DEFAULT_MODEL_NAMES:
-            return None
-        from .model import model_name
-
-        named = model_name(value.strip())
-        if named is not None:  # a model known by name (headingref.model.MODEL_NAMES)
-            return None if named == "IGRF-14" else named
-        return _path(value, label, spec, where, folder)
-    if kind == "models":  # a list of model names or files (the report's model comparison)
-        items = [v.strip() for v in value.split(",")] if isinstance(value, str) else value
-        if not isinstance(items, list) or len(items) < 2 or not all(isinstance(v, str) and v.strip() for v in items):
-            raise InputError(f"{where}: {label} = {value!r}; give two or more model names or files, {spec.doc}")
-        models = [_value(v, section, key, spec._replace(kind="model"), where, folder) for v in items]
-        return ["IGRF-14" if m is None else m for m in models]
-    if kind == "plans":
-        if not isinstance(value, list) or not value or not all(isinstance(v, dict) for v in value):
-            raise InputError(f"{where}: {label} must be one or more [[routes.plan]] tables with name and file")
-        plans = [_section(v, "routes.plan", f"{where} [[routes.plan]] #{i + 1}", folder) for i, v in enumerate(value)]
-        names = [p["name"] for p in plans]
-        dupes = sorted({n for n in names if names.count(n) > 1})
-        if dupes:
-            raise InputError(f"{where}: route name(s) {', '.join(dupes)} appear more than once in [[routes.plan]]")
-        return plans
-    raise AssertionError(kind)  # pragma: no cover - schema kinds are fixed above
+    return _CHECKERS[spec.kind](value, _label(section, key), spec, where, folder)
 
 
 def _section(table: Any, section: str, where: str, folder: Path) -> dict:
@@ -378,6 +410,59 @@ def _section(table: Any, section: str, where: str, folder: Path) -> dict:
         else:
             out[key] = list(spec.default) if isinstance(spec.default, list) else spec.default
     return out
+
+
+def _read_toml(path: Any) -> tuple[dict, Path, str]:
+    """The parsed TOML of a scenario file, its resolved path and the ``where`` of its messages."""
+    if not isinstance(path, (str, os.PathLike)):
+        raise InputError(f"load_scenario: path {path!r} of type {type(path).__name__} is not a file name; "
+                         "give the path of a scenario TOML file")
+    path = Path(path).expanduser()
+    where = f"scenario {path.name}"
+    if not path.is_file():
+        raise InputError(f"{where}: no such file {str(path)!r}")
+    try:
+        raw = tomllib.loads(path.read_text(encoding="utf-8-sig"))
+    except UnicodeDecodeError:
+        raise InputError(f"{where}: not UTF-8 text; save the scenario as UTF-8") from None
+    except tomllib.TOMLDecodeError as exc:
+        raise InputError(f"{where}: not valid TOML ({exc})") from None
+    except RecursionError:  # tomllib recurses once per nesting level ([[[[...]]]] 5,000 deep)
+        raise InputError(f"{where}: arrays or tables nested too deeply; a scenario needs a few levels at most") from None
+    return raw, path.resolve(), where
+
+
+def _check_column_mappings(sections: dict, where: str) -> None:
+    """Check the runways' and navaids' ``columns`` mappings now, not when the job runs."""
+    for name in ("runways", "navaids"):
+        if sections.get(name) and sections[name]["columns"]:
+            from importlib import import_module
+
+            from .tables import parse_column_mapping
+
+            mod = import_module(f".{name}", __package__)
+            accepted = mod.ACCEPTED_COLUMNS if name == "runways" else mod.REQUIRED + mod.OPTIONAL
+            try:
+                parse_column_mapping(sections[name]["columns"], accepted, f"[{name}] columns")
+            except InputError as exc:
+                raise InputError(f"{where}: {exc}") from None
+
+
+def _fill_dependent_values(sections: dict, top: dict, where: str) -> None:
+    """Defaults that depend on other keys (cap edge, swing dates) and checks across keys, in place."""
+    zones = sections["zones"]
+    if zones and zones["edge_lat_deg"] is None:
+        zones["edge_lat_deg"] = CAPS[zones["cap"]].edge_lat_deg
+    if zones and zones["blackout_nT"] >= zones["caution_nT"]:
+        raise InputError(
+            f"{where}: [zones] blackout_nT = {zones['blackout_nT']:g} must be below caution_nT = {zones['caution_nT']:g}"
+        )
+    bases = sections["compass_bases"]
+    if bases and bases["swing_date"] is None:
+        bases["swing_date"] = top["analysis_date"]
+    swing = sections["swing"]
+    if swing and swing["date"] is None:
+        swing["date"] = bases["swing_date"] if bases else top["analysis_date"]
 
 
 def load_scenario(path: str | os.PathLike) -> Scenario:
@@ -398,54 +483,14 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
         Unreadable or malformed TOML; unknown keys (with a suggestion); missing required keys;
         values of the wrong type or out of range; files that do not exist.
     """
-    if not isinstance(path, (str, os.PathLike)):
-        raise InputError(f"load_scenario: path {path!r} of type {type(path).__name__} is not a file name; "
-                         "give the path of a scenario TOML file")
-    path = Path(path).expanduser()
-    where = f"scenario {path.name}"
-    if not path.is_file():
-        raise InputError(f"{where}: no such file {str(path)!r}")
-    try:
-        raw = tomllib.loads(path.read_text(encoding="utf-8-sig"))
-    except UnicodeDecodeError:
-        raise InputError(f"{where}: not UTF-8 text; save the scenario as UTF-8") from None
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError(f"{where}: not valid TOML ({exc})") from None
-    except RecursionError:  # tomllib recurses once per nesting level ([[[[...]]]] 5,000 deep)
-        raise InputError(f"{where}: arrays or tables nested too deeply; a scenario needs a few levels at most") from None
-    path = path.resolve()
+    raw, path, where = _read_toml(path)
     folder = path.parent
     top = _section({k: v for k, v in raw.items() if k not in SECTIONS}, "", where, folder)
     from .units import decimal_year
 
-    sections = {}
-    for name in SECTIONS:
-        sections[name] = _section(raw[name], name, where, folder) if name in raw else None
-    for name, module in (("runways", "runways"), ("navaids", "navaids")):  # the column mappings, checked now
-        if sections.get(name) and sections[name]["columns"]:
-            from importlib import import_module
-
-            from .tables import parse_column_mapping
-
-            mod = import_module(f".{module}", __package__)
-            accepted = mod.ACCEPTED_COLUMNS if name == "runways" else mod.REQUIRED + mod.OPTIONAL
-            try:
-                parse_column_mapping(sections[name]["columns"], accepted, f"[{name}] columns")
-            except InputError as exc:
-                raise InputError(f"{where}: {exc}") from None
-    zones = sections["zones"]
-    if zones and zones["edge_lat_deg"] is None:
-        zones["edge_lat_deg"] = CAPS[zones["cap"]].edge_lat_deg
-    if zones and zones["blackout_nT"] >= zones["caution_nT"]:
-        raise InputError(
-            f"{where}: [zones] blackout_nT = {zones['blackout_nT']:g} must be below caution_nT = {zones['caution_nT']:g}"
-        )
-    bases = sections["compass_bases"]
-    if bases and bases["swing_date"] is None:
-        bases["swing_date"] = top["analysis_date"]
-    swing = sections["swing"]
-    if swing and swing["date"] is None:
-        swing["date"] = bases["swing_date"] if bases else top["analysis_date"]
+    sections = {name: _section(raw[name], name, where, folder) if name in raw else None for name in SECTIONS}
+    _check_column_mappings(sections, where)
+    _fill_dependent_values(sections, top, where)
     return Scenario(
         path=path,
         title=top["title"],
