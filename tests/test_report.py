@@ -778,6 +778,13 @@ def test_flagged_declination_shows_the_flag_not_numbers(tmp_path):
     assert "no usable declination: H below 100 nT" in routes
     cells = re.findall(r'<td class="num">([^<]+)</td>', routes)
     assert all(abs(float(c.replace(",", ""))) < 1000 for c in cells if re.fullmatch(r"-?[\d,]+\.\d", c)), cells
+    # no heading at all: the uncertainty and the budget (180 degrees or more) are blank, the flag says why
+    table = routes[routes.index("<table>"):routes.index("</table>")]
+    headers = re.findall(r"<th>([^<]*)</th>", table)
+    for row in re.findall(r"<tr[^>]*>(<td.*?)</tr>", table):
+        values = dict(zip(headers, re.findall(r"<td[^>]*>([^<]*)</td>", row), strict=True))
+        assert values["max D uncertainty °"] == values["max budget (steady) °"] == ""
+        assert values["declination flagged"].startswith("no usable declination")
     compare = _section_html(page, "model-comparison")
     assert "no usable declination" in compare
 

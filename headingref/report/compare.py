@@ -184,8 +184,8 @@ def job(ctx: Context) -> Section:
                                                                     "significant": "significant samples", "flagged": "flagged samples",
                                                                     "max_diff_text": "largest |difference| °", "where": "where"})])
         if not shown.empty:
-            route_part.text.append(f"The samples where the models disagree significantly or a model flags the declination "
-                                   f"({len(shown)} listed):")
+            route_part.text.append(f"Per route, the samples where the models disagree significantly and those where a model "
+                                   f"flags the declination; below that table, each such sample ({len(shown)} listed).")
             route_part.tables.append(Table(shown, columns, ["warn"] * len(shown)))
         parts.append(route_part)
     lats, lons = _grid(ctx, places)

@@ -53,7 +53,8 @@ def _flags(part: pd.DataFrame) -> str:
 
 def _shown_legs(legs: pd.DataFrame, samples: pd.DataFrame) -> pd.DataFrame:
     """The legs as the page shows them: where a leg's start or end has a flagged declination, the
-    variation and the courses that depend on it are blank and the flag says why (no huge numbers)."""
+    variation and the courses that depend on it are blank, and so are an uncertainty or budget of
+    180 degrees or more on a flagged leg (no heading at all); the flag says why (no huge numbers)."""
     shown = legs.copy()
     for i in range(len(legs)):
         part = samples[samples["leg"] == i + 1]
@@ -62,8 +63,9 @@ def _shown_legs(legs: pd.DataFrame, samples: pd.DataFrame) -> pd.DataFrame:
             shown.loc[i, ["variation_deg", "magnetic_course_deg", "grivation_deg"]] = np.nan
         if end:
             shown.loc[i, "variation_deg_end"] = np.nan
-        if shown.loc[i, "max_declination_uncertainty_deg"] >= 180.0:
-            shown.loc[i, "max_declination_uncertainty_deg"] = np.nan
+        for column in ("max_declination_uncertainty_deg", "max_budget_steady_deg"):  # 180 deg or more: no heading at all
+            if shown.loc[i, column] >= 180.0 and legs.loc[i, "declination_flag"]:
+                shown.loc[i, column] = np.nan
     return shown
 
 
