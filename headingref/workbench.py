@@ -218,9 +218,15 @@ def status_line(text: str, level: str = "warning") -> dict[str, str]:
 
 
 def _format_value(column: str, value: Any) -> str:
-    if value is None or (isinstance(value, float) and not np.isfinite(value)):
-        return "" if value is None or np.isnan(value) else str(value)
+    if value is None or value is pd.NA or value is pd.NaT:
+        return ""
+    if isinstance(value, float) and not np.isfinite(value):
+        return "" if np.isnan(value) else str(value)
     name = column.lower()
+    if isinstance(value, (bool, np.bool_)):
+        return "yes" if value else "no"
+    if isinstance(value, (int, np.integer)) and not name.endswith(("_deg", "_nt", "_year")):
+        return f"{int(value):,}" if abs(int(value)) >= 10000 else str(int(value))
     if isinstance(value, (int, float, np.integer, np.floating)):
         number = float(value)
         if name.endswith(("course_deg", "heading_deg", "bearing_deg", "azimuth_deg")) and "variation" not in name:

@@ -145,3 +145,12 @@ def test_a_change_from_another_thread_is_drawn_on_the_explorers_own_thread():
 
     assert asyncio.run(notebook()) == "n is 2"
     assert drawn_on == [threading.main_thread()] * 2
+
+
+def test_styled_table_prints_flags_as_words_and_counts_as_whole_numbers():
+    table = pd.DataFrame({"exceeds_limit": [True, False], "n_readings": [12, 24000],
+                          "note": pd.Series(["x", pd.NA], dtype="string")})
+    html = styled(table).to_html()
+    assert ">yes<" in html and ">no<" in html  # not 1.00 / 0.00
+    assert ">12<" in html and ">24,000<" in html  # a count has no decimals (common practice)
+    assert "&lt;NA&gt;" not in html
