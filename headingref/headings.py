@@ -433,6 +433,48 @@ def warn_if_far_from_pole(grid: Grid, lat_deg: Any, what: str = "the points") ->
     return True
 
 
+# One builder per text grid kind, (kind, rest after the colon, the spec's text, the spec) -> Grid.
+def _polar_grid(kind: str, rest: str, text: str, spec: Any) -> Grid:
+    lon0 = _check_range(_number(rest, "reference meridian", text), -180, 180, "reference meridian", text) if rest else 0.0
+    south = kind == "polar-south"
+    lat0 = -90 if south else 90
+    proj = f"+proj=stere +lat_0={lat0} +lat_ts={lat0} +lon_0={lon0!r} +datum=WGS84 +units=m +no_defs"
+    return _make_grid(f"{'polar-south' if south else 'polar'}:{lon0:g}", proj, spec)
+
+
+def _lcc_grid(kind: str, rest: str, text: str, spec: Any) -> Grid:
+    parts = [p.strip() for p in rest.split(",")]
+    if len(parts) != 3:
+        raise InputError(f"grid {spec!r}: lcc needs three numbers LAT1,LAT2,LON0; give {_GRID_HELP}")
+    lat1, lat2, lon0 = (_number(p, w, text) for p, w in zip(parts, ("LAT1", "LAT2", "LON0"), strict=True))
+    for value, what in ((lat1, "LAT1"), (lat2, "LAT2")):
+        _check_range(value, -89.0, 89.0, what, text)
+    _check_range(lon0, -180, 180, "LON0", text)
+    if abs(lat1 + lat2) < 1e-9:
+        raise InputError(f"grid {spec!r}: standard parallels symmetric about the equator make no cone; use tm or utm")
+    proj = f"+proj=lcc +lat_1={lat1!r} +lat_2={lat2!r} +lat_0={(lat1 + lat2) / 2!r} +lon_0={lon0!r} +datum=WGS84 +units=m +no_defs"
+    return _make_grid(f"lcc:{lat1:g},{lat2:g},{lon0:g}", proj, spec)
+
+
+def _utm_grid(kind: str, rest: str, text: str, spec: Any) -> Grid:
+    match = re.fullmatch(r"\s*([0-9]{1,2})\s*([ns]?)\s*", rest)  # ASCII digits only
+    if not match or not 1 <= int(match[1]) <= 60:
+        raise InputError(f"grid {spec!r}: utm needs a zone 1 to 60 with optional N or S (utm:33N); give {_GRID_HELP}")
+    zone, south = int(match[1]), match[2] == "s"
+    proj = f"+proj=utm +zone={zone}{' +south' if south else ''} +datum=WGS84 +units=m +no_defs"
+    return _make_grid(f"utm:{zone}{'S' if south else 'N'}", proj, spec)
+
+
+def _tm_grid(kind: str, rest: str, text: str, spec: Any) -> Grid:
+    lon0 = _check_range(_number(rest, "central meridian", text), -180, 180, "central meridian", text)
+    proj = f"+proj=tmerc +lat_0=0 +lon_0={lon0!r} +k=1 +datum=WGS84 +units=m +no_defs"
+    return _make_grid(f"tm:{lon0:g}", proj, spec)
+
+
+_GRID_BUILDERS = {"polar": _polar_grid, "polar-north": _polar_grid, "polar-south": _polar_grid,
+                  "lcc": _lcc_grid, "utm": _utm_grid, "tm": _tm_grid}
+
+
 def parse_grid(spec: Any) -> Grid:
     """Build a :class:`Grid` from its text spec (see the module docstring) or a pyproj CRS.
 
@@ -449,35 +491,8 @@ def parse_grid(spec: Any) -> Grid:
     kind, _, rest = lower.partition(":")
     if lower == AUTO_GRID:
         raise InputError("grid 'auto' depends on the places; resolve it with headingref.headings.resolve_grid(spec, lat_deg)")
-    if kind in ("polar", "polar-north", "polar-south"):
-        lon0 = _check_range(_number(rest, "reference meridian", text), -180, 180, "reference meridian", text) if rest else 0.0
-        south = kind == "polar-south"
-        lat0 = -90 if south else 90
-        proj = f"+proj=stere +lat_0={lat0} +lat_ts={lat0} +lon_0={lon0!r} +datum=WGS84 +units=m +no_defs"
-        return _make_grid(f"{'polar-south' if south else 'polar'}:{lon0:g}", proj, spec)
-    if kind == "lcc":
-        parts = [p.strip() for p in rest.split(",")]
-        if len(parts) != 3:
-            raise InputError(f"grid {spec!r}: lcc needs three numbers LAT1,LAT2,LON0; give {_GRID_HELP}")
-        lat1, lat2, lon0 = (_number(p, w, text) for p, w in zip(parts, ("LAT1", "LAT2", "LON0"), strict=True))
-        for value, what in ((lat1, "LAT1"), (lat2, "LAT2")):
-            _check_range(value, -89.0, 89.0, what, text)
-        _check_range(lon0, -180, 180, "LON0", text)
-        if abs(lat1 + lat2) < 1e-9:
-            raise InputError(f"grid {spec!r}: standard parallels symmetric about the equator make no cone; use tm or utm")
-        proj = f"+proj=lcc +lat_1={lat1!r} +lat_2={lat2!r} +lat_0={(lat1 + lat2) / 2!r} +lon_0={lon0!r} +datum=WGS84 +units=m +no_defs"
-        return _make_grid(f"lcc:{lat1:g},{lat2:g},{lon0:g}", proj, spec)
-    if kind == "utm":
-        match = re.fullmatch(r"\s*([0-9]{1,2})\s*([ns]?)\s*", rest)  # ASCII digits only
-        if not match or not 1 <= int(match[1]) <= 60:
-            raise InputError(f"grid {spec!r}: utm needs a zone 1 to 60 with optional N or S (utm:33N); give {_GRID_HELP}")
-        zone, south = int(match[1]), match[2] == "s"
-        proj = f"+proj=utm +zone={zone}{' +south' if south else ''} +datum=WGS84 +units=m +no_defs"
-        return _make_grid(f"utm:{zone}{'S' if south else 'N'}", proj, spec)
-    if kind == "tm":
-        lon0 = _check_range(_number(rest, "central meridian", text), -180, 180, "central meridian", text)
-        proj = f"+proj=tmerc +lat_0=0 +lon_0={lon0!r} +k=1 +datum=WGS84 +units=m +no_defs"
-        return _make_grid(f"tm:{lon0:g}", proj, spec)
+    if kind in _GRID_BUILDERS:
+        return _GRID_BUILDERS[kind](kind, rest, text, spec)
     if kind in ("epsg", "esri") or lower.startswith("+proj") or text.startswith(("PROJCRS", "PROJCS", "{")):
         name = text.upper() if kind in ("epsg", "esri") else text
         return _make_grid(name, text, spec)
