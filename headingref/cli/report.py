@@ -31,7 +31,8 @@ def register(subparsers) -> None:
         help_text="one-command report: scenario TOML -> HTML report + CSV + GeoJSON",
         description=(
             "Run every analysis a scenario file names (routes, weak-field zones and poles, the heading "
-            "error budget, compass bases, a compass swing, runway designators) and write a self-contained "
+            "error budget, compass bases, a compass swing, runway designators, VOR station declination, a "
+            "comparison of field models) and write a self-contained "
             "HTML report opening with a one-minute summary, plus the CSV and GeoJSON outputs."
         ),
         examples=EXAMPLES,
