@@ -176,7 +176,8 @@ def _position(value: Any, label: str, where: str) -> tuple[Any, Any, Any]:
     return value[1], value[0], value[2] if len(value) == 3 else None
 
 
-def _geojson(text: str, label: str, route_name: str | None) -> list[dict]:
+def _geojson_features(text: str, label: str) -> list:
+    """The features of a GeoJSON text: a FeatureCollection's, a Feature, or a bare geometry as one feature."""
     try:
         doc = json.loads(text)
     except json.JSONDecodeError as exc:
@@ -187,10 +188,14 @@ def _geojson(text: str, label: str, route_name: str | None) -> list[dict]:
         features = doc.get("features")
         if not isinstance(features, list):
             raise InputError(f"{label}: FeatureCollection without a 'features' list")
-    elif doc["type"] == "Feature":
-        features = [doc]
-    else:
-        features = [{"type": "Feature", "properties": {}, "geometry": doc}]
+        return features
+    if doc["type"] == "Feature":
+        return [doc]
+    return [{"type": "Feature", "properties": {}, "geometry": doc}]
+
+
+def _geojson_lines_and_points(features: list, label: str) -> tuple[list, list]:
+    """(name, positions) of each LineString and (name, lat, lon, alt) of each Point."""
     lines, points = [], []
     for i, feature in enumerate(features):
         geometry = feature.get("geometry") if isinstance(feature, dict) else None
@@ -207,6 +212,11 @@ def _geojson(text: str, label: str, route_name: str | None) -> list[dict]:
             points.append((name, *_position(geometry.get("coordinates"), label, where)))
         elif kind == "MultiLineString":
             raise InputError(f"{label} {where}: a MultiLineString has no one order of waypoints; give one LineString")
+    return lines, points
+
+
+def _geojson(text: str, label: str, route_name: str | None) -> list[dict]:
+    lines, points = _geojson_lines_and_points(_geojson_features(text, label), label)
     if lines:
         vertices = _pick(lines, route_name, "line", label)
         return [_record(label, i, None, la, lo, alt) for i, (la, lo, alt) in enumerate(vertices)]
