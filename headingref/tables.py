@@ -108,8 +108,8 @@ def _cell_text(value) -> str:
     return str(value).strip()
 
 
-def _read_xlsx(path: Path, required: Sequence[str], what: str) -> pd.DataFrame:
-    label = f"{what} {path.name}"
+def _open_workbook(path: Path, label: str):
+    """The workbook opened read-only, or a one-line InputError (too large, not a workbook)."""
     try:
         from openpyxl import load_workbook
     except ImportError:  # pragma: no cover - openpyxl is a dependency
@@ -117,29 +117,39 @@ def _read_xlsx(path: Path, required: Sequence[str], what: str) -> pd.DataFrame:
     try:
         if path.stat().st_size > MAX_TABLE_BYTES:
             raise InputError(f"{label}: file is larger than {MAX_TABLE_BYTES // 2**20} MiB")
-        book = load_workbook(path, read_only=True, data_only=True)
+        return load_workbook(path, read_only=True, data_only=True)
     except InputError:
         raise
     except Exception as exc:  # zipfile.BadZipFile, KeyError, OSError: not a workbook
         raise InputError(f"{label}: not a readable Excel workbook ({type(exc).__name__}); save it as .xlsx or CSV") from None
+
+
+def _sheet_rows(sheet, label: str) -> tuple[list[str] | None, list[list[str]], list[int]]:
+    """Header (lower case), data rows as text padded to the header, and their 1-based row numbers."""
+    header: list[str] | None = None
+    rows: list[list[str]] = []
+    numbers: list[int] = []
+    for number, values in enumerate(sheet.iter_rows(values_only=True), start=1):
+        cells = [_cell_text(v) for v in values]
+        if not any(cells):
+            continue
+        if header is None:
+            header = [c.lower() for c in cells]
+            while header and not header[-1]:
+                header.pop()
+            continue
+        if len(cells) > len(header) and any(cells[len(header):]):
+            raise InputError(f"{label} row {number}: {len(cells)} cells but the header has {len(header)}")
+        rows.append((cells + [""] * len(header))[: len(header)])
+        numbers.append(number)
+    return header, rows, numbers
+
+
+def _read_xlsx(path: Path, required: Sequence[str], what: str) -> pd.DataFrame:
+    label = f"{what} {path.name}"
+    book = _open_workbook(path, label)
     try:
-        sheet = book.worksheets[0]
-        header: list[str] | None = None
-        rows: list[list[str]] = []
-        numbers: list[int] = []
-        for number, values in enumerate(sheet.iter_rows(values_only=True), start=1):
-            cells = [_cell_text(v) for v in values]
-            if not any(cells):
-                continue
-            if header is None:
-                header = [c.lower() for c in cells]
-                while header and not header[-1]:
-                    header.pop()
-                continue
-            if len(cells) > len(header) and any(cells[len(header):]):
-                raise InputError(f"{label} row {number}: {len(cells)} cells but the header has {len(header)}")
-            rows.append((cells + [""] * len(header))[: len(header)])
-            numbers.append(number)
+        header, rows, numbers = _sheet_rows(book.worksheets[0], label)
     finally:
         book.close()
     if header is None:
