@@ -22,7 +22,7 @@ _COMMA, _NEWLINE, _MINUS, _DOT, _ZERO = 44, 10, 45, 46, 48
 
 
 @nb.njit(cache=True)
-def _put_float(x, decimals, pow10, out, pos):
+def _put_float(x, decimals, pow10, out, pos):  # noqa: C901 - a numba byte-writing kernel: flat digit loops kept inline for speed
     if x != x:  # NaN: empty cell
         return pos
     if x == np.inf or x == -np.inf:

@@ -282,7 +282,7 @@ def _check_validity(path: Path, valid_from: float, valid_to: float) -> None:
                           f"from {lo:g} to {hi:g}")
 
 
-def _read_shc(path: Path, text: str) -> Model:
+def _read_shc(path: Path, text: str) -> Model:  # noqa: C901 - owned by the model work in progress (issue 13 item 7 left it alone)
     lines = [line for line in text.splitlines() if line.strip() and not line.lstrip().startswith("#")]
     if len(lines) < 3:
         raise _fail(path, "too short for the SHC format (parameter line, epoch line, coefficient lines)")

@@ -364,7 +364,7 @@ _BLOCK = 64
 
 
 @nb.njit(parallel=True, cache=True, fastmath=True)
-def scattered_uniform(lat_deg, lon_deg, alt_km, g, h, g_rate, h_rate, k1, k2, diag, a_ref, out):
+def scattered_uniform(lat_deg, lon_deg, alt_km, g, h, g_rate, h_rate, k1, k2, diag, a_ref, out):  # noqa: C901 - numba kernel, owned by the synthesis work in progress
     """As :func:`scattered`, for points that share one date (coefficients ``g``.. at that date,
     shape (nmax+1, nmax+1)).
 
