@@ -154,3 +154,16 @@ def test_styled_table_prints_flags_as_words_and_counts_as_whole_numbers():
     assert ">yes<" in html and ">no<" in html  # not 1.00 / 0.00
     assert ">12<" in html and ">24,000<" in html  # a count has no decimals (common practice)
     assert "&lt;NA&gt;" not in html
+
+
+def test_budget_profile_log_axis_reads_as_plain_numbers_when_rendered():
+    # render() draws every text as typed (plots.plain_text); a log axis's default labels are mathtext
+    # ($\mathdefault{10^{1}}$) and would show raw, so the profile labels its decades as plain numbers
+    from headingref.plots.detector import plot_budget_profile
+
+    fig = plot_budget_profile([0.0, 10.0], {"steady": [0.5, 30.0]}, limit_deg=2.0)
+    render(fig)
+    ax = fig.axes[0]
+    low, high = ax.get_ylim()
+    labels = [t.get_text() for t in ax.get_yticklabels() if low <= t.get_position()[1] <= high and t.get_text()]
+    assert labels == ["0.1", "1", "10", "100"]  # the axis spans 0.1 to 200 degrees, one label per decade

@@ -32,6 +32,7 @@ def plot_budget_profile(distance_nm: Sequence[float], cases: Mapping[str, Sequen
     ``cases`` maps a label (drawn as plain text) to the budget at each distance.
     """
     from matplotlib.figure import Figure
+    from matplotlib.ticker import FuncFormatter
 
     fig = Figure(figsize=figsize)
     ax = fig.add_subplot()
@@ -41,6 +42,8 @@ def plot_budget_profile(distance_nm: Sequence[float], cases: Mapping[str, Sequen
     ax.axhline(limit_deg, color="C3", linestyle="--", linewidth=1, label=f"limit {limit_deg:g}°")
     ax.set_yscale("log")
     ax.set_ylim(0.1, 200)
+    # plain numbers (0.1, 1, 10, 100), not the log axis's default mathtext, which plots.plain_text would show raw
+    ax.yaxis.set_major_formatter(FuncFormatter(lambda value, _position: f"{value:g}"))
     ax.set_xlabel("distance along route (NM)")
     ax.set_ylabel("heading error (°, RSS)")
     ax.grid(True, which="both", alpha=0.3)
