@@ -182,7 +182,8 @@ def explore_budget(bank_angle_deg, turn_duration_s, residual_field_nT, slaving_r
     share = grid.attrs.get("saturated_share_beyond_limit", 0.0)
     items = saturation_lines(here)
     if grid.attrs.get("saturated_by", "none") != "none":
-        items.append(status_line(f"map: {100 * share:.0f}% of the area beyond {limit_deg:g}° is saturated by "
+        part = f"{100 * share:.0f}%" if share >= 0.01 else "under 1%"
+        items.append(status_line(f"map: {part} of the area beyond {limit_deg:g}° is saturated by "
                                  f"{grid.attrs['saturated_by'].replace('_', ' ')}"))
     summary = status_line(f"{grid.attrs['area_exceeding_limit_km2']:,.0f} km² beyond {limit_deg:g}°", level="info")
     return [*items, summary, styled(here[BREAKDOWN].reset_index(names="case")), plot_error_map(grid)]
