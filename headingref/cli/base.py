@@ -44,7 +44,7 @@ def register(subparsers) -> None:
     parser.add_argument("--distances", default="50,100", metavar="LIST", help="distances of the setting-out points from the centre, metres (default 50,100)")
     parser.add_argument("--grid", help="grid for grid azimuths: auto (polar grid of each base's hemisphere), polar, polar-south, polar:LON, "
                         "lcc:LAT1,LAT2,LON0, utm:33N, EPSG:NNNN")
-    parser.add_argument("--output", metavar="CSV", help="upkeep table, one row per site")
+    parser.add_argument("--output", metavar="FILE", help="upkeep table, one row per site (.csv, or .xlsx: rounded, units in the header)")
     parser.add_argument("--setting-out", metavar="CSV", help="setting-out points, one row per site, line and distance")
     add_model_options(parser)
     parser.set_defaults(func=run)

@@ -33,7 +33,7 @@ def register(subparsers) -> None:
     parser.add_argument("--alt", default="0", help="height above the WGS84 ellipsoid: km, or 450 m, 35000 ft, FL350 (default 0)")
     parser.add_argument("--date", help="ISO date or decimal year (default: today, UTC)")
     parser.add_argument("--input", metavar="CSV", help="CSV of places (as for 'headingref field')")
-    parser.add_argument("--output", metavar="CSV", help="write the long table to this CSV file")
+    parser.add_argument("--output", metavar="FILE", help="write the long table to this file (.csv, or .xlsx: rounded, units in the header)")
     parser.add_argument("--map", metavar="LAT0:LAT1:LON0:LON1", help="difference map of the first two models over this box (degrees)")
     parser.add_argument("--step", type=float, default=0.25, metavar="DEG", help="grid step of --map in degrees (default 0.25; 1 arc-minute is 0.016667)")
     parser.add_argument("--plot", metavar="PNG", help="with --map: draw the difference map with coastlines")

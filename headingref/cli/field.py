@@ -49,7 +49,7 @@ def register(subparsers) -> None:
     parser.add_argument("--alt", default="0", help="height above the WGS84 ellipsoid: km, or 450 m, 35000 ft, FL350 (default 0)")
     parser.add_argument("--date", help="ISO date or decimal year (default: today, UTC)")
     parser.add_argument("--input", metavar="CSV", help="CSV of places (see below)")
-    parser.add_argument("--output", metavar="CSV", help="write the full table to this CSV file")
+    parser.add_argument("--output", metavar="FILE", help="write the full table to this file (.csv, or .xlsx: rounded, units in the header)")
     parser.add_argument("--csv", action="store_true", help="print CSV (machine output, every row) instead of the readable table")
     add_model_options(parser)
     parser.set_defaults(func=run)

@@ -23,7 +23,7 @@ def register(subparsers) -> None:
         "declination error model headingref applies to each.",
         EXAMPLES,
     )
-    parser.add_argument("--output", metavar="CSV", help="write the table to this CSV file")
+    parser.add_argument("--output", metavar="FILE", help="write the table to this file (.csv, or .xlsx: rounded, units in the header)")
     parser.set_defaults(func=run)
 
 

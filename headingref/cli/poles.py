@@ -33,7 +33,7 @@ def register(subparsers) -> None:
     when.add_argument("--date", help="one date (YYYY-MM-DD or decimal year)")
     when.add_argument("--years", metavar="A:B", help="first and last year, e.g. 1990:2030")
     parser.add_argument("--step", type=float, default=1.0, metavar="YEARS", help="years between dates with --years (default 1)")
-    parser.add_argument("--output", metavar="CSV", help="write the table to this CSV file")
+    parser.add_argument("--output", metavar="FILE", help="write the table to this file (.csv, or .xlsx: rounded, units in the header)")
     parser.add_argument("--plot", metavar="PNG", help="map of the pole tracks (both caps)")
     add_model_options(parser)
     parser.set_defaults(func=run)

@@ -42,7 +42,7 @@ def register(subparsers) -> None:
     parser.add_argument("--rhumb", action="store_true", help="follow rhumb lines (constant true course) instead of geodesics")
     parser.add_argument("--spacing", type=float, default=10.0, metavar="NM", help="greatest distance between samples (default 10 NM)")
     parser.add_argument("--alt", default="0", help="altitude of waypoints without one (km, or 35000 ft, FL350; at most 30 km; default 0)")
-    parser.add_argument("--output", required=True, metavar="CSV", help="legs table")
+    parser.add_argument("--output", required=True, metavar="FILE", help="legs table (.csv, or .xlsx: rounded, units in the header)")
     parser.add_argument("--samples", metavar="CSV", help="every sample point along the route")
     parser.add_argument("--geojson", metavar="FILE", help="legs as GeoJSON lines (cut at the antimeridian) and waypoints")
     parser.add_argument("--kml", metavar="FILE", help="legs, weak-field stretches (own styles) and waypoints as KML 2.2")

@@ -84,7 +84,7 @@ def register(subparsers) -> None:
     parser.add_argument("--conditions", default="", help="swing conditions, e.g. 'engines running, radios on'")
     parser.add_argument("--bases", metavar="CSV", help="compass bases CSV: link the swing to the base's marked variation and survey date")
     parser.add_argument("--base", default="", metavar="NAME", help="name of the compass base the swing was made on")
-    parser.add_argument("--output", metavar="CSV", help="coefficients, one row: A_deg..E_deg, verdict, verdict_basis, max_deviation_deg, max_residual_deg, ...")
+    parser.add_argument("--output", metavar="FILE", help="coefficients (.csv or .xlsx), one row: A_deg..E_deg, verdict, verdict_basis, max_deviation_deg, max_residual_deg, ...")
     parser.add_argument("--card", metavar="CSV", help="correction card")
     parser.add_argument("--residuals", metavar="CSV", help="per-reading deviation, fit and residuals")
     parser.add_argument("--plot", metavar="FILE", help="deviation curve figure (.png, .pdf, .svg)")
