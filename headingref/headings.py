@@ -63,6 +63,7 @@ from typing import Any
 import numpy as np
 import pyproj
 
+from ._types import AngleArray, DateLike, HeightArray, ModelLike
 from .errors import DataQualityWarning, InputError
 from .units import decimal_year, format_dm, parse_coordinate, parse_number
 
@@ -136,7 +137,7 @@ def wrap_angle(angle_deg: Any) -> Any:
 # --------------------------------------------------------------------------- true / magnetic
 
 
-def model_variation_deg(lat: Any, lon: Any, date: Any, alt_km: Any = 0.0, model: Any = None) -> Any:
+def model_variation_deg(lat: AngleArray, lon: AngleArray, date: DateLike, alt_km: HeightArray = 0.0, model: ModelLike = None) -> Any:
     """Variation (declination, east positive, degrees) from the field model at places and a date.
 
     Thin wrapper over :func:`headingref.field.field_arrays`. Raises :class:`InputError`
@@ -167,14 +168,14 @@ def _variation(variation: Any, lat: Any, lon: Any, date: Any, alt_km: Any, model
 
 
 def true_to_magnetic(
-    true_deg: Any,
-    variation_deg: Any = None,
+    true_deg: AngleArray,
+    variation_deg: AngleArray | None = None,
     *,
-    lat: Any = None,
-    lon: Any = None,
-    date: Any = None,
-    alt_km: Any = 0.0,
-    model: Any = None,
+    lat: AngleArray | None = None,
+    lon: AngleArray | None = None,
+    date: DateLike | None = None,
+    alt_km: HeightArray = 0.0,
+    model: ModelLike = None,
 ) -> Any:
     """Magnetic heading = true heading - variation (east positive), in ``[0, 360)``.
 
@@ -185,7 +186,7 @@ def true_to_magnetic(
     return _scalar_or_array(normalize_heading(np.asarray(true_deg, dtype=np.float64) - v), true_deg)
 
 
-def magnetic_to_true(magnetic_deg: Any, variation_deg: Any = None, **place: Any) -> Any:
+def magnetic_to_true(magnetic_deg: AngleArray, variation_deg: AngleArray | None = None, **place: Any) -> Any:
     """True heading = magnetic heading + variation (east positive), in ``[0, 360)``.
 
     ``place`` takes ``lat, lon, date, alt_km, model`` as in :func:`true_to_magnetic`.
@@ -499,7 +500,7 @@ def parse_grid(spec: Any) -> Grid:
     raise InputError(f"grid {spec!r} is not understood; give {_GRID_HELP}")
 
 
-def convergence_deg(lat: Any, lon: Any, grid: Any = "polar") -> Any:
+def convergence_deg(lat: AngleArray, lon: AngleArray, grid: Any = "polar") -> Any:
     """Meridian convergence (true north to grid north, east positive, degrees) of ``grid`` at lat, lon.
 
     ``grid`` as :func:`parse_grid`, or ``auto`` (:func:`resolve_grid`: the polar grid of the pole

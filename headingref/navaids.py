@@ -57,9 +57,9 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
+from ._types import DateLike, ModelLike, PathLike, TableSource
 from .errors import InputError
 from .io import coordinate_column, date_column
-from .model import Model
 from .runways import _crossing_fraction, _KnotField, _stamps
 from .units import parse_height_km
 
@@ -185,11 +185,11 @@ def _read(frame: pd.DataFrame) -> dict:
 
 
 def check_navaids(
-    table: pd.DataFrame | str | os.PathLike,
-    date: Any,
+    table: TableSource,
+    date: DateLike,
     tolerance_deg: float = DEFAULT_TOLERANCE_DEG,
     horizon_years: float = 10.0,
-    model: Model | str | os.PathLike | None = None,
+    model: ModelLike = None,
     allow_extrapolation: bool = False,
     columns: str | dict | None = None,
 ) -> NavaidCheck:
@@ -306,7 +306,7 @@ def _variation_at_alignment(values: dict, settings) -> np.ndarray:
     return out
 
 
-def write_navaid_table(target: str | os.PathLike, result: NavaidCheck):
+def write_navaid_table(target: PathLike, result: NavaidCheck):
     """Write the checked table as CSV or ``.xlsx`` (by the name), rounded, units in a workbook's header."""
     from .tables import write_table
 

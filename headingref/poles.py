@@ -41,6 +41,7 @@ import numpy as np
 import pandas as pd
 from pyproj import Transformer
 
+from ._types import DatesLike, ModelLike
 from .errors import ExtrapolationWarning, InputError, UndefinedDeclinationWarning
 from .field import field_arrays, field_grid
 from .geogrid import CAPS, date_label
@@ -89,7 +90,7 @@ def geocentric_from_geodetic_lat(lat_deg: Any, alt_km: Any = 0.0) -> np.ndarray:
     return np.degrees(np.arctan2((n * (1.0 - WGS84_E2) + h) * np.sin(lat), (n + h) * np.cos(lat)))
 
 
-def geomagnetic_poles(date: Any, model=None, allow_extrapolation: bool = False) -> pd.DataFrame:
+def geomagnetic_poles(date: DatesLike, model: ModelLike = None, allow_extrapolation: bool = False) -> pd.DataFrame:
     """North and south geomagnetic (centred-dipole) poles from g10, g11, h11.
 
     Returns a DataFrame ``date, pole, kind, lat, lon, decimal_year, lat_geocentric, dipole_nT``
@@ -167,7 +168,7 @@ def _dip_pole(year: float, hemisphere: str, model, alt_km: float, tol_nT: float 
     return float(lat), float((lon + 180.0) % 360.0 - 180.0), float(f["horizontal_nT"][0])
 
 
-def dip_poles(date: Any, model=None, alt_km: float = 0.0, allow_extrapolation: bool = False) -> pd.DataFrame:
+def dip_poles(date: DatesLike, model: ModelLike = None, alt_km: float = 0.0, allow_extrapolation: bool = False) -> pd.DataFrame:
     """North and south dip poles (H = 0 on the ellipsoid at ``alt_km``).
 
     Returns a DataFrame ``date, pole, kind, lat, lon, decimal_year, lat_geocentric,

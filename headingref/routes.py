@@ -47,6 +47,7 @@ import numpy as np
 import pandas as pd
 import pyproj
 
+from ._types import DateLike, ModelLike
 from .errors import InputError
 from .headings import grivation_deg, normalize_heading, resolve_grid, warn_if_far_from_pole, wrap_angle
 from .io import coordinate_column, read_table
@@ -551,12 +552,12 @@ def _legs_table(track: _Track, refs: _References, legs: _Legs, along_leg_nm: np.
 
 def route(
     waypoints: Any,
-    date: Any,
+    date: DateLike,
     alt_km: Any = 0.0,
     grid: Any = None,
     spacing_nm: float = 10.0,
     path: str = "geodesic",
-    model: Any = None,
+    model: ModelLike = None,
     allow_extrapolation: bool = False,
     route_name: str | None = None,
 ) -> RouteResult:

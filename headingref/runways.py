@@ -130,6 +130,7 @@ import numpy as np
 import pandas as pd
 import pyproj
 
+from ._types import DateLike, ModelLike, PathLike, TableSource
 from .errors import DataQualityWarning, InputError
 from .model import Model, load_model
 from .units import decimal_year, parse_coordinate, parse_height_km, timestamp_from_decimal_year
@@ -1313,10 +1314,10 @@ def _summary(out: pd.DataFrame, changes: pd.DataFrame, settings: _Settings) -> d
 
 
 def check_runways(
-    table: pd.DataFrame | str | os.PathLike,
-    date: Any,
+    table: TableSource,
+    date: DateLike,
     horizon_years: float = 10.0,
-    model: Model | str | os.PathLike | None = None,
+    model: ModelLike = None,
     tolerance_deg: float = BOUNDARY_TOLERANCE_DEG,
     allow_extrapolation: bool = False,
     band_sigmas: float | None = None,
@@ -1405,7 +1406,7 @@ def _warn_summary(out: pd.DataFrame, labels: list[str]) -> None:
             warnings.warn(f"{rows.size} runway row(s) {what}: {first}{more}", DataQualityWarning, stacklevel=3)
 
 
-def write_runway_table(target: str | os.PathLike, result: RunwayCheck, changes: bool = False):
+def write_runway_table(target: PathLike, result: RunwayCheck, changes: bool = False):
     """Write the checked table (or the changes) as CSV or ``.xlsx`` (by the name), rounded, with units in a workbook's header."""
     from .tables import write_table
 

@@ -46,6 +46,7 @@ from dataclasses import asdict, dataclass, field, fields
 from pathlib import Path
 from typing import Any, NamedTuple
 
+from ._types import PathLike
 from .detector import DetectorSettings, Manoeuvre
 from .errors import InputError
 from .geogrid import CAPS
@@ -465,7 +466,7 @@ def _fill_dependent_values(sections: dict, top: dict, where: str) -> None:
         swing["date"] = bases["swing_date"] if bases else top["analysis_date"]
 
 
-def load_scenario(path: str | os.PathLike) -> Scenario:
+def load_scenario(path: PathLike) -> Scenario:
     """Read and validate a scenario TOML file.
 
     Parameters
