@@ -43,6 +43,15 @@ Public API
 :func:`setting_out_parameters`, :func:`model_variation_function`, :func:`utm_zone`, :data:`DEFAULT_TOLERANCE_DEG`,
 :data:`DEFAULT_MARK_STEP_DEG`, :data:`SITE_CAUTION`, :data:`UPKEEP_COLUMNS`, :data:`SETTING_OUT_COLUMNS`.
 
+References
+----------
+.. [1] C. F. F. Karney, "Algorithms for geodesics", *Journal of Geodesy* 87(1), 43-55
+   (2013), doi:10.1007/s00190-012-0578-z. (``pyproj.Geod`` implements it.)
+.. [2] C. F. F. Karney, "Transverse Mercator with an accuracy of a few nanometers",
+   *Journal of Geodesy* 85(8), 475-485 (2011), doi:10.1007/s00190-011-0445-3. (PROJ's ``tmerc``/``utm``.)
+.. [3] National Geospatial-Intelligence Agency, *Handbook of Magnetic Compass Adjustment*
+   (2004; formerly Pub. No. 226) (no DOI).
+
 >>> from headingref.compass_base import make_site, base_upkeep, setting_out
 >>> site = make_site("North apron base", 69.3, 16.1, "9°30′E", "2026-06-01")
 >>> table = base_upkeep([site], "2026-12-02")

@@ -72,6 +72,17 @@ xarray Dataset, with the area beyond the limit), :class:`DetectorSettings`, :cla
 :func:`small_angle_tilt_error_deg`, :func:`residual_field_error_deg`, :func:`slaving_time_min`,
 :func:`slaving_drift_deg`, :func:`flux_gate_arm_outputs`, :func:`heading_from_arm_outputs`.
 
+References
+----------
+.. [1] Federal Aviation Administration, *Pilot's Handbook of Aeronautical Knowledge*,
+   FAA-H-8083-25, chapter "Flight Instruments": magnetic compass acceleration and turning
+   errors, the remote-indicating (slaved) compass (no DOI; edition from memory: 25C, 2023).
+.. [2] A. Chulliat, W. Brown, P. Alken, C. Beggan, M. Nair, G. Cox, A. Woods, S. Macmillan,
+   B. Meyer and M. Paniccia, *The US/UK World Magnetic Model for 2020-2025: Technical Report*,
+   NOAA National Centers for Environmental Information (2020), doi:10.25923/ytk1-yx35.
+.. [3] A. Chulliat et al., *The US/UK World Magnetic Model for 2025-2030: Technical Report*,
+   NOAA National Centers for Environmental Information (2025), doi:10.25923/prbc-s316.
+
 >>> from headingref.detector import slaving_time_min, tilt_heading_error_deg
 >>> float(slaving_time_min(6.0))  # 6 degrees at the default 3 deg/min
 2.0

@@ -17,6 +17,11 @@ imports the other:
   (:meth:`pyproj.Geod.polygon_area_perimeter`, Karney 2013, doi:10.1007/s00190-012-0578-z).
 - :func:`date_label`: a decimal year as ``YYYY-MM-DD`` for table rows.
 
+References
+----------
+.. [1] C. F. F. Karney, "Algorithms for geodesics", *Journal of Geodesy* 87(1), 43-55
+   (2013), doi:10.1007/s00190-012-0578-z. (``pyproj.Geod`` implements it.)
+
 >>> from headingref.geogrid import CAPS, parse_area
 >>> CAPS["south"].edge_lat_deg
 50.0

@@ -40,6 +40,15 @@ Grids: :class:`Grid`, :func:`parse_grid`, :func:`convergence_deg`, :func:`resolv
 Text: :func:`parse_heading`, :func:`parse_variation`, :func:`format_heading`,
 :func:`format_variation`.
 
+References
+----------
+.. [1] J. P. Snyder, *Map Projections: A Working Manual*, U.S. Geological Survey
+   Professional Paper 1395 (1987), doi:10.3133/pp1395.
+.. [2] C. F. F. Karney, "Transverse Mercator with an accuracy of a few nanometers",
+   *Journal of Geodesy* 85(8), 475-485 (2011), doi:10.1007/s00190-011-0445-3. (PROJ's ``tmerc``/``utm``.)
+.. [3] C. F. F. Karney, "Algorithms for geodesics", *Journal of Geodesy* 87(1), 43-55
+   (2013), doi:10.1007/s00190-012-0578-z. (``pyproj.Geod`` implements it.)
+
 >>> float(true_to_magnetic(45.0, variation_deg=-12.5))  # west variation is added
 57.5
 >>> format_heading(359.7), format_variation(-12.5)

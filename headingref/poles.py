@@ -25,6 +25,14 @@
 Public API: :func:`dip_poles`, :func:`geomagnetic_poles`, :func:`pole_tracks`,
 :func:`geodetic_from_geocentric_lat`. The package exports the first three at top level.
 
+References
+----------
+.. [1] A. C. Fraser-Smith, "Centered and eccentric geomagnetic dipoles and their poles,
+   1600-1985", *Reviews of Geophysics* 25(1), 1-16 (1987), doi:10.1029/RG025i001p00001.
+.. [2] P. Alken, E. Thebault, C. D. Beggan et al., "International Geomagnetic Reference
+   Field: the thirteenth generation", *Earth, Planets and Space* 73, 49 (2021),
+   doi:10.1186/s40623-020-01288-x.
+
 >>> import headingref
 >>> poles = headingref.dip_poles("2025-01-01")
 >>> bool((poles.horizontal_nT < 1.0).all())

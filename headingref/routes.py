@@ -34,6 +34,14 @@ Notes
   :data:`headingref.field.CAUTION_NT` / :data:`headingref.field.BLACKOUT_NT`; their ends
   are found by linear interpolation of H between samples. They are listed as
   ``"from-to"`` distances along the leg in NM, ``"; "`` between stretches.
+
+References
+----------
+.. [1] C. F. F. Karney, "Algorithms for geodesics", *Journal of Geodesy* 87(1), 43-55
+   (2013), doi:10.1007/s00190-012-0578-z. (``pyproj.Geod`` implements it.)
+.. [2] J. P. Snyder, *Map Projections: A Working Manual*, U.S. Geological Survey
+   Professional Paper 1395 (1987), doi:10.3133/pp1395. (Rhumb lines: the meridian-distance series
+   in the third flattening, :func:`meridian_distance_m`.)
 """
 
 from __future__ import annotations

@@ -103,6 +103,14 @@ Public API
 - :func:`magnetic_bearing_series` (runway magnetic azimuth against time, for plots)
 - :func:`write_runway_table`; :data:`OUTPUT_COLUMNS`, :data:`CHANGE_COLUMNS`, :data:`VERDICTS`
 
+References
+----------
+.. [1] ICAO, Annex 14 to the Convention on International Civil Aviation, *Aerodromes*,
+   Volume I, *Aerodrome Design and Operations*, 8th ed. (2018), runway designation marking
+   (no DOI).
+.. [2] C. F. F. Karney, "Algorithms for geodesics", *Journal of Geodesy* 87(1), 43-55
+   (2013), doi:10.1007/s00190-012-0578-z. (``pyproj.Geod`` implements it.)
+
 >>> import pandas as pd
 >>> from headingref.runways import check_runways, designator_from_magnetic
 >>> int(designator_from_magnetic(357.0))

@@ -77,6 +77,13 @@ Public API
 :class:`DeviationCurve`, :class:`DeviationFit`, :class:`SwingAnalysis`, :class:`CardDetails`,
 :data:`DEFAULT_LIMIT_DEG`, :data:`COEFFICIENT_MEANINGS`, :data:`COMPASS_POINTS_DEG`.
 
+References
+----------
+.. [1] National Geospatial-Intelligence Agency, *Handbook of Magnetic Compass Adjustment*
+   (2004; formerly Pub. No. 226), chapters III-V (no DOI).
+.. [2] U.S. Code of Federal Regulations, Title 14, sections 23.1327, 25.1327 and 29.1327,
+   magnetic direction indicator (no DOI).
+
 >>> import numpy as np
 >>> from headingref.swing import analyse_swing
 >>> headings = np.arange(0, 360, 45.0)
