@@ -25,7 +25,8 @@ from headingref.report import REPORT_FILE, build_report
 from headingref.scenario import DEMO_SCENARIO, load_scenario
 
 DEMO = DEMO_SCENARIO.parent
-SECTIONS = ("summary", "caution", "routes", "zones", "error-budget", "compass-bases", "swing", "runways")
+SECTIONS = ("summary", "caution", "routes", "zones", "error-budget", "compass-bases", "swing", "runways", "navaids",
+            "model-comparison")
 
 
 @pytest.fixture(scope="module")
