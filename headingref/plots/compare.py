@@ -1,4 +1,4 @@
-"""Map of the declination difference between two field models, with the shipped coastline.
+"""Model differences: a map between two field models (with the shipped coastline), a route profile.
 
 :func:`plot_difference_map` draws :func:`headingref.compare.difference_grid`'s
 ``declination_diff_deg`` (model b minus model a, degrees, east positive) on a
@@ -66,3 +66,45 @@ def plot_difference_map(ds, kind: str | None = None, extent: Any = None, limit_d
                  f"{ds.attrs['decimal_year']:.2f}, {ds.attrs['alt_km']:g} km\n"
                  "black line: difference = combined 1σ uncertainty of the two models", fontsize=9)
     return plain_text(fig)
+
+
+def plot_route_difference(comparison, ax=None):
+    """Profile of the declination difference along a route (:func:`headingref.compare.compare_route`).
+
+    Each model other than the first is drawn as its declination minus the first's (degrees, east
+    positive) against the distance along the route (NM), with a band of the combined 1 sigma
+    uncertainty of the two models (dashed, ±) and the stretches beyond it shaded; thin vertical
+    lines mark the waypoints. Returns the matplotlib Figure.
+    """
+    from matplotlib import rcParams
+    from matplotlib.figure import Figure
+
+    from . import plain_text
+
+    samples, stretches = comparison.samples, comparison.stretches
+    reference = samples.attrs.get("reference_model", str(samples.model.iloc[0]))
+    if ax is None:
+        ax = Figure(figsize=(9, 4.2), layout="constrained").add_subplot()
+    others = [m for m in samples.model.cat.categories if m != reference]
+    colours = rcParams["axes.prop_cycle"].by_key()["color"]
+    for k, model in enumerate(others):
+        part = samples[samples.model.astype(str) == model]
+        colour = colours[k % len(colours)]
+        x = part.distance_along_route_nm.to_numpy()
+        ax.plot(x, part.declination_diff_deg.to_numpy(), color=colour, linewidth=1.4, label=f"{model} − {reference}")
+        band = part.combined_uncertainty_deg.to_numpy()
+        ax.plot(x, band, color=colour, linewidth=0.8, linestyle="--")
+        ax.plot(x, -band, color=colour, linewidth=0.8, linestyle="--", label=f"± combined 1σ ({model}, {reference})")
+        for row in stretches[stretches.model == model].itertuples(index=False):
+            ax.axvspan(row.from_route_nm, row.to_route_nm, color=colour, alpha=0.15, linewidth=0)
+    starts = samples.drop_duplicates("leg").distance_along_route_nm.to_numpy()
+    for x in starts[1:]:
+        ax.axvline(x, color="0.6", linewidth=0.6)
+    ax.axhline(0.0, color="0.3", linewidth=0.6)
+    ax.set_xlabel("distance along the route (NM)")
+    ax.set_ylabel(f"declination minus {reference} (°, east positive)")
+    ax.set_title("Declination difference between field models along the route\n"
+                 "shaded: the difference exceeds the two models' combined 1σ uncertainty", fontsize=9)
+    ax.legend(fontsize=8, loc="best")
+    ax.grid(alpha=0.3)
+    return plain_text(ax.figure)
