@@ -96,8 +96,6 @@ def _wide(long: pd.DataFrame, places: pd.DataFrame, names: list[str]) -> pd.Data
         wide["max_diff_deg"] = np.where(flagged, np.nan, np.nanmax(diff, axis=1))
         wide["combined_uncertainty_deg"] = np.where(flagged, np.nan, np.nanmax(combined, axis=1))
     wide["significant"] = significant.any(axis=1) & ~flagged
-    wide["max_diff_text"] = [f"{v:.2f}" if np.isfinite(v) else "" for v in wide["max_diff_deg"]]
-    wide["combined_text"] = [f"{v:.2f}" if np.isfinite(v) else "" for v in wide["combined_uncertainty_deg"]]
     wide["flag"] = ["; ".join(dict.fromkeys(f for f in long[long["place"] == i]["declination_flag"].astype(str) if f))
                     for i in range(len(wide))]
     return wide
@@ -144,7 +142,7 @@ def job(ctx: Context) -> Section:
     if not fixed.empty:
         levels = ["bad" if s else "warn" if f else "" for s, f in zip(fixed["significant"], fixed["flag"], strict=True)]
         columns = {"kind": "place", "name": "name", "position": "position", **{n: f"{n} °" for n in names},
-                   "max_diff_text": f"largest |difference| to {ref} °", "combined_text": "combined 1σ °",
+                   "max_diff_deg": f"largest |difference| to {ref} °", "combined_uncertainty_deg": "combined 1σ °",
                    "significant": "significant", "flag": "flag"}
         parts.append(Part("Compass bases and runways", tables=[Table(fixed, columns, levels)]))
         for r in fixed[fixed["significant"]].itertuples():
@@ -170,7 +168,6 @@ def job(ctx: Context) -> Section:
             i = int(np.nanargmax(worst)) if np.isfinite(worst).any() else 0
             per_route.append({"route": name, "samples": len(mine), "significant": int(mine["significant"].sum()),
                               "flagged": int((mine["flag"] != "").sum()), "max_diff_deg": worst[i] if worst.size else np.nan,
-                              "max_diff_text": f"{worst[i]:.2f}" if worst.size and np.isfinite(worst[i]) else "",
                               "where": mine["where"].iat[i]})
             if mine["significant"].any():
                 summary.append(SummaryItem(f"{int(mine['significant'].sum())} of {len(mine)} samples where the models disagree "
@@ -179,10 +176,10 @@ def job(ctx: Context) -> Section:
         table = pd.DataFrame(per_route)
         shown = route_rows[route_rows["significant"] | (route_rows["flag"] != "")].head(TABLE_LIMIT)
         columns = {"route": "route", "where": "leg and distance along it", "position": "position", **{n: f"{n} °" for n in names},
-                   "max_diff_text": f"largest |difference| to {ref} °", "combined_text": "combined 1σ °", "flag": "flag"}
+                   "max_diff_deg": f"largest |difference| to {ref} °", "combined_uncertainty_deg": "combined 1σ °", "flag": "flag"}
         route_part = Part("Along the routes", tables=[Table(table, {"route": "route", "samples": "samples",
                                                                     "significant": "significant samples", "flagged": "flagged samples",
-                                                                    "max_diff_text": "largest |difference| °", "where": "where"})])
+                                                                    "max_diff_deg": "largest |difference| °", "where": "where"})])
         if not shown.empty:
             route_part.text.append(f"Per route, the samples where the models disagree significantly and those where a model "
                                    f"flags the declination; below that table, each such sample ({len(shown)} listed).")

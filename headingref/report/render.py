@@ -19,7 +19,8 @@ import pandas as pd
 from ..notices import CAUTION
 from .content import Section, Table
 
-_DECIMALS = (("standard_error_deg", 2), ("minus_model_deg", 2), ("_nT", 0), ("_nm", 1), ("_km", 1), ("_km2", 0), ("_m", 1),
+_DECIMALS = (("standard_error_deg", 2), ("minus_model_deg", 2), ("margin_deg", 2), ("band_deg", 2), ("diff_deg", 2), ("difference_deg", 2),
+             ("uncertainty_deg", 2), ("years_to_change", 1), ("_nT", 0), ("_nm", 1), ("_km", 1), ("_km2", 0), ("_m", 1),
              ("_min", 1), ("_deg", 1), ("_years", 1), ("_year", 2))
 
 SUMMARY_TOPICS = (

@@ -37,7 +37,7 @@ VERDICT_WORDS = {
 
 _RUNWAY_COLUMNS = {
     "airport": "airport", "runway_id": "runway", "runway_magnetic_deg": "runway magnetic °", "variation_deg": "variation °",
-    "implied": "implied", "verdict_text": "verdict", "margin_text": "margin to boundary °", "band_text": "band °",
+    "implied": "implied", "verdict_text": "verdict", "margin_deg": "margin to boundary °", "band_deg": "band °",
     "last_fit_text": "painted designator last fitted", "changes_text": "changes within the horizon", "pair_check": "pair check",
 }
 _END_COLUMNS = {
@@ -47,7 +47,7 @@ _END_COLUMNS = {
     "reason": "reason",
 }
 _CHANGE_COLUMNS = {"change_date": "changes on", "airport": "airport", "runway_id": "runway", "change": "designators",
-                   "years_text": "in years"}
+                   "years_to_change": "in years"}
 _NOT_CHECKED_COLUMNS = {"input_row": "row", "airport": "airport", "runway": "runway", "reason": "reason"}
 
 
@@ -71,8 +71,7 @@ def _change_events(changes: pd.DataFrame) -> pd.DataFrame:
     grouped = changes.groupby(["airport", "runway_id", "change_date"], sort=False)
     rows = [{"change_date": date, "airport": airport, "runway_id": rid,
              "change": f"{'/'.join(g['designator_before'])} → {'/'.join(g['next_designator'])}",
-             "after": "/".join(g["next_designator"]), "years_to_change": float(g["years_to_change"].iloc[0]),
-             "years_text": f"{float(g['years_to_change'].iloc[0]):.1f}"}
+             "after": "/".join(g["next_designator"]), "years_to_change": float(g["years_to_change"].iloc[0])}
             for (airport, rid, date), g in grouped]
     return pd.DataFrame(rows).sort_values(["change_date", "airport", "runway_id"], kind="stable").reset_index(drop=True)
 
@@ -89,14 +88,12 @@ def _runway_table(table: pd.DataFrame, events: pd.DataFrame, check_date: str) ->
             "variation_deg": first["variation_deg"], "implied": "/".join(g["designator_implied"]), "verdict": first["verdict"],
             "verdict_text": VERDICT_WORDS.get(first["verdict"], first["verdict"]), "margin_deg": first["margin_deg"],
             "band_deg": first["band_deg"], "last_fit_date": first["last_fit_date"],
-            "margin_text": f"{first['margin_deg']:.2f}", "band_text": f"{first['band_deg']:.2f}",
             "last_fit_text": _last_fit_words(first["last_fit_date"], check_date),
             "changes_text": "; ".join(f"{d}: {c}" for d, c in zip(mine["change_date"], mine["change"], strict=True)),
             "first_change": mine["change_date"].iloc[0] if len(mine) else "",
             "pair_check": ", ".join(dict.fromkeys(g["pair_check"].astype(str))), "status": ", ".join(dict.fromkeys(g["status"])),
         })
-    return pd.DataFrame(rows, columns=[*_RUNWAY_COLUMNS, "verdict", "margin_deg", "band_deg", "last_fit_date", "first_change",
-                                       "status"])
+    return pd.DataFrame(rows, columns=[*_RUNWAY_COLUMNS, "verdict", "last_fit_date", "first_change", "status"])
 
 
 def _level(verdict: str, status: str, changing: bool) -> str:
