@@ -67,9 +67,8 @@ def test_already_exceeding_and_never_within_the_horizon():
     assert t.realign_date.tolist() == [DATE, ""]  # ppigrf drift here is ~0.2 deg/yr: no crossing of 1 deg in a year
 
 
-def test_column_mapping_and_bad_input(tmp_path):
-    path = tmp_path / "vors.csv"
-    path.write_text("id,latitude,longitude,slaved\nXQF,61 00 00 N,010 00 00 E,2.5\n", encoding="utf-8")
+def test_column_mapping_and_bad_input(write_csv):
+    path = write_csv("vors.csv", "id,latitude,longitude,slaved\nXQF,61 00 00 N,010 00 00 E,2.5\n")
     t = check_navaids(path, DATE, columns="ident=id,lat=latitude,lon=longitude,station_declination_deg=slaved").table
     assert t.lat[0] == 61.0 and t.station_declination_deg[0] == 2.5
     path.write_text("ident,lat,lon,station_declination_deg\nXQG,61,10,east\n", encoding="utf-8")

@@ -271,9 +271,8 @@ def test_too_few_waypoints():
         route([("A", 70.0, 10.0)], DATE)
 
 
-def test_zero_length_leg_names_rows(tmp_path):
-    csv = tmp_path / "r.csv"
-    csv.write_text("name,lat,lon\nA,70,10\nB,71,12\nC,71.0,12.0\n", encoding="utf-8")
+def test_zero_length_leg_names_rows(write_csv):
+    csv = write_csv("r.csv", "name,lat,lon\nA,70,10\nB,71,12\nC,71.0,12.0\n")
     with pytest.raises(InputError, match=r"r.csv line 4 repeats r.csv line 3"):
         route(csv, DATE)
     # the same pole written with two longitudes is the same point
@@ -281,9 +280,8 @@ def test_zero_length_leg_names_rows(tmp_path):
         route([("A", 80.0, 0.0), ("P1", 90.0, 0.0), ("P2", 90.0, 45.0)], DATE)
 
 
-def test_bad_coordinate_names_line(tmp_path):
-    csv = tmp_path / "r.csv"
-    csv.write_text("name,lat,lon\nA,70,10\nB,95,12\n", encoding="utf-8")
+def test_bad_coordinate_names_line(write_csv):
+    csv = write_csv("r.csv", "name,lat,lon\nA,70,10\nB,95,12\n")
     with pytest.raises(InputError, match=r"r.csv line 3: latitude"):
         route(csv, DATE)
     with pytest.raises(InputError, match=r"waypoint 2 \(B\): longitude"):
@@ -348,11 +346,10 @@ def test_cli_writes_all_outputs(tmp_path, capsys):
     assert out["map"].stat().st_size > 10_000 and out["profile"].stat().st_size > 10_000
 
 
-def test_cli_bad_input_writes_nothing(tmp_path, capsys):
+def test_cli_bad_input_writes_nothing(tmp_path, capsys, write_csv):
     from headingref.cli import main
 
-    csv = tmp_path / "r.csv"
-    csv.write_text("name,lat,lon\nA,70,10\n", encoding="utf-8")
+    csv = write_csv("r.csv", "name,lat,lon\nA,70,10\n")
     legs = tmp_path / "legs.csv"
     rc = main(["route", "--input", str(csv), "--date", DATE, "--output", str(legs)])
     assert rc == 2
@@ -384,10 +381,9 @@ def test_explicit_northern_grid_on_a_southern_route_warns():
         route(SOUTH_ROUTE, DATE, spacing_nm=100.0, grid="polar")
 
 
-def test_route_altitude_units(tmp_path):
+def test_route_altitude_units(write_csv):
     # international foot, 0.3048 m exactly (1959): 35,000 ft = 10.668 km
-    csv = tmp_path / "r.csv"
-    csv.write_text("name,lat,lon,alt_ft\nA,70,10,0\nB,71,12,35000\n", encoding="utf-8")
+    csv = write_csv("r.csv", "name,lat,lon,alt_ft\nA,70,10,0\nB,71,12,35000\n")
     assert read_waypoints(csv).alt_km.tolist() == pytest.approx([0.0, 10.668])
     csv.write_text("name,lat,lon,alt_m\nA,70,10,120\nB,71,12,\n", encoding="utf-8")
     assert read_waypoints(csv, alt_km=1.0).alt_km.tolist() == pytest.approx([0.12, 1.0])
@@ -399,9 +395,8 @@ def test_route_altitude_units(tmp_path):
      ("alt_km", "350", r"r.csv line 3: height '350' is 350 km.*FL350 or 35000 ft"),
      ("alt", "35 km", r"r.csv line 3: .*35 km.*FL350")],
 )
-def test_bare_or_impossible_altitude_refused(tmp_path, header, cell, match):
-    csv = tmp_path / "r.csv"
-    csv.write_text(f"name,lat,lon,{header}\nA,70,10,0 ft\nB,71,12,{cell}\n".replace(",0 ft", ",0"), encoding="utf-8")
+def test_bare_or_impossible_altitude_refused(header, cell, match, write_csv):
+    csv = write_csv("r.csv", f"name,lat,lon,{header}\nA,70,10,0 ft\nB,71,12,{cell}\n".replace(",0 ft", ",0"))
     with pytest.raises(InputError, match=match):
         route(csv, DATE)
 
