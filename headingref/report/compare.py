@@ -6,8 +6,8 @@ samples (every ``spacing_nm`` along the legs, from the routes job). A difference
 first, reference, model; declination east positive) is *significant* when it exceeds the
 root-sum-square of the two models' one-sigma declination uncertainties (each model's own error
 model): the two answers then disagree by more than either claims to be wrong by. For the runways,
-:func:`headingref.runways.check_runways` once per model gives the implied designators, and the
-runways whose designator depends on the model are listed (an authority may use WMM while a
+:func:`headingref.compare.compare_runways` (``check_runways`` once per model) gives the implied
+designators, and the runways whose designator depends on the model are listed (an authority may use WMM while a
 crustal-field model says otherwise). The map is
 :func:`headingref.compare.difference_grid` of the first and last model on a modest grid over the
 cap, drawn by :func:`headingref.plots.compare.plot_difference_map`. Where a model flags the
@@ -22,10 +22,9 @@ import warnings
 import numpy as np
 import pandas as pd
 
-from ..compare import compare_models, difference_grid, parse_models
+from ..compare import compare_models, compare_runways, difference_grid, parse_models
 from ..compass_base import read_sites_csv
 from ..plots.compare import plot_difference_map
-from ..runways import check_runways
 from .content import OutputFile, Part, Section, SummaryItem, Table, capped, figure_from, latlon_text
 from .context import SUMMARY_LIMIT, TABLE_LIMIT, Context
 
@@ -52,29 +51,26 @@ def _places(ctx: Context) -> pd.DataFrame:
 
 
 def _runways(ctx: Context, models: list) -> tuple[pd.DataFrame, pd.DataFrame]:
-    """(reference points of the runways, implied designators per model, one row per runway)."""
+    """(reference points of the runways, implied designators per model, one row per runway).
+
+    :func:`headingref.compare.compare_runways` (``check_runways`` once per model) gives each end's
+    implied designator per model; the ends of one runway are joined (``25/07``). The reference
+    points are compared at height 0 (the runway elevation moves the declination by far less than
+    the differences between models)."""
     r = ctx.scenario.runways
-    kwargs = {"tolerance_deg": r["boundary_band_deg"]} if r["boundary_band_deg"] is not None else {}
-    implied, points = {}, None
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")  # the runways section gives the file's warnings once
-        for model in models:
-            t = check_runways(str(r["file"]), ctx.date, horizon_years=0.0, model=model, last_fit=False,
-                              columns=r["columns"] or None, allow_extrapolation=ctx.scenario.allow_extrapolation, **kwargs).table
-            t = t[t["status"] != "error"]
-            grouped = t.groupby(["airport", "runway_id"], sort=False)
-            implied[model.name] = grouped["designator_implied"].agg("/".join)
-            if points is None:
-                points = grouped.agg(painted=("runway", "/".join), lat=("ref_lat_deg", "first"), lon=("ref_lon_deg", "first"),
-                                     alt_km=("alt_km", "first")).reset_index()
-    table = points[["airport", "runway_id", "painted"]].copy()
-    for name, series in implied.items():
-        table[name] = series.reindex(pd.MultiIndex.from_frame(points[["airport", "runway_id"]])).to_numpy()
-    names = list(implied)
-    table["depends_on_model"] = table[names].nunique(axis=1) > 1
-    places = pd.DataFrame({"kind": "runway", "name": points["airport"] + " " + points["runway_id"], "route": "", "where": "",
-                           "lat": points["lat"], "lon": points["lon"], "alt_km": points["alt_km"]})
-    return places, table
+        ends = compare_runways(str(r["file"]), ctx.date, models, tolerance_deg=r["boundary_band_deg"], columns=r["columns"] or None,
+                               allow_extrapolation=ctx.scenario.allow_extrapolation)
+    ends = ends[ends["status"] != "error"]
+    names = [m.name for m in models]
+    grouped = ends.groupby(["airport", "runway_id"], sort=False)
+    table = grouped.agg(painted=("runway", "/".join), lat=("ref_lat_deg", "first"), lon=("ref_lon_deg", "first"),
+                        **{n: (f"{n}_designator_implied", "/".join) for n in names},
+                        depends_on_model=("model_dependent", "any")).reset_index()
+    places = pd.DataFrame({"kind": "runway", "name": table["airport"] + " " + table["runway_id"], "route": "", "where": "",
+                           "lat": table["lat"], "lon": table["lon"], "alt_km": 0.0})
+    return places, table[["airport", "runway_id", "painted", *names, "depends_on_model"]]
 
 
 def _wide(long: pd.DataFrame, places: pd.DataFrame, names: list[str]) -> pd.DataFrame:
