@@ -678,3 +678,34 @@ def test_cli_quick_check_of_one_runway(capsys):
         assert f"NORDVIK {end}: implied {expected.designator_implied} ({expected.verdict})" in printed
     code = main(["runways", "--airport", "NORDVIK", "--runway", "09", "--lat", "69.305", "--date", DATE])
     assert code == 2 and "--lon" in capsys.readouterr().err
+
+
+# ----------------------------------------------------------------------------- the demo's runways (issue 13)
+
+
+def test_demo_runways_tell_their_story_in_geographiclib_and_ppigrf(demo_dir):
+    # Each demo runway (data/demo/runways.csv, tools/make_demo_data.py) recomputed outside the
+    # project: the midpoint and the forward azimuth there from geographiclib (Karney 2013), the
+    # variation there from ppigrf (IGRF-14), magnetic = true - variation, and the implied number
+    # round(magnetic / 10) with 0 -> 36 (ICAO Annex 14 Vol I 5.2.2.4, from memory). The demo's
+    # cases (data/demo/README.md) must hold: JXTB 13 and JXQR 34 out of date, JXRH 25 within
+    # 0.3 deg of the 245 boundary, JXNL 31 within 0.05 deg of 305, every other end fits.
+    ends = pd.read_csv(demo_dir / "runways.csv", dtype={"runway": str})
+    first = ends.iloc[::2]  # each runway's first-listed end (the generator writes both)
+    implied, margin = {}, {}
+    for row in first.itertuples():
+        line = Geodesic.WGS84.InverseLine(row.lat, row.lon, row.end_lat, row.end_lon)
+        mid = line.Position(line.s13 / 2)
+        magnetic = (mid["azi2"] - ppigrf_declination(mid["lat2"], mid["lon2"], DATE)) % 360.0
+        number = int(math.floor(magnetic / 10.0 + 0.5)) % 36 or 36
+        implied[f"{row.airport} {row.runway}"] = f"{number:02d}"
+        offset = (magnetic - 5.0) % 10.0  # past the last rounding boundary (xx5 degrees)
+        margin[f"{row.airport} {row.runway}"] = min(offset, 10.0 - offset)
+    stale = {"JXTB 13": "14", "JXQR 34": "35"}
+    for key, number in implied.items():
+        assert number == stale.get(key, key.split()[1][:2]), key
+    assert margin["JXRH 25"] < 0.3 and margin["JXNL 31"] < 0.05
+    # headingref agrees end by end (its own variation and geodesic; 0.001 deg as above)
+    table = _quiet_check(demo_dir / "runways.csv", DATE, horizon_years=1).table
+    got = dict(zip(table.airport + " " + table.runway, table.designator_implied.str[:2], strict=True))
+    assert all(got[key] == number for key, number in implied.items())
