@@ -151,7 +151,27 @@ def make_swing() -> None:
     write(DEMO / "swing_readings.csv", ["magnetic_heading_deg", "compass_reading_deg"], [[f"{a:.0f}", f"{b:.1f}"] for a, b in zip(h, reading, strict=True)])
 
 
+def check_far_from_aerodromes(min_km: float = 35.0) -> None:
+    """Refuse airfield coordinates within ``min_km`` of a listed aerodrome (needs ``pip install airportsdata``)."""
+    try:
+        import airportsdata
+    except ImportError:
+        print("airportsdata is not installed: distances to real aerodromes not checked")
+        return
+    known = list(airportsdata.load().values())
+    lats = np.array([a["lat"] for a in known])
+    lons = np.array([a["lon"] for a in known])
+    for ident, (name, lat, lon) in AIRFIELDS.items():
+        if ident in airportsdata.load():
+            raise SystemExit(f"{ident} is a real ICAO identifier")
+        _, _, dist_m = GEOD.inv(np.full(lats.size, lon), np.full(lats.size, lat), lons, lats)
+        nearest = int(np.argmin(dist_m))
+        if dist_m[nearest] < min_km * 1000.0:
+            raise SystemExit(f"{ident} {name} lies {dist_m[nearest] / 1000:.0f} km from {known[nearest]['name']}")
+
+
 if __name__ == "__main__":
+    check_far_from_aerodromes()
     make_routes()
     make_runways()
     make_bases()
