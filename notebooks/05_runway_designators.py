@@ -135,8 +135,11 @@ def explore_runway(end, day):
     row = explored.table[[label(r) == end for r in explored.table.itertuples()]]
     fit = row.last_fit_date.iloc[0]
     verdict = f"{end}: {row.verdict.iloc[0]} on {day}" + (f"; painted number last fitted {fit}" if fit else "")
+    reason = row.reason.iloc[0]
+    found = found if str(day) != str(DATE) else []  # the check date's warnings are shown above
     return [*found, status_line(verdict, level="info" if row.verdict.iloc[0] == "match" else "warning"),
-            styled(row[COLUMNS]), runway_bearing_figure(explored, runways=[end])]
+            *([status_line(reason)] if reason else []), styled(row[COLUMNS]),
+            runway_bearing_figure(explored, runways=[end])]
 
 
 explorer(explore_runway, {"end": choice(ENDS, FIRST, "runway end"), "day": date_picker(DATE, "check date")})
