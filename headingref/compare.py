@@ -417,8 +417,7 @@ def _upkeep_per_model(sites: list, date: Any, model: Model, mark_step_deg: float
         table["reason"] = ""
         return table
     except HeadingrefError:
-        if len(sites) == 1:
-            raise
+        pass
     rows = []
     for site in sites:  # isolate the sites this model refuses (e.g. a survey before its validity)
         try:

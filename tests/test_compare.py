@@ -59,13 +59,10 @@ def test_compare_models_long_table_against_pygeomag():
 
 def test_compare_models_with_igrf_first_against_ppigrf():
     # ppigrf (IGRF-14, geodetic components) for the reference row: declination within 1e-3 deg
-    import datetime as dt
-
-    import ppigrf
+    from reference import ppigrf_declination
 
     table = compare_models(64.5, -20.0, "2026-07-02", ["IGRF-14", "WMMHR2025"])
-    be, bn, _ = ppigrf.igrf(-20.0, 64.5, 0.0, dt.datetime(2026, 7, 2))
-    expected = math.degrees(math.atan2(float(np.ravel(be)[0]), float(np.ravel(bn)[0])))
+    expected = ppigrf_declination(64.5, -20.0, "2026-07-02")
     assert table.declination_deg.iloc[0] == pytest.approx(expected, abs=1e-3)
     assert table.attrs["reference_model"] == "IGRF-14"
     assert "proxy" in table.attrs["error_models"]["IGRF-14"]
@@ -159,3 +156,222 @@ def test_cli_compare_map_and_models(tmp_path, capsys):
     assert main(["models", "--output", str(tmp_path / "m.csv")]) == 0
     listed = pd.read_csv(tmp_path / "m.csv")
     assert listed.set_index("name").loc["WMMHR2025", "nmax"] == 133  # WMMHR2025: degree 133 (NOAA NCEI)
+
+
+# --------------------------------------------------------------------------- route, runways, compass bases
+
+ROUTE = [dict(name="ALFA", lat=66.55, lon=-51.95), dict(name="BRAVO", lat=77.02, lon=-66.1)]  # invented waypoints
+
+
+def _pygeomag_at(lat, lon, year, alt_km=0.0):
+    """pygeomag 1.1.0 WMM2025 and WMMHR2025 (high resolution): (declination, uncertainty) of each, degrees."""
+    from pygeomag import GeoMag
+
+    out = []
+    for cof, high in (("wmm/WMM_2025.COF", False), ("wmm/WMMHR_2025.COF", True)):
+        result = GeoMag(coefficients_file=cof, high_resolution=high).calculate(glat=lat, glon=lon, alt=alt_km, time=year)
+        out.append((result.d, result.calculate_uncertainty().d))
+    return out
+
+
+def _along_geodesic(lat1, lon1, lat2, lon2, distance_nm):
+    # geographiclib (Karney 2013): the point distance_nm along the WGS84 geodesic (1 NM = 1852 m, SI brochure)
+    from geographiclib.geodesic import Geodesic
+
+    line = Geodesic.WGS84.InverseLine(lat1, lon1, lat2, lon2)
+    point = line.Position(distance_nm * 1852.0)
+    return point["lat2"], point["lon2"], line.s13 / 1852.0
+
+
+def test_compare_route_samples_against_pygeomag_ppigrf_and_geographiclib():
+    from reference import ppigrf_declination
+
+    from headingref.compare import ROUTE_SAMPLE_COLUMNS, compare_route
+
+    result = compare_route(ROUTE, YEAR, "IGRF-14,WMM2025,WMMHR2025", spacing_nm=50.0)
+    s = result.samples
+    assert tuple(s.columns) == ROUTE_SAMPLE_COLUMNS
+    assert len(s) == 3 * s["sample"].max()
+    for k in (0, 6, int(s["sample"].max()) - 1):  # three samples: start, inside, end
+        rows = s[s["sample"] == k + 1]
+        igrf, wmm, hr = (rows.iloc[j] for j in range(3))
+        # the sample lies on the geodesic at its distance (geographiclib, 1 m)
+        lat, lon, _ = _along_geodesic(66.55, -51.95, 77.02, -66.1, igrf.distance_along_leg_nm)
+        assert igrf.lat_deg == pytest.approx(lat, abs=1e-5) and igrf.lon_deg == pytest.approx(lon, abs=1e-5)
+        (d_wmm, s_wmm), (d_hr, s_hr) = _pygeomag_at(igrf.lat_deg, igrf.lon_deg, YEAR)
+        d_igrf = ppigrf_declination(igrf.lat_deg, igrf.lon_deg, "2026-07-02")  # ppigrf IGRF-14 (YEAR ~ 2 July)
+        assert igrf.declination_deg == pytest.approx(d_igrf, abs=2e-3)
+        assert wmm.declination_deg == pytest.approx(d_wmm, abs=1e-3)  # pygeomag WMM2025
+        assert hr.declination_deg == pytest.approx(d_hr, abs=1e-3)  # pygeomag WMMHR2025 (high resolution)
+        assert hr.declination_diff_deg == pytest.approx(d_hr - d_igrf, abs=3e-3)
+        assert wmm.declination_diff_deg == pytest.approx(d_wmm - d_igrf, abs=3e-3)
+        assert hr.declination_uncertainty_deg == pytest.approx(s_hr, abs=1e-6)  # WMMHR2025 report constants (pygeomag)
+
+
+def test_compare_route_stretches_where_pygeomag_models_disagree():
+    # The stretch where WMMHR2025 minus WMM2025 exceeds their combined 1 sigma (both from pygeomag, with
+    # each report's uncertainty constants): inside it pygeomag's difference is beyond the bound, 20 NM
+    # outside it within, and at its ends on the bound within 0.1 deg (linear interpolation between 20-NM samples).
+    from headingref.compare import ROUTE_STRETCH_COLUMNS, compare_route
+
+    result = compare_route(ROUTE, YEAR, ["WMM2025", "WMMHR2025"], spacing_nm=20.0)
+    st = result.stretches
+    assert tuple(st.columns) == ROUTE_STRETCH_COLUMNS
+    assert len(st) >= 1
+    stretch = st.iloc[0]
+    assert stretch.model == "WMMHR2025" and stretch.reference_model == "WMM2025" and stretch.leg == 1
+    assert stretch.length_nm == pytest.approx(stretch.to_nm - stretch.from_nm)
+
+    def margin(distance_nm):
+        lat, lon, _ = _along_geodesic(66.55, -51.95, 77.02, -66.1, distance_nm)
+        (d0, s0), (d1, s1) = _pygeomag_at(lat, lon, YEAR)
+        return math.hypot(s0, s1) - abs(d1 - d0)
+
+    length = _along_geodesic(66.55, -51.95, 77.02, -66.1, 0.0)[2]
+    assert margin((stretch.from_nm + stretch.to_nm) / 2) < 0.0
+    assert abs(margin(stretch.from_nm)) < 0.1
+    if stretch.from_nm > 20.0:
+        assert margin(stretch.from_nm - 20.0) > 0.0
+    if stretch.to_nm < length - 20.0:
+        assert abs(margin(stretch.to_nm)) < 0.1
+        assert margin(stretch.to_nm + 20.0) > 0.0
+    assert stretch.max_abs_declination_diff_deg > 0.5
+
+
+def _designator(magnetic_deg):
+    # ICAO Annex 14 Vol I 5.2.2.4 / FAA AC 150/5340-1J: the magnetic azimuth to the nearest 10 degrees,
+    # leading digits; 0 is 36 (exact halves do not occur here)
+    number = int(math.floor((magnetic_deg % 360.0) / 10.0 + 0.5)) % 36
+    return f"{number or 36:02d}"
+
+
+def test_compare_runways_designator_dependence_recomputed(write_csv):
+    # Implied designators recomputed from geographiclib (azimuths, midpoint) and pygeomag (WMM2025,
+    # WMMHR2025) / ppigrf (IGRF-14) declination at the midpoint, with the nearest-tenth rule.
+    from geographiclib.geodesic import Geodesic
+    from reference import ppigrf_declination
+
+    from headingref.compare import compare_runways
+
+    ends = [("JXRH", "25", 77.031936, -66.070419, 77.008061, -66.129527),  # invented airfields (demo data)
+            ("JXRH", "07", 77.008061, -66.129527, 77.031936, -66.070419),
+            ("JXSB", "07", 70.549154, -155.228532, 70.550842, -155.171465),
+            ("JXSB", "25", 70.550842, -155.171465, 70.549154, -155.228532)]
+    path = write_csv("rw.csv", ["airport", "runway", "lat", "lon", "end_lat", "end_lon"], ends)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # weak-field warnings at JXRH
+        table = compare_runways(path, YEAR, "IGRF-14,WMM2025,WMMHR2025")
+    assert len(table) == 4 and table.attrs["models"] == ["IGRF-14", "WMM2025", "WMMHR2025"]
+    for i, (_, _, la1, lo1, la2, lo2) in enumerate(ends):
+        line = Geodesic.WGS84.Inverse(la1, lo1, la2, lo2)
+        azimuth = math.degrees(math.atan2(  # mean of the two ends' azimuths in this direction (Karney 2013)
+            math.sin(math.radians(line["azi1"])) + math.sin(math.radians(line["azi2"])),
+            math.cos(math.radians(line["azi1"])) + math.cos(math.radians(line["azi2"]))))
+        mid = Geodesic.WGS84.Direct(la1, lo1, line["azi1"], line["s12"] / 2)
+        (d_wmm, _), (d_hr, _) = _pygeomag_at(mid["lat2"], mid["lon2"], YEAR)
+        d_igrf = ppigrf_declination(mid["lat2"], mid["lon2"], "2026-07-02")
+        expected = {"IGRF-14": d_igrf, "WMM2025": d_wmm, "WMMHR2025": d_hr}
+        row = table.iloc[i]
+        for model, dec in expected.items():
+            assert row[f"{model}_variation_deg"] == pytest.approx(dec, abs=3e-3)
+            assert row[f"{model}_runway_magnetic_deg"] == pytest.approx((azimuth - dec) % 360.0, abs=0.01)
+            assert row[f"{model}_designator_implied"] == _designator(azimuth - dec)
+        dependent = len({_designator(azimuth - d) for d in expected.values()}) > 1
+        assert bool(row.model_dependent) == dependent
+        assert row.variation_spread_deg == pytest.approx(max(expected.values()) - min(expected.values()), abs=5e-3)
+    # at JXRH the crustal field of WMMHR2025 moves the runway across the 245 deg boundary (25 -> 24)
+    assert list(table.model_dependent) == [True, True, False, False]
+
+
+def test_compare_bases_variation_to_mark_against_pygeomag_and_ppigrf(write_csv):
+    # predicted variation = surveyed + the model's change since the survey (NGA Handbook of Magnetic
+    # Compass Adjustment: bring the surveyed variation forward); model changes from pygeomag / ppigrf;
+    # rounding to the mark step: nearest multiple (common practice)
+    from reference import ppigrf_declination
+
+    from headingref.compare import compare_bases
+
+    path = write_csv("bases.csv", ["name", "lat", "lon", "surveyed_variation", "survey_date"],
+                     [("Testbase North", 67.012, -50.711, "26.4W", "2025-03-01"),  # invented sites
+                      ("Testbase East", 64.130, -21.940, "11.9W", "2025-09-15"),
+                      ("Testbase West", 67.013, -50.711, "26.51W", "2025-03-01")])  # the models' changes straddle 25.75 W
+    swing = "2027-01-01"
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        table = compare_bases(path, swing, "IGRF-14,WMM2025,WMMHR2025", mark_step_deg=0.5)
+    assert table.attrs["models"] == ["IGRF-14", "WMM2025", "WMMHR2025"]
+    assert list(table.status) == ["ok", "ok", "ok"]
+    from headingref.units import decimal_year
+
+    t0s = [decimal_year("2025-03-01"), decimal_year("2025-09-15")]
+    t1 = decimal_year(swing)
+    differs = []
+    for i, (lat, lon, surveyed, t0, d0) in enumerate([(67.012, -50.711, -26.4, t0s[0], "2025-03-01"),
+                                                       (64.130, -21.940, -11.9, t0s[1], "2025-09-15"),
+                                                       (67.013, -50.711, -26.51, t0s[0], "2025-03-01")]):
+        (w0, _), (h0, _) = _pygeomag_at(lat, lon, t0)
+        (w1, _), (h1, _) = _pygeomag_at(lat, lon, t1)
+        g0, g1 = ppigrf_declination(lat, lon, d0), ppigrf_declination(lat, lon, swing)
+        predicted = {"IGRF-14": surveyed + g1 - g0, "WMM2025": surveyed + w1 - w0, "WMMHR2025": surveyed + h1 - h0}
+        row = table.iloc[i]
+        for model, value in predicted.items():
+            assert row[f"{model}_predicted_variation_deg"] == pytest.approx(value, abs=2e-3)
+            assert row[f"{model}_predicted_diff_deg"] == pytest.approx(value - predicted["IGRF-14"], abs=3e-3)
+        assert row["WMMHR2025_model_variation_deg"] == pytest.approx(h1, abs=1e-3)
+        marks = {math.floor(v / 0.5 + 0.5) * 0.5 for v in predicted.values()}
+        assert row["WMM2025_variation_to_mark_deg"] == math.floor(predicted["WMM2025"] / 0.5 + 0.5) * 0.5
+        assert bool(row.mark_differs) == (len(marks) > 1)
+        differs.append(len(marks) > 1)
+    assert differs == [False, False, True]  # the third base's mark depends on the model (from pygeomag / ppigrf)
+
+
+def test_compare_bases_refused_survey_is_named(write_csv):
+    # WMM2025 starts on 2025-01-01 (WMM2025 technical report): a 2020 survey is outside it
+    from headingref.compare import compare_bases
+
+    path = write_csv("bases.csv", ["name", "lat", "lon", "surveyed_variation", "survey_date"],
+                     [("Old base", 60.0, 10.0, "3.0E", "2020-05-01")])
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # the base is due for resurvey
+        table = compare_bases(path, "2026-06-01", "IGRF-14,WMM2025")
+    assert table.status.iloc[0] == "warning"
+    assert "WMM2025" in table.reason.iloc[0] and "validity" in table.reason.iloc[0]
+    assert math.isnan(table["WMM2025_variation_to_mark_deg"].iloc[0])
+    assert np.isfinite(table["IGRF-14_variation_to_mark_deg"].iloc[0])
+    refused = compare_bases(path, "2026-06-01", "WMM2025,WMMHR2025")  # every model refuses: an error row
+    assert refused.status.iloc[0] == "error" and refused.reason.iloc[0].count("validity") == 2
+
+
+def test_cli_compare_route_runways_bases(tmp_path, demo_dir, capsys):
+    route_csv = tmp_path / "route.csv"
+    route_csv.write_text("name,lat,lon\nALFA,66.55,-51.95\nBRAVO,77.02,-66.1\n")
+    out, png = tmp_path / "route_models.csv", tmp_path / "route_models.png"
+    assert main(["compare", "--route", str(route_csv), "--models", "WMM2025,WMMHR2025", "--date", "2026-07-02",
+                 "--spacing", "25", "--output", str(out), "--plot", str(png)]) == 0
+    samples = pd.read_csv(out)
+    assert set(samples.model) == {"WMM2025", "WMMHR2025"} and "distance_along_route_nm" in samples
+    first = samples.iloc[1]  # WMMHR2025 at ALFA: pygeomag high resolution (1e-2 deg: date rounding)
+    assert first.declination_deg == pytest.approx(_pygeomag_at(66.55, -51.95, 2026.5)[1][0], abs=1e-2)
+    assert png.stat().st_size > 10_000
+    assert "stretches where a model disagrees" in capsys.readouterr().out
+    xlsx = tmp_path / "rw.xlsx"
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        assert main(["compare", "--runways", str(demo_dir / "runways.csv"), "--date", "2026-07-02",
+                     "--output", str(xlsx)]) == 0
+    back = pd.read_excel(xlsx, header=None)
+    assert back.shape[0] >= 27  # header rows plus 26 runway ends
+    assert "depends on the model" in capsys.readouterr().out
+    assert main(["compare", "--bases", str(demo_dir / "compass_bases.csv"), "--date", "2026-07-02",
+                 "--models", "IGRF-14,WMM2020", "--extrapolate"]) == 0
+    assert "variation to mark" in capsys.readouterr().out
+
+
+def test_cli_compare_refuses_mixed_inputs(tmp_path, demo_dir, capsys):
+    assert main(["compare", "--route", "a.csv", "--bases", "b.csv"]) == 2
+    err = capsys.readouterr().err
+    assert "give one of --route" in err and "Traceback" not in err
+    assert main(["compare", "--bases", str(demo_dir / "compass_bases.csv"), "--plot", str(tmp_path / "p.png")]) == 2
+    assert "--plot draws" in capsys.readouterr().err
+    assert main(["compare", "--runways", str(tmp_path / "missing.csv")]) == 2
+    assert "missing.csv" in capsys.readouterr().err
