@@ -111,22 +111,16 @@ def _details(args, result_date):
     )
 
 
-def run(args) -> int:  # noqa: C901 - one branch per card/base option; to split when the CLI options come from the settings objects (issue 13 item 5)
-    from ..io import all_or_nothing, write_csv, write_text
-    from ..swing import analyse_swing, card_html, read_swing_csv
-    from ..tables import write_output
-    from .common import check_outputs
+def _analyse(args):
+    """Read the readings and fit the curve with the options' limits, method and card headings."""
+    from ..swing import analyse_swing, read_swing_csv
 
-    check_outputs(files=[args.output, args.card, args.residuals, args.card_html], figures=[args.plot, args.card_plot],
-                  inputs=[args.input, args.bases])
-    if args.date is not None and not args.date.strip():
-        raise InputError("--date is empty; give the swing date as YYYY-MM-DD")
     magnetic, compass, rows = read_swing_csv(args.input)
     card_headings = number_list(args.card_headings, "--card-headings (card headings)") if args.card_headings else None
     limits = {name: option_number(getattr(args, attr), option) for name, attr, option in (
         ("limit_deg", "limit", "--limit"), ("compensated_limit_deg", "compensated_limit", "--compensated-limit"),
         ("max_plausible_deviation_deg", "max_deviation", "--max-deviation"))}
-    result = analyse_swing(
+    return analyse_swing(
         magnetic,
         compass,
         **{k: v for k, v in limits.items() if k != "max_plausible_deviation_deg"},
@@ -138,7 +132,9 @@ def run(args) -> int:  # noqa: C901 - one branch per card/base option; to split 
         max_plausible_deviation_deg=limits["max_plausible_deviation_deg"],
         rows=rows,
     )
-    details = _details(args, args.date)
+
+
+def _print_identification(args, result, details) -> None:
     print(f"Compass swing, {len(result.readings)} readings from {args.input} (deviation east positive = magnetic - compass)")
     for key, value in (("aircraft", details.aircraft), ("compass", details.compass), ("date", details.swing_date),
                        ("conditions", details.conditions), ("base", details.base)):
@@ -146,6 +142,9 @@ def run(args) -> int:  # noqa: C901 - one branch per card/base option; to split 
             print(f"  {key}: {value}")
     if details.base_marked_variation:
         print(f"  base marked variation {details.base_marked_variation} (surveyed {details.base_survey_date}); {details.base_status}")
+
+
+def _print_coefficients(result) -> None:
     method = "least squares" if result.method == "least_squares" else f"handbook {result.handbook_formula} formulas"
     print(f"coefficients by {method}")
     print("coefficient    value    std.err  inflation  meaning")
@@ -161,11 +160,15 @@ def run(args) -> int:  # noqa: C901 - one branch per card/base option; to split 
             hb = f"{c.handbook_deg:+8.2f}°" if c.handbook_deg == c.handbook_deg else "     n/a "
             print(f"  {c.coefficient}  least squares {c.least_squares_deg:+8.2f}°  handbook {hb}")
     print(f"condition number {result.condition_number:.2f}, rms fit residual {result.rms_fit_residual_deg:.2f}°")
-    print(result.verdict_text())
-    print(f"correction card, curve {result.card_terms()}:")
-    print("  for magnetic  " + " ".join(result.card.for_magnetic))
-    print("  steer compass " + " ".join(result.card.steer_compass))
-    with all_or_nothing():  # every output, or none
+
+
+def _write_outputs(args, result, details) -> None:
+    """Every output the options ask for, or none (io.all_or_nothing)."""
+    from ..io import all_or_nothing, write_csv, write_text
+    from ..swing import card_html
+    from ..tables import write_output
+
+    with all_or_nothing():
         if args.output:
             write_output(args.output, result.summary_row())  # .xlsx: a workbook with units in the header
         if args.card:
@@ -181,4 +184,22 @@ def run(args) -> int:  # noqa: C901 - one branch per card/base option; to split 
                 save_figure(deviation_figure(result), args.plot)
             if args.card_plot:
                 save_figure(card_figure(result, details=details), args.card_plot)
+
+
+def run(args) -> int:
+    from .common import check_outputs
+
+    check_outputs(files=[args.output, args.card, args.residuals, args.card_html], figures=[args.plot, args.card_plot],
+                  inputs=[args.input, args.bases])
+    if args.date is not None and not args.date.strip():
+        raise InputError("--date is empty; give the swing date as YYYY-MM-DD")
+    result = _analyse(args)
+    details = _details(args, args.date)
+    _print_identification(args, result, details)
+    _print_coefficients(result)
+    print(result.verdict_text())
+    print(f"correction card, curve {result.card_terms()}:")
+    print("  for magnetic  " + " ".join(result.card.for_magnetic))
+    print("  steer compass " + " ".join(result.card.steer_compass))
+    _write_outputs(args, result, details)
     return 0
