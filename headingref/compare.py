@@ -469,9 +469,13 @@ def compare_bases(
        (2004): the compass swing on a surveyed base with the variation brought forward to the swing date.
     """
     from .compass_base import DEFAULT_MARK_STEP_DEG, read_sites_csv
+    from .units import decimal_year, parse_number
 
     loaded = parse_models(models)
-    step = DEFAULT_MARK_STEP_DEG if mark_step_deg is None else mark_step_deg
+    date = float(decimal_year(date))  # a bad date or step is the caller's error, not one base's: refuse it here
+    step = DEFAULT_MARK_STEP_DEG if mark_step_deg is None else parse_number(mark_step_deg, "mark_step_deg")
+    if not 0.01 <= step <= 5:
+        raise InputError(f"mark step {step!r} deg: give a rounding step from 0.01 to 5 degrees (0.5 or 1)")
     if isinstance(bases, (str, os.PathLike)):
         sites = read_sites_csv(bases)
     else:

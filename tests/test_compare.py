@@ -375,3 +375,8 @@ def test_cli_compare_refuses_mixed_inputs(tmp_path, demo_dir, capsys):
     assert "--plot draws" in capsys.readouterr().err
     assert main(["compare", "--runways", str(tmp_path / "missing.csv")]) == 2
     assert "missing.csv" in capsys.readouterr().err
+    # a bad date or rounding step is refused once, not turned into a reason on every base
+    assert main(["compare", "--bases", str(demo_dir / "compass_bases.csv"), "--mark-step", "0"]) == 2
+    assert "mark step" in capsys.readouterr().err
+    assert main(["compare", "--bases", str(demo_dir / "compass_bases.csv"), "--date", "2026-13-01"]) == 2
+    assert "2026-13-01" in capsys.readouterr().err
