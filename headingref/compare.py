@@ -231,8 +231,9 @@ def _disagreement_stretches(samples: pd.DataFrame, reference: str) -> pd.DataFra
         dist = part.distance_along_leg_nm.to_numpy()
         diff = np.abs(part.declination_diff_deg.to_numpy())
         combined = part.combined_uncertainty_deg.to_numpy()
-        margin = np.nan_to_num(combined - diff, nan=np.inf, posinf=np.inf)
-        margin = np.where(np.isfinite(margin), margin, 1e9)  # finite: the interpolation stays defined
+        with np.errstate(invalid="ignore"):
+            margin = combined - diff
+        margin = np.where(np.isfinite(margin), margin, 1e9)  # undefined: no disagreement; finite, so interpolation holds
         start_nm = float(part.distance_along_route_nm.iloc[0] - dist[0])
         for a, b in _stretch_intervals(dist, margin, 0.0):
             inside = (dist >= a) & (dist <= b) & (margin < 0.0)
