@@ -11,8 +11,10 @@ Conventions: geodetic WGS84 latitude/longitude (degrees) and height above the el
 declination east positive, inclination down positive; X north, Y east, Z down (nT); rates per
 year are analytic (from the coefficients' slopes), not differences of two dates.
 
-Declination uncertainty follows the WMM error model, ``sqrt(0.26^2 + (5417/H)^2)`` degrees with H
-in nT (WMM2020 and WMM2025 technical reports, section on uncertainty). Zones follow the same
+Declination uncertainty follows the model's own error model, ``sqrt(a^2 + (b/H)^2)`` degrees with H
+in nT and a, b of the WMM edition (its technical report's uncertainty section; for IGRF the WMM edition
+of the same epoch as a labelled proxy, NaN before 2015; see :func:`headingref.model.error_spans_for`);
+tables and grids name it in the attribute ``declination_uncertainty_model``. Zones follow the WMM
 reports: ``blackout`` where H < 2000 nT (compasses unreliable), ``caution`` where 2000 <= H < 6000 nT,
 else ``normal``. Declination is undefined at the geographic poles and where H = 0 (below
 0.01 nT here): it is NaN there, with the reason in ``declination_flag``, and a warning is issued.
@@ -107,7 +109,8 @@ UNITS = {
     "north_nT_per_year": "nT/year",
     "east_nT_per_year": "nT/year",
     "down_nT_per_year": "nT/year",
-    "declination_uncertainty_deg": "degree (WMM error model, 1 sigma)",
+    "declination_uncertainty_deg": "degree (1 sigma; the model's error model, see attribute declination_uncertainty_model; "
+                                   "NaN where the model gives none, e.g. IGRF before 2015)",
 }
 
 _CONSTANTS: dict[int, tuple[np.ndarray, np.ndarray, np.ndarray]] = {}
@@ -119,14 +122,33 @@ def _constants(nmax: int):
     return _CONSTANTS[nmax]
 
 
-def declination_uncertainty_deg(horizontal_nT: Any) -> np.ndarray:
-    """WMM error model for declination (degrees, 1 sigma): ``sqrt(0.26^2 + (5417/H)^2)``, H in nT.
+def declination_uncertainty_deg(horizontal_nT: Any, model: Model | str | None = None, year: Any = None) -> np.ndarray:
+    """Declination uncertainty (degrees, 1 sigma): ``sqrt(a^2 + (b/H)^2)``, H in nT.
 
-    Source: WMM2020 and WMM2025 technical reports (NOAA NCEI / BGS), uncertainty section.
+    With no ``model``, WMM2025's constants ``a = 0.26 deg, b = 5417 nT`` (WMM2025 technical report,
+    uncertainty section). With a ``model`` (name, path or Model) and the decimal ``year``(s), the
+    model's own error model at that date (:meth:`headingref.model.Model.error_constants`: each WMM
+    edition's published constants; for IGRF and other files the WMM edition of the same epoch as a
+    labelled proxy, and NaN before 2015.0, where no error model is given). Infinite where H = 0.
     """
     h = np.asarray(horizontal_nT, dtype=np.float64)
-    with np.errstate(divide="ignore"):
-        return np.sqrt(UNCERTAINTY_CONST_DEG**2 + (UNCERTAINTY_SCALE_NT / h) ** 2)
+    if model is None:
+        a, b = UNCERTAINTY_CONST_DEG, UNCERTAINTY_SCALE_NT
+    else:
+        if year is None:
+            raise InputError("declination_uncertainty_deg: give the decimal year(s) with the model")
+        a, b = load_model(model).error_constants(year)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.sqrt(a**2 + (b / h) ** 2)
+
+
+def _error_constants(model: Model, years: np.ndarray):
+    """The model's error-model constants for the derive kernel: two floats when every date shares
+    one (the common case), else two per-point arrays."""
+    a, b = model.error_constants(years)
+    if a.size and np.all(a == a.flat[0]) and np.all(b == b.flat[0]):
+        return float(a.flat[0]), float(b.flat[0])
+    return a, b
 
 
 def classify_zone(horizontal_nT: Any, blackout_nT: float = BLACKOUT_NT, caution_nT: float = CAUTION_NT) -> np.ndarray:
@@ -219,16 +241,24 @@ def _synthesise(model: Model, lat, lon, alt, years) -> tuple[np.ndarray, np.ndar
         synthesis.scattered(lat, lon, alt, k, dt, model.g, model.h, model.g_rate, model.h_rate, k1, k2, diag,
                             model.reference_radius_km, xyz)
     zone = np.empty(n, dtype=np.int8)
-    _derive(xyz, derived, zone)
+    _derive(xyz, derived, zone, _error_constants(model, years))
     return table, zone
 
 
-def _derive(xyz: np.ndarray, out: np.ndarray, zone: np.ndarray) -> None:
-    synthesis.derive(xyz, H_UNDEFINED_NT, UNCERTAINTY_CONST_DEG, UNCERTAINTY_SCALE_NT, BLACKOUT_NT, CAUTION_NT, out, zone)
+def _derive(xyz: np.ndarray, out: np.ndarray, zone: np.ndarray,
+            error: tuple = (UNCERTAINTY_CONST_DEG, UNCERTAINTY_SCALE_NT)) -> None:
+    # error: the model's declination error constants (a_deg, b_nT), floats or one per point (NaN: none)
+    a, b = error
+    scalar = np.ndim(a) == 0
+    synthesis.derive(xyz, H_UNDEFINED_NT, a if scalar else 0.0, b if scalar else 0.0, BLACKOUT_NT, CAUTION_NT, out, zone)
+    if not scalar:
+        with np.errstate(divide="ignore", invalid="ignore"):
+            np.sqrt(a**2 + (b / out[2]) ** 2, out=out[8])
     synthesis.angles(xyz, out, H_UNDEFINED_NT)
-    # The WMM error model sqrt(0.26^2 + (5417/H)^2) tends to infinity as H -> 0: where the kernel
-    # leaves it NaN (H below H_UNDEFINED_NT) the uncertainty is infinite, not unknown.
-    out[8][~(out[2] >= H_UNDEFINED_NT)] = np.inf
+    # The WMM error model sqrt(a^2 + (b/H)^2) tends to infinity as H -> 0: where the kernel
+    # leaves it NaN (H below H_UNDEFINED_NT) the uncertainty is infinite, not unknown, unless the
+    # model gives no error model at that date (NaN a).
+    out[8][~(out[2] >= H_UNDEFINED_NT) & ~np.isnan(a)] = np.inf
 
 
 FLAG_REASONS = (
@@ -362,6 +392,7 @@ def field(
     frame = pd.DataFrame(table.T, columns=list(NUMERIC), copy=False)
     frame["zone"] = pd.Categorical.from_codes(zone, dtype=ZONE_DTYPE)
     frame["declination_flag"] = flags
+    frame.attrs["declination_uncertainty_model"] = load_model(model).error_label(table[3])
     return frame
 
 
@@ -441,7 +472,7 @@ def field_grid(
             g, h, gr, hr = model.coefficients(year)
             synthesis.grid_row_terms(lat_a, alt, g, h, gr, hr, k1, k2, diag, model.reference_radius_km, terms)
             np.matmul(terms.reshape(6 * lat_a.size, 2 * ncol), trig, out=vector[t].reshape(6 * lat_a.size, lon_a.size))
-            _derive(vector[t], derived[t], zone[t])
+            _derive(vector[t], derived[t], zone[t], _error_constants(model, np.array([year])))
     data = {name: derived[:, i].reshape(shape) for i, name in enumerate(ELEMENTS)}
     data.update({name: vector[:, i].reshape(shape) for i, name in enumerate(VECTOR)})
     zone = zone.reshape(shape)
@@ -471,6 +502,7 @@ def field_grid(
             "lat": ("lat", lat_a, {"units": "degrees_north", "long_name": "geodetic latitude (WGS84)"}),
             "lon": ("lon", lon_a, {"units": "degrees_east"}),
         },
-        attrs={"model": model.name, "alt_km": alt, "height_reference": "WGS84 ellipsoid"},
+        attrs={"model": model.name, "alt_km": alt, "height_reference": "WGS84 ellipsoid",
+               "declination_uncertainty_model": model.error_label(years)},
     )
     return ds if multi else ds.isel(time=0)
