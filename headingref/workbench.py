@@ -35,7 +35,8 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
-from .units import format_dm, timestamp_from_decimal_year
+from .formats import trade_text
+from .units import timestamp_from_decimal_year
 
 __all__ = ["explorer", "render", "styled", "status_line", "date_picker", "slider", "choice", "with_warnings", "show"]
 
@@ -227,13 +228,11 @@ def _format_value(column: str, value: Any) -> str:
         return "yes" if value else "no"
     if isinstance(value, (int, np.integer)) and not name.endswith(("_deg", "_nt", "_year")):
         return f"{int(value):,}" if abs(int(value)) >= 10000 else str(int(value))
+    trade = trade_text(column, value)
+    if trade is not None:  # the same forms as the console and the report (headingref.formats)
+        return trade
     if isinstance(value, (int, float, np.integer, np.floating)):
         number = float(value)
-        if name.endswith(("course_deg", "heading_deg", "bearing_deg", "azimuth_deg")) and "variation" not in name:
-            return f"{number % 360.0:05.1f}" if not number.is_integer() else f"{int(number) % 360:03d}"
-        if name in ("variation_deg", "declination_deg", "grivation_deg") or name.endswith(
-                ("_variation_deg", "_declination_deg")):
-            return format_dm(number)
         if name == "decimal_year" or name.endswith("_year") and not name.endswith("per_year") and number > 1000:
             return str(timestamp_from_decimal_year(number).date())
         if name.endswith("_nt"):

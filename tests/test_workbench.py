@@ -167,3 +167,16 @@ def test_budget_profile_log_axis_reads_as_plain_numbers_when_rendered():
     low, high = ax.get_ylim()
     labels = [t.get_text() for t in ax.get_yticklabels() if low <= t.get_position()[1] <= high and t.get_text()]
     assert labels == ["0.1", "1", "10", "100"]  # the axis spans 0.1 to 200 degrees, one label per decade
+
+
+def test_report_and_notebook_tables_share_the_trade_forms():
+    from headingref.report.render import format_cell
+
+    # three-digit courses and degrees-and-minutes variation (common practice); 183.44 keeps its tenth
+    # because a runway designator rounds it (ICAO Annex 14, nearest tenth of the magnetic azimuth)
+    assert format_cell("magnetic_course_deg", 44.96) == "045"
+    assert format_cell("true_bearing_deg", 183.44) == "183.4"
+    assert format_cell("variation_deg", -14.65) == "14°39′ W"  # 0.65 deg = 39 min, west negative
+    assert format_cell("difference_deg", -0.123) == "-0.12"  # a difference stays a signed number
+    html = styled(pd.DataFrame({"magnetic_course_deg": [44.96], "variation_deg": [-14.65]})).to_html()
+    assert ">045<" in html and "14°39′ W" in html

@@ -16,6 +16,7 @@ import jinja2
 import numpy as np
 import pandas as pd
 
+from ..formats import trade_text
 from ..notices import CAUTION
 from .content import Section, Table
 
@@ -41,6 +42,9 @@ def format_cell(column: str, value: Any) -> str:
         return ""
     if isinstance(value, (bool, np.bool_)):
         return "yes" if value else "no"
+    trade = trade_text(column, value)
+    if trade is not None:  # courses as three digits, variation as 14°39′ W (headingref.formats)
+        return trade
     if isinstance(value, (float, np.floating)):
         for suffix, decimals in _DECIMALS:
             if column.endswith(suffix):
