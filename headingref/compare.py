@@ -328,8 +328,11 @@ def _worst_status(statuses: pd.DataFrame, reasons: pd.DataFrame) -> tuple[list, 
     for i in range(len(statuses)):
         row = [str(v) for v in statuses.iloc[i]]
         status.append(max(row, key=lambda v: _STATUS_ORDER.get(v, 2)))
-        found = [str(v) for v in reasons.iloc[i] if isinstance(v, str) and v.strip()]
-        reason.append("; ".join(dict.fromkeys(found)))
+        found = {m: str(v) for m, v in reasons.iloc[i].items() if isinstance(v, str) and v.strip()}
+        if len(set(found.values())) <= 1:  # the same reason (or none) under every model
+            reason.append(next(iter(found.values()), ""))
+        else:
+            reason.append("; ".join(f"{m}: {v}" for m, v in found.items()))
     return status, reason
 
 
@@ -359,7 +362,8 @@ def compare_runways(
         ``<model>_designator_implied`` and ``<model>_verdict`` (:data:`RUNWAY_MODEL_FIELDS`);
         ``variation_spread_deg`` (largest minus smallest variation over the models, degrees);
         ``model_dependent`` (the implied designators differ between models); ``verdict_dependent``
-        (the verdicts differ); ``status`` (the worst over the models) and ``reason``.
+        (the verdicts differ); ``status`` (the worst over the models) and ``reason`` (each model's,
+        prefixed with its name where they differ).
         ``attrs['models']`` lists the model names in order.
 
     The designator rule is ICAO Annex 14 Vol I 5.2.2.4 (the magnetic azimuth to the nearest ten
@@ -374,9 +378,15 @@ def compare_runways(
 
     loaded = parse_models(models)
     tolerance = BOUNDARY_TOLERANCE_DEG if tolerance_deg is None else tolerance_deg
-    tables = [check_runways(runways, date, horizon_years=0.0, model=m, tolerance_deg=tolerance, band_sigmas=band_sigmas,
-                            columns=columns, allow_extrapolation=allow_extrapolation, last_fit=False).table
-              for m in loaded]
+    tables = []
+    for m in loaded:
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always")
+            tables.append(check_runways(runways, date, horizon_years=0.0, model=m, tolerance_deg=tolerance,
+                                        band_sigmas=band_sigmas, columns=columns, allow_extrapolation=allow_extrapolation,
+                                        last_fit=False).table)
+        for w in caught:  # each model's warnings, said as that model's
+            warnings.warn(f"{m.name}: {w.message}", w.category, stacklevel=2)
     first = tables[0]
     out = first[["input_row", "airport", "runway", "runway_id", "true_bearing_deg", "ref_lat_deg", "ref_lon_deg"]].copy()
     for model, t in zip(loaded, tables, strict=True):
