@@ -5,11 +5,12 @@ ellipsoid, and the jobs built on it: heading conversions and routes, weak-field 
 heading-reference error budget, compass base upkeep and swing analysis, runway designators.
 
 >>> import headingref
->>> row = headingref.field(61.2, -149.9, "2026-12-02").iloc[0]
+>>> row = headingref.field(65.35, -146.40, "2026-12-02").iloc[0]  # an invented demo airfield
 >>> round(float(row.declination_deg), 1)  # east positive
-13.9
+15.2
 """
 
+from .detector import heading_error
 from .errors import (
     DataQualityWarning,
     DateRangeError,
@@ -23,11 +24,10 @@ from .errors import (
 from .field import declination_uncertainty_deg, field, field_arrays, field_grid
 from .model import Model, load_model
 from .notices import CAUTION
+from .poles import dip_poles, geomagnetic_poles, pole_tracks
 from .routes import RouteResult, route
 from .runways import RunwayCheck, check_runways
 from .swing import DeviationCurve, analyse_swing
-from .detector import heading_error
-from .poles import dip_poles, geomagnetic_poles, pole_tracks
 from .zones import zones
 
 __all__ = [

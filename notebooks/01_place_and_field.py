@@ -26,13 +26,13 @@
 
 # %% [markdown]
 # ## Your inputs
-# Type the place as you would on the command line: decimal degrees (`78.246`), degrees and minutes with a
-# hemisphere letter (`N61°10.5′`, `149 54 30 W`) or the compact trade form (`7814N 01528E`). Heights take a
+# Type the place as you would on the command line: decimal degrees (`78.6`), degrees and minutes with a
+# hemisphere letter (`N61°10.5′`, `149 54 30 W`) or the compact trade form (`7836N 01754E`). Heights take a
 # unit (`0 m`, `35000 ft`, `FL350`). The defaults are an invented airfield of the demo scenario.
 
 # %%
-PLACE_LAT = "N78°14.8′"
-PLACE_LON = "015 28 00 E"
+PLACE_LAT = "N78°36.0′"
+PLACE_LON = "017 54 00 E"
 HEIGHT = "0 m"
 DATE = "2026-12-02"
 MODEL = None  # None for IGRF-14, or a model name / coefficient file
