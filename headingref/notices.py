@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from importlib import resources
 from pathlib import Path
 
 CAUTION = (
@@ -12,5 +13,6 @@ CAUTION = (
     "omits local crustal anomalies and magnetic disturbances, which can exceed several degrees."
 )
 
-DATA_DIR = Path(__file__).resolve().parent.parent / "data"
-"""The repository's data/ folder (the package is installed in editable/development mode)."""
+DATA_DIR = Path(str(resources.files("headingref") / "data"))
+"""The package's data folder (coastline, invented demo scenario), read with importlib.resources so a
+plain or wheel install finds it as well as a checkout (where the top-level ``data`` links to it)."""
