@@ -48,7 +48,7 @@ def bench_field(quick: bool) -> None:
     from chaosmagpy.model_utils import synth_values
 
     import headingref
-    from headingref.field import field_arrays
+    from headingref.elements import field_arrays
     from headingref.model import load_model
 
     model = load_model()
@@ -140,7 +140,7 @@ def bench_jobs(quick: bool) -> None:
         lat0, lon0 = rng.uniform(-60, 75, runs), rng.uniform(-180, 180, runs)
         az = rng.uniform(0, 180, runs)
         lon1, lat1, _ = runways._GEOD.fwd(lon0, lat0, az, np.full(runs, 2500.0))
-        from headingref.field import field_arrays
+        from headingref.elements import field_arrays
 
         magnetic = az - field_arrays(lat0, lon0, 2026.92)["declination_deg"]
         painted = runways.designator_from_magnetic(magnetic) + rng.choice([0, 0, 0, 1], runs)  # a quarter stale
@@ -241,7 +241,7 @@ def bench_highres(quick: bool) -> None:
     written to NetCDF beside the eager grid (time and peak memory)."""
     import tempfile
 
-    from headingref.field import field_arrays, field_grid
+    from headingref.elements import field_arrays, field_grid
     from headingref.model import load_model
 
     model = load_model("WMMHR2025")

@@ -11,6 +11,7 @@ heading-reference error budget, compass base upkeep and swing analysis, runway d
 """
 
 from .detector import heading_error
+from .elements import declination_uncertainty_deg, field, field_arrays, field_grid
 from .errors import (
     DataQualityWarning,
     DateRangeError,
@@ -21,14 +22,13 @@ from .errors import (
     ModelFileError,
     UndefinedDeclinationWarning,
 )
-from .field import declination_uncertainty_deg, field, field_arrays, field_grid
 from .model import Model, load_model
 from .notices import CAUTION
 from .poles import dip_poles, geomagnetic_poles, pole_tracks
 from .routes import RouteResult, route
 from .runways import RunwayCheck, check_runways
 from .swing import DeviationCurve, analyse_swing
-from .zones import zones
+from .weak_field import zones
 
 __all__ = [
     "RouteResult",

@@ -1,4 +1,4 @@
-"""Grids beyond memory: :func:`headingref.field.field_grid` computed chunk by chunk with dask.
+"""Grids beyond memory: :func:`headingref.elements.field_grid` computed chunk by chunk with dask.
 
 ``field_grid(..., chunks={"lat": 600, "lon": 1200, "time": 1})`` returns an xarray Dataset whose
 variables are dask arrays. Nothing is computed until the values are asked for (``.compute()``,
@@ -49,10 +49,10 @@ def _block(eager, lats, lons, years, alt_km, model) -> dict[str, np.ndarray]:
 
 def chunked_field_grid(lat_a: np.ndarray, lon_a: np.ndarray, years: np.ndarray, alt_km: float, model, chunks: Any,
                        multi: bool, eager):
-    """The lazy (dask-backed) counterpart of :func:`headingref.field.field_grid` (inputs already validated).
+    """The lazy (dask-backed) counterpart of :func:`headingref.elements.field_grid` (inputs already validated).
 
-    ``eager`` is :func:`headingref.field.field_grid` itself, passed in so this module does not import
-    :mod:`headingref.field` (which imports this one)."""
+    ``eager`` is :func:`headingref.elements.field_grid` itself, passed in so this module does not import
+    :mod:`headingref.elements` (which imports this one)."""
     try:
         import dask
         import dask.array as da

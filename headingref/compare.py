@@ -35,8 +35,8 @@ from typing import Any, NamedTuple
 import numpy as np
 import pandas as pd
 
+from .elements import field, field_grid
 from .errors import InputError
-from .field import field, field_grid
 from .model import Model, load_model
 
 DEFAULT_MODELS = ("IGRF-14", "WMM2025", "WMMHR2025")
@@ -93,7 +93,7 @@ def compare_models(
 
     Parameters
     ----------
-    lat, lon, date, alt_km : as :func:`headingref.field.field` (degrees, WGS84; dates; km).
+    lat, lon, date, alt_km : as :func:`headingref.elements.field` (degrees, WGS84; dates; km).
     models : comma-separated text or a sequence of names, paths or Models; the first is the
         reference the differences are taken against. Default ``IGRF-14, WMM2025, WMMHR2025``.
     names : optional label per place (default ``place N``).
@@ -154,7 +154,7 @@ def difference_grid(
     Variables: ``declination_a_deg``, ``declination_b_deg``, ``declination_diff_deg`` (b - a, east
     positive, wrapped to (-180, 180]), ``horizontal_a_nT``, ``horizontal_diff_nT`` (b - a),
     ``combined_uncertainty_deg`` (root-sum-square of the two error models) and ``significant``
-    (|difference| above it). Each model's field is :func:`headingref.field.field_grid`.
+    (|difference| above it). Each model's field is :func:`headingref.elements.field_grid`.
     """
     import xarray as xr
 

@@ -309,7 +309,7 @@ def _merge_history(sites: list[Site]) -> list[Site]:
 
 def model_variation_function(model=None, allow_extrapolation: bool = False) -> VariationFunction:
     """The field model's declination and its analytic annual rate as a variation function."""
-    from .field import field_arrays
+    from .elements import field_arrays
 
     def variation(lat, lon, year, alt_km):
         with warnings.catch_warnings():
@@ -454,12 +454,12 @@ def base_upkeep(
       survey's drift date and survey + interval), ``overdue`` (due on or before the swing date);
     - ``history_minus_model_deg``: change observed between the first and the latest survey minus
       the model's change over the same time (NaN with one survey);
-    - ``horizontal_nT, declination_uncertainty_deg, zone`` (categorical, :data:`headingref.field.ZONE_DTYPE`),
+    - ``horizontal_nT, declination_uncertainty_deg, zone`` (categorical, :data:`headingref.elements.ZONE_DTYPE`),
       ``caution``.
 
     Dates are ``YYYY-MM-DD`` text ('' when none), decimal years in the ``*_year`` columns.
     """
-    from .field import ZONE_DTYPE
+    from .elements import ZONE_DTYPE
     from .model import load_model
 
     sites = _site_list(sites)
@@ -529,7 +529,7 @@ class _UpkeepState:
 
 def _model_state(sites, swing_year, loaded, variation, allow_extrapolation, mark_step_deg) -> _UpkeepState:
     """The model at the swing and survey dates, the marks and both drift dates, all sites at once."""
-    from .field import field
+    from .elements import field
 
     lat = np.array([s.lat_deg for s in sites])
     lon = np.array([s.lon_deg for s in sites])

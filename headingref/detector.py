@@ -35,7 +35,7 @@ Error terms (all in degrees of heading, magnetic heading measured clockwise from
   ``k = tan(I) sin(tau)``. When ``tan(tau) tan|I| >= 1`` the field vector lies on the far side of
   the sensor plane's normal and some heading reads 180 degrees wrong.
 - **Model uncertainty**: the WMM error model for declination,
-  :func:`headingref.field.declination_uncertainty_deg` (WMM2020/WMM2025 technical reports).
+  :func:`headingref.elements.declination_uncertainty_deg` (WMM2020/WMM2025 technical reports).
 - **Slaving**: the gyro is slaved to the detector at a slow rate (default 3 deg/min). Working off
   an error takes ``error / rate`` minutes (:func:`slaving_time_min`); if slaving stays on through
   a turn of given duration, the gyro is dragged toward the detector's tilt error by
@@ -107,8 +107,8 @@ import numba as nb
 import numpy as np
 import pandas as pd
 
+from .elements import ZONE_DTYPE, field_arrays
 from .errors import InputError, UndefinedDeclinationWarning
-from .field import ZONE_DTYPE, field_arrays
 from .geogrid import CAPS, METRES_PER_DEG, area_grid, cap_stereo_grid, parse_area, polygons_area_km2, threshold_polygons
 from .synthesis import threads_for
 from .units import decimal_year
@@ -565,7 +565,7 @@ def heading_error(
         slaving_recovery_min, budget_rss_deg, budget_linear_deg, exceeds_limit, dominant_term,
         saturated_by``. ``tilt_error_deg`` is signed (apparent minus true, east positive) for a
         given heading and the magnitude for the worst heading. ``zone`` is the WMM zone
-        (:data:`headingref.field.ZONE_DTYPE`). ``slaving_on`` is False where the bank exceeds
+        (:data:`headingref.elements.ZONE_DTYPE`). ``slaving_on`` is False where the bank exceeds
         the slaving cut-out: the gyro then runs free and the tilt error does not reach the
         output (drift 0). ``dominant_term`` (categorical, :data:`TERMS`) is the largest term;
         ``saturated_by`` (categorical, :data:`SATURATION`) says when the budget sits at a
@@ -608,7 +608,7 @@ def heading_error_grid(
     """The error budget as a map (one date), an xarray Dataset.
 
     ``area`` is ``'north'``/``'south'`` or ``(lat_min, lat_max, lon_min, lon_max)`` as for
-    :func:`headingref.zones.zones`; settings as for :func:`heading_error` (one value each).
+    :func:`headingref.weak_field.zones`; settings as for :func:`heading_error` (one value each).
 
     - A polar cap is computed on a square polar stereographic grid
       (:func:`headingref.geogrid.cap_stereo_grid`, the projection of

@@ -1,12 +1,12 @@
 """Areas, grids and polygons shared by the zone maps and the error-budget maps.
 
-One place for what :mod:`headingref.zones` and :mod:`headingref.detector` both need, so neither
+One place for what :mod:`headingref.weak_field` and :mod:`headingref.detector` both need, so neither
 imports the other:
 
 - :data:`CAPS`: the two polar caps (hemisphere sign, edge latitude of every cap grid and map,
   polar stereographic projection). The edges hold the whole WMM caution zone (H < 6000 nT) of
   every IGRF-14 epoch 1900-2030 with a few degrees to spare: it reaches about 58.5 N (1900) and
-  56.3 S (2026) at its furthest from the poles (computed with :func:`headingref.field.field_grid`,
+  56.3 S (2026) at its furthest from the poles (computed with :func:`headingref.elements.field_grid`,
   checked in ``tests/test_zones.py``), so the north cap runs to 55 N and the south cap to 50 S.
 - :func:`parse_area`, :func:`check_resolution_deg`, :func:`area_grid`: a cap or a
   latitude-longitude region as a field grid.
@@ -41,8 +41,8 @@ from typing import Any
 import numpy as np
 from pyproj import Geod, Proj
 
+from .elements import field_grid
 from .errors import InputError, UndefinedDeclinationWarning
-from .field import field_grid
 from .units import timestamp_from_decimal_year
 
 __all__ = [
@@ -147,7 +147,7 @@ def check_resolution_deg(resolution_deg: Any) -> float:
 def area_grid(
     area: Any, date: Any, *, resolution_deg: float = 0.5, alt_km: float = 0.0, model=None, allow_extrapolation: bool = False
 ):
-    """The field grid (:func:`headingref.field.field_grid`) over a cap or region.
+    """The field grid (:func:`headingref.elements.field_grid`) over a cap or region.
 
     Longitudes are unwrapped (a region across the antimeridian runs past 180), always include
     the antimeridian as a node when the area reaches it, and a cap runs -180..180 inclusive.

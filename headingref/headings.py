@@ -149,10 +149,10 @@ def wrap_angle(angle_deg: Any) -> Any:
 def model_variation_deg(lat: AngleArray, lon: AngleArray, date: DateLike, alt_km: HeightArray = 0.0, model: ModelLike = None) -> Any:
     """Variation (declination, east positive, degrees) from the field model at places and a date.
 
-    Thin wrapper over :func:`headingref.field.field_arrays`. Raises :class:`InputError`
+    Thin wrapper over :func:`headingref.elements.field_arrays`. Raises :class:`InputError`
     where the declination is undefined (geographic pole, H = 0), naming the place.
     """
-    from .field import field_arrays
+    from .elements import field_arrays
 
     lat_a, lon_a, alt_a = np.broadcast_arrays(*(np.asarray(v, dtype=np.float64) for v in (lat, lon, alt_km)))
     year = decimal_year(date)

@@ -217,7 +217,7 @@ def check_navaids(
         ``difference_deg`` = variation - station declination (east positive, degrees);
         ``realign_date`` is '' when the tolerance is not exceeded within the horizon.
     """
-    from .field import ZONE_DTYPE, field_arrays
+    from .elements import ZONE_DTYPE, field_arrays
     from .runways import _settings
 
     if isinstance(tolerance_deg, bool) or not (isinstance(tolerance_deg, Real) and 0.0 < tolerance_deg <= 30.0):
@@ -289,7 +289,7 @@ def _variation_at_alignment(values: dict, settings) -> np.ndarray:
     A station declination far from this value suggests a data error (or an alignment to another
     model), the navaid counterpart of a runway designator that never fitted.
     """
-    from .field import field_arrays
+    from .elements import field_arrays
     from .units import decimal_year
 
     out = np.full(len(values["ident"]), np.nan)

@@ -1,6 +1,6 @@
 """Grids to netCDF with a CF time coordinate.
 
-headingref's grids (:func:`headingref.field.field_grid`, :func:`headingref.zones`,
+headingref's grids (:func:`headingref.elements.field_grid`, :func:`headingref.zones`,
 :func:`headingref.compare.difference_grid`) carry the date as a decimal year (a float ``time``
 coordinate, :func:`headingref.units.decimal_year`). CF readers (xarray ``decode_times``,
 Panoply, ncview, GDAL) expect time as a number with units ``<unit> since <reference date>``

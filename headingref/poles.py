@@ -50,8 +50,8 @@ import pandas as pd
 from pyproj import Transformer
 
 from ._types import DatesLike, ModelLike
+from .elements import field_arrays, field_grid
 from .errors import ExtrapolationWarning, InputError, UndefinedDeclinationWarning
-from .field import field_arrays, field_grid
 from .geogrid import CAPS, date_label
 from .model import Model, load_model
 from .units import decimal_year

@@ -4,7 +4,7 @@ A route is an ordered list of waypoints (name, lat, lon, optional altitude). Eac
 is followed along the WGS84 geodesic (default; ``pyproj.Geod``, Karney's algorithms)
 or along the rhumb line (Mercator sailing on the ellipsoid, see :func:`rhumb_inverse`).
 Every leg is densified at ``spacing_nm``; the field is evaluated once for all
-samples (:func:`headingref.field.field_arrays`). Sign conventions are those of
+samples (:func:`headingref.elements.field_arrays`). Sign conventions are those of
 :mod:`headingref.headings`: variation and grivation east positive,
 ``magnetic = true - variation``, ``grid = true - convergence``,
 ``magnetic = grid - grivation``.
@@ -31,7 +31,7 @@ Notes
 - A waypoint or sample exactly at a geographic pole has no variation (nor course):
   such samples are moved 1 m along the leg, giving the limit approached along it.
 - Caution / blackout stretches are where the horizontal field H is below
-  :data:`headingref.field.CAUTION_NT` / :data:`headingref.field.BLACKOUT_NT`; their ends
+  :data:`headingref.elements.CAUTION_NT` / :data:`headingref.elements.BLACKOUT_NT`; their ends
   are found by linear interpolation of H between samples. They are listed as
   ``"from-to"`` distances along the leg in NM, ``"; "`` between stretches.
 
@@ -453,7 +453,7 @@ def _route_grid(grid: Any, track: _Track) -> Any:
 def _references(track: _Track, wps: pd.DataFrame, grid_obj: Any, year: float, model: Any,
                 allow_extrapolation: bool) -> _References:
     """Field along the track and the courses in the magnetic and grid references."""
-    from .field import field_arrays
+    from .elements import field_arrays
 
     fld = field_arrays(track.lat, track.lon, year, track.alt, model=model, allow_extrapolation=allow_extrapolation)
     variation = np.asarray(fld["declination_deg"], dtype=np.float64)
@@ -484,7 +484,7 @@ def _references(track: _Track, wps: pd.DataFrame, grid_obj: Any, year: float, mo
 
 
 def _zones(codes: np.ndarray) -> pd.Categorical:
-    from .field import ZONE_DTYPE
+    from .elements import ZONE_DTYPE
 
     return pd.Categorical.from_codes(codes, dtype=ZONE_DTYPE)
 
@@ -522,7 +522,7 @@ def _samples_table(track: _Track, refs: _References, legs: _Legs) -> pd.DataFram
 
 def _legs_table(track: _Track, refs: _References, legs: _Legs, along_leg_nm: np.ndarray) -> pd.DataFrame:
     """One row per leg (:data:`LEG_COLUMNS`): courses and references at start, middle and end, weak-field stretches."""
-    from .field import BLACKOUT_NT, CAUTION_NT
+    from .elements import BLACKOUT_NT, CAUTION_NT
 
     n = track.n_samples
     start, end = track.start, track.end
@@ -610,7 +610,7 @@ def route(
         distance_along_leg_nm, distance_along_route_nm, lat_deg, lon_deg, alt_km,
         true_course_deg, variation_deg, magnetic_course_deg, convergence_deg,
         grid_course_deg, grivation_deg, horizontal_nT, declination_uncertainty_deg, zone``.
-        ``zone`` is the ordered categorical of :data:`headingref.field.ZONE_DTYPE`
+        ``zone`` is the ordered categorical of :data:`headingref.elements.ZONE_DTYPE`
         (normal < caution < blackout) in both tables.
     """
     spacing = _check_options(path, spacing_nm)
@@ -677,13 +677,13 @@ def weak_field_stretches(result: RouteResult) -> list[dict]:
     """The caution and blackout stretches of a route with their geometry.
 
     One dict per stretch: ``leg, from, to, zone`` (``caution``: H below
-    :data:`headingref.field.CAUTION_NT`, blackout included; ``blackout``: H below
-    :data:`headingref.field.BLACKOUT_NT`), ``from_nm, to_nm`` along the leg, ``min_horizontal_nT``
+    :data:`headingref.elements.CAUTION_NT`, blackout included; ``blackout``: H below
+    :data:`headingref.elements.BLACKOUT_NT`), ``from_nm, to_nm`` along the leg, ``min_horizontal_nT``
     and ``lat_deg, lon_deg`` lists: the samples inside the stretch with its two ends, found by
     linear interpolation of H (as the legs table's ``*_stretches_nm``) and placed between the
     samples around them.
     """
-    from .field import BLACKOUT_NT, CAUTION_NT
+    from .elements import BLACKOUT_NT, CAUTION_NT
 
     out = []
     for leg_no, part in result.samples.groupby("leg", sort=True):

@@ -28,7 +28,7 @@ model declination itself is uncertain (``variation_uncertainty_deg``), each runw
 either side of a boundary: ``tolerance_deg`` (default 0.25 degree, :data:`BOUNDARY_TOLERANCE_DEG`,
 headingref's own choice: common practice for survey rounding of azimuths to the quarter
 degree; no published figure found), or, with ``band_sigmas=k``, k times the local one-sigma
-declination uncertainty of the field model (WMM error model, see :mod:`headingref.field`),
+declination uncertainty of the field model (WMM error model, see :mod:`headingref.elements`),
 which is the meaningful band where the horizontal field is weak (sigma 1.6 degrees makes a
 fixed 0.25 degree band meaningless). The verdict (:data:`VERDICTS`):
 
@@ -1073,7 +1073,7 @@ def _knot_years(settings: _Settings, backwards: bool) -> np.ndarray:
 
 def _field_at_knots(runways: _Runways, groups: np.ndarray, knots: np.ndarray, settings: _Settings) -> tuple[dict, _KnotField]:
     """One vectorised field call for ``groups`` at every knot; the check-date values and the knot field."""
-    from .field import field_arrays
+    from .elements import field_arrays
 
     n, k = groups.size, knots.size
     f = field_arrays(np.repeat(runways.ref_lat[groups], k), np.repeat(runways.ref_lon[groups], k), np.tile(knots, n),
@@ -1093,7 +1093,7 @@ class _Variation:
 
 def _variation(ends: _Ends, runways: _Runways, settings: _Settings) -> _Variation:
     """Variation at each runway's reference point now and at the forecast knots (east positive)."""
-    from .field import ZONE_DTYPE
+    from .elements import ZONE_DTYPE
 
     n_groups = runways.true_deg.size
     leaders = np.flatnonzero(np.bincount(runways.group[runways.group >= 0], minlength=n_groups) > 0)
@@ -1356,7 +1356,7 @@ def check_runways(
         Forecast past the model's validity (warns); otherwise the forecast stops at its end.
     band_sigmas : float, optional
         If given, the band of each runway is this many times the local declination uncertainty
-        (``declination_uncertainty_deg`` of :func:`headingref.field.field`, one sigma; at most 5
+        (``declination_uncertainty_deg`` of :func:`headingref.elements.field`, one sigma; at most 5
         degrees) instead of ``tolerance_deg``.
     columns : str or dict, optional
         Column mapping, ``"runway=ident,lat=le_lat"`` (headingref's name = the file's).
@@ -1444,7 +1444,7 @@ def magnetic_bearing_series(
     DataFrame indexed by decimal year, one column per row (``'AIRPORT RWY'``), degrees
     magnetic, unwrapped around the check date's value (so 359 -> 361 stays continuous).
     """
-    from .field import field_arrays
+    from .elements import field_arrays
 
     years = np.atleast_1d(np.asarray(years, dtype=np.float64))
     table = result.table

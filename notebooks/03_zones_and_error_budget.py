@@ -51,8 +51,8 @@ from headingref.plots.detector import plot_budget_profile
 from headingref.plots.zones import plot_error_map, plot_pole_tracks, plot_zone_map
 from headingref.scenario import load_scenario
 from headingref.units import format_dm, parse_coordinate, parse_height_km
+from headingref.weak_field import zone_areas, zone_change
 from headingref.workbench import date_picker, explorer, show, slider, status_line, styled, with_warnings
-from headingref.zones import zone_areas, zone_change
 
 scenario = load_scenario(SCENARIO)
 DATE = DATE or scenario.analysis_date

@@ -16,8 +16,8 @@ import pytest
 
 from headingref.cli import main
 from headingref.compare import COLUMNS, compare_models, difference_grid, wrap_deg
+from headingref.elements import field_grid
 from headingref.errors import InputError
-from headingref.field import field_grid
 
 PLACES = [(64.5, -20.0), (78.2, 15.6), (-43.0, 147.3), (10.0, -60.0)]
 YEAR = 2026.5

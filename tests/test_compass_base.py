@@ -323,7 +323,7 @@ def test_upkeep_bad_argument_types_are_input_errors(argument, value):
 def test_upkeep_schema_and_zone_dtype():
     # One zone dtype in every table (the field table's categorical); columns as documented.
     from headingref.compass_base import UPKEEP_COLUMNS
-    from headingref.field import ZONE_DTYPE
+    from headingref.elements import ZONE_DTYPE
 
     site = make_site("Invented", 60, 10, "3E", "2020-01-01")
     table = base_upkeep([site], "2020-06-01", variation_function=constant_rate(3.0, 0.1, 2020.0))

@@ -260,7 +260,7 @@ def test_error_map_and_area_beyond_limit():
     # with no manoeuvre the budget is residual + model terms; the WMM model term alone exceeds
     # 2 deg where 5417/H > 1.98 i.e. H < ~2740 nT, so the area exceeds the blackout zone's
     blackout = headingref.zones("north", "2026-12-02", resolution_deg=1.0)
-    from headingref.zones import zone_areas
+    from headingref.weak_field import zone_areas
 
     blackout_km2 = float(zone_areas(blackout).set_index("zone").loc["blackout", "area_km2"])
     assert ds.attrs["area_exceeding_limit_km2"] > blackout_km2 > 0

@@ -18,8 +18,8 @@ import pytest
 from geographiclib.geodesic import Geodesic
 
 import headingref
+from headingref.elements import field_arrays
 from headingref.errors import DateRangeError, ExtrapolationWarning, InputError, UndefinedDeclinationWarning
-from headingref.field import field_arrays
 from headingref.routes import rhumb_inverse, route, route_geojson
 from headingref.runways import check_runways
 from headingref.units import decimal_year, parse_coordinate, parse_height_km
@@ -237,7 +237,7 @@ def test_route_over_the_north_dip_pole(miss_m):
 
 
 def test_zero_horizontal_field_helpers():
-    from headingref.field import classify_zone, declination_uncertainty_deg
+    from headingref.elements import classify_zone, declination_uncertainty_deg
 
     with warnings.catch_warnings():
         warnings.simplefilter("error")  # no divide-by-zero RuntimeWarning

@@ -11,8 +11,8 @@ import pandas as pd
 import pytest
 
 import headingref
+from headingref.elements import field_arrays
 from headingref.errors import DateRangeError, ExtrapolationWarning, InputError, ModelFileError
-from headingref.field import field_arrays
 from headingref.model import load_model
 
 HERE = Path(__file__).parent
@@ -185,7 +185,7 @@ def test_field_identities():
 
 def test_zones_and_uncertainty_thresholds():
     # Source: WMM2025 technical report: blackout H < 2000 nT, caution 2000 <= H < 6000 nT.
-    from headingref.field import classify_zone, declination_uncertainty_deg
+    from headingref.elements import classify_zone, declination_uncertainty_deg
 
     assert list(classify_zone([1999.9, 2000.0, 5999.9, 6000.0])) == ["blackout", "caution", "caution", "normal"]
     # sqrt(0.26^2 + (5417/5417)^2) = sqrt(1.0676)
@@ -311,7 +311,7 @@ def test_no_usable_declination_at_the_place_of_the_report():
 
     import ppigrf
 
-    from headingref.field import FLAG_REASONS, NO_HEADING_DEG
+    from headingref.elements import FLAG_REASONS, NO_HEADING_DEG
 
     lat, lon, date = ISSUE_PLACE
     with pytest.warns(headingref.UndefinedDeclinationWarning, match="not usable"):
@@ -340,7 +340,7 @@ def test_no_usable_declination_with_wmm2025_matches_pygeomag_h():
     # blackout zone (pygeomag's in_blackout_zone), and below 100 nT, so flagged here too
     from pygeomag import GeoMag
 
-    from headingref.field import NO_DECLINATION_NT
+    from headingref.elements import NO_DECLINATION_NT
 
     lat, lon, _ = ISSUE_PLACE
     year = 2027.2466
@@ -360,7 +360,7 @@ def test_threshold_is_where_the_error_model_horizontal_error_equals_h():
     # (WMM2015 5430, WMM2020 5625, WMM2025 5417, WMMHR2025 5205 nT; pygeomag carries the same).
     import math
 
-    from headingref.field import BLACKOUT_NT, NO_DECLINATION_NT
+    from headingref.elements import BLACKOUT_NT, NO_DECLINATION_NT
 
     error_nT = [b * math.pi / 180.0 for b in (5430.0, 5625.0, 5417.0, 5205.0)]
     assert 90.0 < min(error_nT) and max(error_nT) < NO_DECLINATION_NT <= 100.0
@@ -380,7 +380,7 @@ def test_flag_boundary_along_a_line_from_the_dip_pole():
 
     from geographiclib.geodesic import Geodesic
 
-    from headingref.field import NO_DECLINATION_NT
+    from headingref.elements import NO_DECLINATION_NT
 
     pole = headingref.dip_poles("2026-12-02").iloc[0]
     points = [Geodesic.WGS84.Direct(pole.lat, pole.lon, 45.0, d) for d in np.arange(1_000.0, 120_000.0, 1_000.0)]
@@ -403,7 +403,7 @@ def test_grid_flags_the_dip_pole_disc_like_the_scattered_points():
     # rate and 180-degree cap exactly where H < 100 nT; H at a flagged node equal to ppigrf's
     import ppigrf
 
-    from headingref.field import FLAG_REASONS
+    from headingref.elements import FLAG_REASONS
 
     pole = headingref.dip_poles("2026-12-02").iloc[0]
     lats = np.linspace(pole.lat - 0.57, pole.lat + 0.63, 25)  # no node on the pole itself (H = 0 there)
@@ -461,7 +461,7 @@ def test_latitude_must_be_within_90(lat):
 def test_grid_size_guard_refuses_before_allocating():
     import tracemalloc
 
-    from headingref.field import MAX_GRID_NODES
+    from headingref.elements import MAX_GRID_NODES
 
     lats = np.arange(-90.0, 90.0001, 0.005)  # 36,001 x 72,000 nodes: 174 GiB of float64 results
     lons = np.arange(-180.0, 180.0, 0.005)

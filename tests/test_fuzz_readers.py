@@ -100,7 +100,7 @@ COF_TEXT = _wmm_cof().read_text()
 
 def _load_and_use(path: Path) -> None:
     """Load a model and evaluate it once inside its validity: the field must come out finite."""
-    from headingref.field import field_arrays
+    from headingref.elements import field_arrays
 
     model = load_model(path)
     year = min(max(2026.0, model.valid_from), model.valid_to)

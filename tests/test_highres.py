@@ -15,8 +15,8 @@ from pathlib import Path
 import numpy as np
 import pytest
 
+from headingref.elements import field_arrays, field_grid
 from headingref.errors import ModelFileError
-from headingref.field import field_arrays, field_grid
 from headingref.model import MAX_DEGREE, load_model, model_file
 
 COMPONENTS = ("north_nT", "east_nT", "down_nT")

@@ -22,7 +22,7 @@ from pyproj import Geod
 import headingref
 from headingref.cli import main
 from headingref.kml import kml_colour
-from headingref.zones import zone_areas, zone_kml
+from headingref.weak_field import zone_areas, zone_kml
 
 NS = "{http://www.opengis.net/kml/2.2}"  # OGC 07-147r2, 6.1
 # element names of OGC 07-147r2 that a zone document may use

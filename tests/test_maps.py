@@ -20,7 +20,7 @@ import pytest
 matplotlib.use("Agg")
 
 import headingref  # noqa: E402
-from headingref.field import BLACKOUT_NT, CAUTION_NT  # noqa: E402
+from headingref.elements import BLACKOUT_NT, CAUTION_NT  # noqa: E402
 from headingref.plots import basemap  # noqa: E402
 from headingref.plots.route import plot_route_map  # noqa: E402
 from headingref.plots.zones import plot_error_map, plot_zone_map  # noqa: E402

@@ -16,8 +16,8 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+from headingref.elements import declination_uncertainty_deg, field, field_grid
 from headingref.errors import ModelFileError
-from headingref.field import declination_uncertainty_deg, field, field_grid
 from headingref.model import MODEL_NAMES, WMM_ERROR_MODELS, list_models, load_model, model_name
 
 # (name, pygeomag coefficient file, a date inside its validity, published a deg, published b nT)

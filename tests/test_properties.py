@@ -24,7 +24,7 @@ from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
 from headingref import io
-from headingref.field import classify_zone, declination_uncertainty_deg, field_arrays
+from headingref.elements import classify_zone, declination_uncertainty_deg, field_arrays
 from headingref.routes import route
 from headingref.runways import boundary_margin_deg, designator_from_magnetic
 from headingref.swing import analyse_swing

@@ -422,7 +422,7 @@ def test_compact_coordinates_give_the_same_legs(tmp_path):
 
 
 def test_output_schema_and_zone_dtype(chain_result):
-    from headingref.field import ZONE_DTYPE
+    from headingref.elements import ZONE_DTYPE
     from headingref.routes import LEG_COLUMNS, SAMPLE_COLUMNS
 
     _, (legs, samples) = chain_result

@@ -12,10 +12,10 @@ from matplotlib.path import Path as MplPath
 from pyproj import Geod
 
 import headingref
+from headingref.elements import BLACKOUT_NT, CAUTION_NT
 from headingref.errors import InputError
-from headingref.field import BLACKOUT_NT, CAUTION_NT
 from headingref.geogrid import CAPS, parse_area
-from headingref.zones import (
+from headingref.weak_field import (
     DEFAULT_LABELS,
     DEFAULT_THRESHOLDS_NT,
     zone_areas,

@@ -277,9 +277,9 @@ def _stream(places: _Places, model, extrapolate: bool, sinks, keep: bool):
 
     import numpy as np
 
+    from ..elements import FLAG_REASONS, NUMERIC, ZONE_NAMES, _warn_flags, field_arrays
     from ..errors import UndefinedDeclinationWarning
     from ..fastcsv import format_rows
-    from ..field import FLAG_REASONS, NUMERIC, ZONE_NAMES, _warn_flags, field_arrays
 
     n = len(places.lat)
     decimals = [DECIMALS_NT if name.endswith(("nT", "nT_per_year")) else DECIMALS_OTHER for name in NUMERIC]
@@ -342,8 +342,8 @@ def run(args) -> int:
     import numpy as np
 
     from .. import io
+    from ..elements import FLAG_REASONS, NO_DECLINATION_NT, ZONE_NAMES
     from ..errors import InputError
-    from ..field import FLAG_REASONS, NO_DECLINATION_NT, ZONE_NAMES
     from ..model import load_model
     from ..notices import CAUTION
     from ..tables import EXCEL_SUFFIXES, write_output

@@ -77,7 +77,7 @@ def leg_table_text(legs) -> str:
 def run(args) -> int:
     import json
 
-    from ..field import BLACKOUT_NT, CAUTION_NT
+    from ..elements import BLACKOUT_NT, CAUTION_NT
     from ..io import all_or_nothing, write_text
     from ..notices import CAUTION
     from ..routes import route, route_geojson, route_kml

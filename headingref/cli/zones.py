@@ -115,7 +115,7 @@ def run(args) -> int:
     from ..notices import CAUTION
     from ..tables import write_output
     from ..units import parse_height_km
-    from ..zones import write_geojson, zone_areas, zone_change, zone_geojson, zone_kml, zones
+    from ..weak_field import write_geojson, zone_areas, zone_change, zone_geojson, zone_kml, zones
     from .common import check_outputs
 
     check_outputs(files=[args.output, args.geojson, args.kml, args.netcdf], figures=[args.png, args.budget_png], inputs=[args.model])

@@ -24,7 +24,7 @@ from collections.abc import Sequence
 import numpy as np
 import pandas as pd
 
-from ..field import field_arrays
+from ..elements import field_arrays
 from . import plain_text, save_figure
 
 __all__ = ["plot_survey_history", "save_figure"]

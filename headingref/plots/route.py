@@ -137,8 +137,8 @@ def plot_route_map(result: Any, ax=None, model: Any = None, mesh: int = 140, iso
     from matplotlib.lines import Line2D
     from matplotlib.patches import Patch
 
+    from ..elements import BLACKOUT_NT, CAUTION_NT, field_arrays
     from ..errors import UndefinedDeclinationWarning
-    from ..field import BLACKOUT_NT, CAUTION_NT, field_arrays
     from ..headings import format_heading
     from .basemap import declutter_labels, draw_dip_poles, map_axes, plot_lonlat, scatter_lonlat
 
@@ -228,7 +228,7 @@ def plot_route_profile(result: Any, fig=None):
     """Variation, H and declination uncertainty against distance along the route; returns the Figure."""
     from matplotlib.figure import Figure
 
-    from ..field import BLACKOUT_NT, CAUTION_NT, NO_HEADING_DEG
+    from ..elements import BLACKOUT_NT, CAUTION_NT, NO_HEADING_DEG
 
     legs, samples = result.legs, result.samples
     dist = samples.distance_along_route_nm.to_numpy()

@@ -24,7 +24,7 @@ from typing import Any
 import numpy as np
 
 from ..geogrid import CAPS
-from ..zones import SEVERITY_COLOURS as _SEVERITY_COLOURS  # most severe first; the KML uses them too
+from ..weak_field import SEVERITY_COLOURS as _SEVERITY_COLOURS  # most severe first; the KML uses them too
 from . import plain_text
 from .route import save_figure
 
@@ -108,13 +108,13 @@ def plot_zone_map(ds, *, tracks=None, title: str | None = None, figsize: tuple[f
     """Map of the weak-field zones of a :func:`headingref.zones` Dataset.
 
     The first date's zones are shaded; with a second date (a two-step ``time`` dimension, as
-    from :func:`headingref.zones.zone_change`) its boundaries are drawn dashed on top. ``tracks``
+    from :func:`headingref.weak_field.zone_change`) its boundaries are drawn dashed on top. ``tracks``
     (a :func:`headingref.pole_tracks` table) adds the pole tracks of the map's hemisphere. ``lines``
     ((label, lon, lat) each, e.g. routes) are drawn on top; ``shade_latest`` shades the last date instead.
     """
     from matplotlib.patches import Patch
 
-    from ..zones import zone_geojson
+    from ..weak_field import zone_geojson
     from .basemap import declutter_labels, draw_geojson, map_axes, plot_lonlat
 
     kind, extent = _map_for(ds)

@@ -13,7 +13,7 @@ import warnings
 import pandas as pd
 
 from ..compass_base import base_upkeep, read_sites_csv, setting_out
-from ..field import field_arrays
+from ..elements import field_arrays
 from ..plots.compass_base import plot_survey_history
 from ..units import decimal_year, timestamp_from_decimal_year
 from .content import OutputFile, Part, Section, SummaryItem, Table, figure_from, flag

@@ -1,6 +1,6 @@
 """Report job: weak-field zones over the scenario's cap, how they moved, and the magnetic poles.
 
-:func:`headingref.zones.zones` (or :func:`headingref.zones.zone_change` with a comparison
+:func:`headingref.weak_field.zones` (or :func:`headingref.weak_field.zone_change` with a comparison
 date), :func:`headingref.poles.dip_poles`, :func:`headingref.poles.geomagnetic_poles` and
 :func:`headingref.poles.pole_tracks`; the map is :func:`headingref.plots.zones.plot_zone_map`
 with the routes of the routes job on top. Files: ``zones.geojson``, ``zone_areas.csv``,
@@ -14,7 +14,7 @@ import pandas as pd
 from ..plots.zones import plot_zone_map
 from ..poles import dip_poles, geomagnetic_poles, pole_tracks
 from ..units import decimal_year
-from ..zones import zone_areas, zone_change, zone_geojson, zones
+from ..weak_field import zone_areas, zone_change, zone_geojson, zones
 from .content import OutputFile, Part, Section, SummaryItem, Table, figure_from, latlon_text
 from .context import Context
 

@@ -1,9 +1,9 @@
-"""Weak-horizontal-field zones, their GeoJSON boundaries and areas, and the magnetic poles.
+"""Weak-horizontal-field zones, their GeoJSON and KML boundaries and their areas.
 
 Zones
 -----
 :func:`zones` evaluates the field on a latitude-longitude grid (a polar cap or a region, through
-the fast grid synthesis :func:`headingref.field.field_grid`) and adds ``zone_code`` for any
+the fast grid synthesis :func:`headingref.elements.field_grid`) and adds ``zone_code`` for any
 horizontal-intensity thresholds. The defaults are the WMM2020/WMM2025 technical reports' zones:
 ``blackout`` where H < 2000 nT, ``caution`` where 2000 <= H < 6000 nT. With thresholds
 ``t1 < t2 < ... < tn`` the code is ``n`` where ``H < t1`` down to ``0`` where ``H >= tn``.
@@ -21,8 +21,8 @@ WGS84 (:meth:`pyproj.Geod.polygon_area_perimeter`, Karney's algorithm). :func:`z
 compares two dates (areas at both and both sets of boundaries in one collection).
 
 Zone labels are one categorical type in every table (:func:`zone_dtype`): the WMM zones use
-:data:`headingref.field.ZONE_DTYPE` (``normal < caution < blackout``), the same type as
-:func:`headingref.field.field`'s ``zone`` column; user thresholds give ``normal`` and their labels,
+:data:`headingref.elements.ZONE_DTYPE` (``normal < caution < blackout``), the same type as
+:func:`headingref.elements.field`'s ``zone`` column; user thresholds give ``normal`` and their labels,
 ordered the same way (least to most severe). Grids keep CF flag codes (``zone_code``, int8).
 
 Grids and polygons come from :mod:`headingref.geogrid` (shared with the error-budget maps); the
@@ -41,11 +41,11 @@ the pole as one vertex where a zone covers it), repeated points are dropped and 
 densified to 0.5 degree, so a great-circle edge follows the lon/lat line within about 30 m
 (the bulge of a great circle over a parallel, about ``R * dlon^2 / 8 * sin(lat) * cos(lat)``).
 
-The package exports ``zones`` at top level, so ``headingref.zones`` is the function: reach the
-rest with ``from headingref.zones import ...``.
+The package exports ``zones`` at top level (``headingref.zones`` is that function); this module is
+``headingref.weak_field``, so the function does not hide it.
 
 >>> import headingref
->>> from headingref.zones import zone_areas
+>>> from headingref.weak_field import zone_areas
 >>> ds = headingref.zones("north", "2026-12-02", resolution_deg=1.0)
 >>> sorted(zone_areas(ds).zone)
 ['blackout', 'caution']
@@ -62,14 +62,10 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
+from .elements import ZONE_DTYPE, ZONE_NAMES
 from .errors import InputError
-from .field import ZONE_DTYPE, ZONE_NAMES
 from .geogrid import area_grid, date_label, polygons_area_km2, threshold_polygons
 from .io import write_text
-
-# Temporary re-export: report.py still looks the poles up in this module (``_need("zones", ...)``);
-# remove once the report imports them from headingref.poles.
-from .poles import dip_poles, geomagnetic_poles, pole_tracks  # noqa: F401
 from .units import decimal_year
 
 DEFAULT_THRESHOLDS_NT = (2000.0, 6000.0)  # WMM2020/WMM2025 technical reports: blackout, caution
@@ -216,7 +212,7 @@ def zone_areas(ds) -> pd.DataFrame:
 def zone_dtype(labels: Sequence[str] = DEFAULT_LABELS) -> pd.CategoricalDtype:
     """The categorical type of the ``zone`` column for bands named ``labels`` (most severe first).
 
-    The WMM labels give :data:`headingref.field.ZONE_DTYPE` itself (``normal < caution <
+    The WMM labels give :data:`headingref.elements.ZONE_DTYPE` itself (``normal < caution <
     blackout``); other labels give ``normal`` and the labels in the same order of severity.
     """
     labels = tuple(str(v) for v in labels)
