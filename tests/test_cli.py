@@ -265,7 +265,7 @@ BAD_RUNS = [
     (["route", "--input", ROUTE, "--date", DATE, "--alt", "FL9999", "--output", "OUT/l.csv"], "height"),
     (["route", "--input", ROUTE, "--date", "1899-12-31", "--output", "OUT/l.csv"], "validity"),
     (["runways", "--input", RUNWAYS, "--date", DATE, "--horizon", "inf", "--output", "OUT/r.csv"], "horizon"),
-    (["runways", "--input", RUNWAYS, "--date", DATE, "--tolerance", "nan", "--output", "OUT/r.csv"], "tolerance"),
+    (["runways", "--input", RUNWAYS, "--date", DATE, "--band", "nan", "--output", "OUT/r.csv"], "band"),
     (["runways", "--input", SWING, "--date", DATE, "--output", "OUT/r.csv"], "missing column"),
     (["runways", "--input", RUNWAYS, "--date", DATE, "--plot", "OUT/p.png", "--plot-runways", "NOWHERE 09",
       "--output", "OUT/r.csv"], "not in the table"),
@@ -544,3 +544,18 @@ def test_field_at_the_pole_prints_undefined_not_nan():
     code, out, _ = run(["field", "--lat", "90", "--lon", "0", "--date", DATE])
     assert code == 0
     assert "nan" not in out.lower() and out.count("undefined") >= 2
+
+
+def test_tolerance_means_one_thing():
+    # --tolerance is the allowed difference between a fixed reference (a base's marked variation, a
+    # navaid's station declination) and today's variation; the runway band around a rounding boundary
+    # is --band and nothing else (one vocabulary for settings, common practice of CLI design)
+    import argparse
+
+    from headingref.cli import build_parser
+
+    parser = build_parser()
+    commands = next(a for a in parser._actions if isinstance(a, argparse._SubParsersAction)).choices
+    with_tolerance = sorted(name for name, sub in commands.items()
+                            if any("--tolerance" in action.option_strings for action in sub._actions))
+    assert with_tolerance == ["base", "navaids"]

@@ -55,12 +55,12 @@ def register(subparsers) -> None:
         help="ends to plot, comma-separated 'AIRPORT RWY' (default: soonest changes, then smallest margins)",
     )
     parser.add_argument(
-        "--band", "--tolerance",
+        "--band",
         dest="band",
         type=float,
         default=None,
         metavar="DEG",
-        help="half-width of the band either side of each rounding boundary (default 0.25; --tolerance is the old name)",
+        help="half-width of the band either side of each rounding boundary (default 0.25)",
     )
     parser.add_argument("--band-sigmas", type=float, default=None, metavar="K",
                         help="band = K x the local declination uncertainty (1 sigma) instead of a fixed --band")
