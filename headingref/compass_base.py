@@ -227,7 +227,8 @@ def make_site(
     return Site(str(name), lat_deg, lon_deg, variation, survey_year, tol, interval, alt, row or f"site {name!r}")
 
 
-def read_sites_csv(path: str | os.PathLike, tolerance_deg: float | None = None, resurvey_years: float | None = None, today=None) -> list[Site]:
+def read_sites_csv(path: str | os.PathLike, tolerance_deg: float | None = None, resurvey_years: float | None = None, today=None,
+                   columns=None) -> list[Site]:
     """Read sites from a CSV: ``name, lat, lon, surveyed_variation, survey_date`` and optional
     ``tolerance_deg, resurvey_years`` and a height: ``alt`` with a unit in each value (``35 m``,
     ``120 ft``; a bare number is refused) or ``alt_m``/``alt_ft``/``alt_km`` (numbers in that unit).
@@ -235,7 +236,8 @@ def read_sites_csv(path: str | os.PathLike, tolerance_deg: float | None = None, 
     Empty optional cells take ``tolerance_deg`` / ``resurvey_years`` given here. Several rows with
     one name are that base's survey history: the latest survey is returned, with the earlier ones
     in ``Site.history`` (the rows must give the same position, within 0.001 degree, and different
-    dates). Every error names the file and line.
+    dates). Every error names the file and line. ``columns`` maps headingref's names to the file's
+    (``"name=site,surveyed_variation=var_deg"``, :func:`headingref.tables.parse_column_mapping`).
     """
     from .io import read_table
 
@@ -244,6 +246,7 @@ def read_sites_csv(path: str | os.PathLike, tolerance_deg: float | None = None, 
         required=["name", "lat", "lon", "surveyed_variation", "survey_date"],
         optional=["tolerance_deg", "resurvey_years", "alt", "alt_m", "alt_ft", "alt_km"],
         what="compass bases",
+        columns=columns,
     )
     try:
         height, height_unit = height_column(table.columns, "alt")

@@ -24,7 +24,7 @@ import os
 import shutil
 import stat
 import tempfile
-from collections.abc import Iterator, Sequence
+from collections.abc import Iterator, Mapping, Sequence
 from pathlib import Path
 from typing import IO, Any
 
@@ -42,12 +42,19 @@ def read_table(  # noqa: C901 - owned by the IO work in progress (issue 13 item 
     required: Sequence[str],
     optional: Sequence[str] = (),
     what: str = "table",
+    columns: str | Mapping[str, str] | None = None,
+    accepted: Sequence[str] | None = None,
 ) -> pd.DataFrame:
     """Read a delimited text table with a header row.
 
     Column names are matched case-insensitively after stripping spaces. Missing
     required columns raise :class:`InputError` listing what is accepted. Columns not
     named in ``required`` or ``optional`` are kept. Blank lines are skipped.
+
+    ``columns`` maps headingref's names to the file's (``"lat=le_lat,lon=le_lon"`` or a dict,
+    read by :func:`headingref.tables.parse_column_mapping`; the names on the left must be among
+    ``accepted``, by default ``required`` + ``optional``). The file's columns are renamed right
+    after the header is read, so every later check and message uses headingref's names.
 
     Returns a DataFrame of ``str`` (empty string for an empty cell) indexed by the
     1-based line number in the file; ``df.attrs['source']`` holds the file name.
@@ -108,16 +115,23 @@ def read_table(  # noqa: C901 - owned by the IO work in progress (issue 13 item 
     dupes = sorted(name for name, count in counts.items() if count > 1 and name)
     if dupes:
         raise InputError(f"{label}: column(s) {', '.join(dupes)} appear more than once in the header")
+    table = pd.DataFrame(rows, columns=header, index=pd.Index(line_numbers, name="line"), dtype=str)
+    if columns:
+        from .tables import apply_column_mapping, parse_column_mapping
+
+        names = list(required) + list(optional) if accepted is None else list(accepted)
+        mapping = parse_column_mapping(columns, names, f"{label}: --columns")
+        table = apply_column_mapping(table, mapping, label)
+        header = list(table.columns)
     missing = [name for name in required if name not in header]
     if missing:
-        accepted = ", ".join(list(required) + [f"[{name}]" for name in optional])
+        expected = ", ".join(list(required) + [f"[{name}]" for name in optional])
         raise InputError(
             f"{label}: missing column(s) {', '.join(missing)}; found {', '.join(h for h in header if h) or 'none'}; "
-            f"expected {accepted} (separator , or ; detected {delimiter!r})"
+            f"expected {expected} (separator , or ; detected {delimiter!r}; map other names with --columns NAME=COLUMN,...)"
         )
     if not rows:
         raise InputError(f"{label}: the header is there but no data rows follow")
-    table = pd.DataFrame(rows, columns=header, index=pd.Index(line_numbers, name="line"), dtype=str)
     table.attrs["source"] = path.name
     return table
 

@@ -48,6 +48,7 @@ from __future__ import annotations
 
 import math
 import os
+from collections.abc import Mapping
 from pathlib import Path
 from typing import Any, NamedTuple
 
@@ -137,7 +138,8 @@ def _waypoints_from_records(waypoints: Any) -> tuple[list, np.ndarray, np.ndarra
     return names, np.array(lat_list, dtype=np.float64), np.array(lon_list, dtype=np.float64), heights, units, where
 
 
-def read_waypoints(waypoints: Any, alt_km: float = 0.0, route_name: str | None = None) -> pd.DataFrame:
+def read_waypoints(waypoints: Any, alt_km: float = 0.0, route_name: str | None = None,
+                   columns: str | Mapping[str, str] | None = None) -> pd.DataFrame:
     """Waypoints as a DataFrame ``name, lat_deg, lon_deg, alt_km, where``.
 
     ``waypoints`` is a CSV path (columns ``name, lat, lon`` and an optional height column),
@@ -145,7 +147,8 @@ def read_waypoints(waypoints: Any, alt_km: float = 0.0, route_name: str | None =
     any form :func:`headingref.units.parse_coordinate` accepts. A height carries its unit:
     in the column name (``alt_ft``, ``alt_m``, ``alt_km``: plain numbers in that unit) or in
     every value of a plain ``alt`` column (``35000 ft``, ``FL350``, ``120 m``, ``3.2 km``;
-    a bare number there is refused). Heights above 30 km
+    a bare number there is refused). ``columns`` maps headingref's names to a CSV's own
+    (``"name=ident,lat=wp_lat"``, :func:`headingref.tables.parse_column_mapping`). Heights above 30 km
     (:data:`headingref.units.ROUTE_HEIGHT_MAX_KM`) are refused as unit slips. A missing
     height takes ``alt_km``. ``where`` names the row for error messages.
 
@@ -154,12 +157,14 @@ def read_waypoints(waypoints: Any, alt_km: float = 0.0, route_name: str | None =
     them); ``route_name`` picks one of several routes, tracks or lines there.
     """
     if isinstance(waypoints, (str, os.PathLike)) and Path(waypoints).suffix.lower() in ROUTE_FILE_SUFFIXES:
+        if columns:
+            raise InputError(f"a column mapping (--columns) applies to CSV waypoint files, not to {Path(waypoints).name}")
         waypoints = read_route_file(waypoints, route_name)
     elif route_name is not None:
         raise InputError(f"route name {route_name!r} applies to GPX, KML or GeoJSON files, not to {waypoints!r}")
     if isinstance(waypoints, (str, os.PathLike)):
         table = read_table(Path(waypoints), required=["name", "lat", "lon"], optional=["alt", "alt_ft", "alt_m", "alt_km"],
-                           what="route")
+                           what="route", columns=columns)
         source = table.attrs["source"]
         lat = coordinate_column(table, "lat", "lat")
         lon = coordinate_column(table, "lon", "lon")
@@ -568,6 +573,7 @@ def route(
     model: ModelLike = None,
     allow_extrapolation: bool = False,
     route_name: str | None = None,
+    columns: str | Mapping[str, str] | None = None,
 ) -> RouteResult:
     """Legs and samples of a route in true, magnetic and grid references, with the field along it.
 
@@ -595,6 +601,9 @@ def route(
         Field model (default IGRF-14).
     route_name : str, optional
         Which route, track or line of a GPX, KML or GeoJSON file (one of several).
+    columns : str or dict, optional
+        Column mapping of a waypoint CSV, ``"name=ident,lat=wp_lat,lon=wp_lon"`` (headingref's
+        name = the file's column; :func:`headingref.tables.parse_column_mapping`).
 
     Returns
     -------
@@ -614,7 +623,7 @@ def route(
         (normal < caution < blackout) in both tables.
     """
     spacing = _check_options(path, spacing_nm)
-    wps = read_waypoints(waypoints, alt_km=parse_height_km(alt_km, max_km=ROUTE_HEIGHT_MAX_KM), route_name=route_name)
+    wps = read_waypoints(waypoints, alt_km=parse_height_km(alt_km, max_km=ROUTE_HEIGHT_MAX_KM), route_name=route_name, columns=columns)
     year = decimal_year(date)
     legs = _leg_geometry(wps, path)
     track = _sample_track(legs, spacing)

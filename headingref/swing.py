@@ -834,6 +834,8 @@ COMPASS_COLUMNS = ("compass_reading_deg", "compass_reading", "compass_heading_de
                    "compass", "reading", "compass_hdg", "ch")
 DEVIATION_COLUMNS = ("deviation_deg", "deviation", "dev")
 """Accepted column names of a swing CSV (matched ignoring case, spaces, hyphens and dots)."""
+MAPPED_COLUMNS = ("magnetic_heading_deg", "compass_reading_deg", "deviation_deg")
+"""The names a swing CSV's ``columns`` mapping may map onto (heading; compass reading or deviation)."""
 
 
 def _column_key(name: str) -> str:
@@ -863,7 +865,7 @@ def _heading_cell(cell: str, where: str, what: str, points: bool) -> float:
     return value
 
 
-def read_swing_csv(path: str | os.PathLike) -> tuple[np.ndarray, np.ndarray, list[str]]:
+def read_swing_csv(path: str | os.PathLike, columns=None) -> tuple[np.ndarray, np.ndarray, list[str]]:
     """Read swing readings: a magnetic heading column and a compass reading (or deviation) column.
 
     Column names are matched ignoring case, spaces and hyphens: the heading from
@@ -873,14 +875,25 @@ def read_swing_csv(path: str | os.PathLike) -> tuple[np.ndarray, np.ndarray, lis
     ``10.5E``, ``W6.8``), from which ``compass = magnetic - deviation``. Headings are plain
     degrees (-360 to 720, normalised later) or compass points ``N``, ``NE``, ..., ``NNW``.
 
+    ``columns`` maps the file's own names first (``"magnetic_heading_deg=hdg_m,deviation_deg=dev_e"``,
+    :func:`headingref.tables.parse_column_mapping`; accepted names :data:`MAPPED_COLUMNS`): a mapped
+    column is taken over any other column whose name fits the same role.
+
     Returns (magnetic headings, compass readings, row labels such as ``'readings.csv line 4'``).
     """
-    table = read_table(path, required=[], what="swing readings")
+    from .tables import parse_column_mapping
+
+    mapping = parse_column_mapping(columns, MAPPED_COLUMNS, f"swing readings {os.path.basename(str(path))}: --columns")
+    table = read_table(path, required=[], what="swing readings", columns=mapping, accepted=MAPPED_COLUMNS)
     label = f"swing readings {table.attrs['source']}"
     header = list(table.columns)
-    heading = _find_column(header, HEADING_COLUMNS, label, "magnetic heading")
-    compass = _find_column(header, COMPASS_COLUMNS, label, "compass reading")
-    deviation = _find_column(header, DEVIATION_COLUMNS, label, "deviation")
+    heading, compass, deviation = (
+        name if name in mapping else _find_column(header, names, label, role)
+        for name, names, role in zip(MAPPED_COLUMNS, (HEADING_COLUMNS, COMPASS_COLUMNS, DEVIATION_COLUMNS),
+                                     ("magnetic heading", "compass reading", "deviation"), strict=True)
+    )
+    if (compass in mapping) != (deviation in mapping):  # the mapped one of the two is taken
+        compass, deviation = (compass, None) if compass in mapping else (None, deviation)
     if heading is None or (compass is None) == (deviation is None):
         problem = (
             "missing column(s) magnetic_heading_deg" if heading is None

@@ -288,7 +288,7 @@ def _swing(path: Path):
     return analyse_swing(magnetic, compass, rows=rows)
 
 
-PLACES_CSV = "name,lat,lon,alt,date\nInvented mast,61.2,-149.9,0.1,2026-12-02\nInvented hut,N78°13.5′,015 38 E,FL350,2027-01-01\n"
+PLACES_CSV = "name,lat,lon,alt,date\nInvented mast,61.2,-149.9,0.1 km,2026-12-02\nInvented hut,N78°13.5′,015 38 E,FL350,2027-01-01\n"
 
 # name -> (reader, valid text, required columns, numeric columns)
 READERS: dict[str, tuple[Callable[[Path], object], str, list[str], list[str]]] = {

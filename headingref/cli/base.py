@@ -30,6 +30,7 @@ def register(subparsers) -> None:
         examples=EXAMPLES,
     )
     parser.add_argument("--input", metavar="CSV", help="sites table (or give one site with --lat/--lon/...)")
+    parser.add_argument("--columns", metavar="MAP", help="column mapping NAME=COLUMN,... (e.g. name=site,surveyed_variation=var_deg)")
     parser.add_argument("--name", default="base", help="single site: name")
     parser.add_argument("--lat", help="single site: latitude (61.2, N61°10.5′)")
     parser.add_argument("--lon", help="single site: longitude (-149.9, 149 54 W)")
@@ -57,7 +58,7 @@ def _sites(args):
     if args.input:
         if any(value is not None for value in single):
             raise InputError("give either --input sites.csv or one site with --lat/--lon/--surveyed-variation/--survey-date, not both")
-        return read_sites_csv(args.input, tolerance_deg=args.tolerance, resurvey_years=args.resurvey_years)
+        return read_sites_csv(args.input, tolerance_deg=args.tolerance, resurvey_years=args.resurvey_years, columns=args.columns)
     if any(value is None for value in single):
         raise InputError("no sites: give --input sites.csv, or --lat, --lon, --surveyed-variation and --survey-date for one site")
     return [

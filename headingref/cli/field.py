@@ -15,6 +15,9 @@ import sys
 
 from .common import add_command, add_model_options
 
+PLACE_COLUMNS = ("lat", "lon", "name", "alt", "alt_km", "alt_m", "alt_ft", "date")
+"""Columns of a places CSV (lat, lon required); what ``--columns`` may map onto."""
+HEIGHT_COLUMNS = ("alt", "alt_km", "alt_m", "alt_ft")
 TABLE_ROWS = 300
 """Most rows printed as a readable table; a larger input gets a summary (the rows go to --output/--csv)."""
 CHUNK_ROWS = 32_768
@@ -28,7 +31,9 @@ EXAMPLES = """\
   headingref field --lat 70 --lon 20 --date 2027-01-01 --model WMM_2025.COF
 
 CSV input: columns lat, lon (decimal degrees or degrees/minutes with N/S/E/W), optional
-name, alt (km, or with a unit: 450 m, 35000 ft, FL350) and date (ISO or decimal year; else --date).
+name, a height and date (ISO or decimal year; else --date). The height is alt with a unit in
+every value (450 m, 35000 ft, FL350; a bare number there is refused) or alt_km / alt_m / alt_ft
+holding plain numbers in that unit. Other column names: --columns lat=latitude,alt_m=elev.
 More than 300 rows print a summary; --output (or --csv) has every row, angles to 6 decimals of a
 degree and intensities to 0.001 nT. Where H < 100 nT (near a dip pole) the declination is flagged
 'no usable declination', its uncertainty is 180° and it has no annual change."""
@@ -49,6 +54,7 @@ def register(subparsers) -> None:
     parser.add_argument("--alt", default="0", help="height above the WGS84 ellipsoid: km, or 450 m, 35000 ft, FL350 (default 0)")
     parser.add_argument("--date", help="ISO date or decimal year (default: today, UTC)")
     parser.add_argument("--input", metavar="CSV", help="CSV of places (see below)")
+    parser.add_argument("--columns", metavar="MAP", help="column mapping NAME=COLUMN,... (e.g. lat=latitude,lon=longitude,alt_m=elev)")
     parser.add_argument("--output", metavar="FILE", help="write the full table to this file (.csv, or .xlsx: rounded, units in the header)")
     parser.add_argument("--csv", action="store_true", help="print CSV (machine output, every row) instead of the readable table")
     add_model_options(parser)
@@ -92,10 +98,14 @@ def _heights_and_dates(columns: dict, lines, source: str, default_date: str, arg
 
     from ..errors import DateRangeError, InputError
     from ..model import load_model
-    from ..units import decimal_year, parse_height_km
+    from ..units import decimal_year, height_column, parse_height_km
 
-    if "alt" in columns:
-        alt = _parse_each_distinct(columns["alt"], lines, lambda c: parse_height_km(c) if c else 0.0, source)
+    try:
+        height, unit = height_column(columns, "alt")  # alt: unit in each value; alt_km/_m/_ft: numbers in that unit
+    except InputError as exc:
+        raise InputError(f"{source}: {exc}") from None
+    if height:
+        alt = _parse_each_distinct(columns[height], lines, lambda c: parse_height_km(c, default_unit=unit) if c else 0.0, source)
     else:
         alt = 0.0
     dates = columns.get("date")
@@ -116,14 +126,16 @@ def _heights_and_dates(columns: dict, lines, source: str, default_date: str, arg
     return alt, decimal_year(default_date)
 
 
-def _read_fast(path):
+def _read_fast(path, mapping=None):
     """The places of a CSV of plain decimal degrees, read by pandas' C parser; None when the file is
     anything else (then :func:`_read_slow` reads it and names the line of any problem).
 
     Taken only when the row number of every record is certain: header on line 1, no blank or
     whitespace-only line before the end, no double quote (so no field runs over lines), lat and lon
     plain ASCII decimals (the C parser refuses ``6_1``, other digits and signs) that are finite and
-    within +-90 / +-180 degrees. Data row k (from 0) is then file line k + 2.
+    within +-90 / +-180 degrees. Data row k (from 0) is then file line k + 2. A column
+    ``mapping`` (headingref name -> file column) renames the header; a mapping that names an
+    absent column or shadows another leaves the file to the slow reader, which says so.
     """
     import io as _io
     from pathlib import Path
@@ -153,9 +165,14 @@ def _read_fast(path):
         return None
     delimiter = max([",", ";", "\t"], key=first.count)
     header = [cell.strip().lower() for cell in first.rstrip("\r").split(delimiter)]
+    if mapping:
+        if any(src not in header or (name in header and name not in mapping.values()) for name, src in mapping.items()):
+            return None
+        renamed = {src: name for name, src in mapping.items()}
+        header = [renamed.get(cell, cell) for cell in header]
     if "lat" not in header or "lon" not in header or "" in header or len(set(header)) != len(header):
         return None
-    wanted = [name for name in ("name", "lat", "lon", "alt", "date") if name in header]
+    wanted = [name for name in ("name", "lat", "lon", *HEIGHT_COLUMNS, "date") if name in header]
     dtype = {name: (np.float64 if name in ("lat", "lon") else object) for name in wanted}
     try:
         table = pd.read_csv(_io.StringIO(body), sep=delimiter, header=0, names=header, usecols=wanted, dtype=dtype,
@@ -169,19 +186,19 @@ def _read_fast(path):
     if not ((np.abs(lat) <= 90.0).all() and (np.abs(lon) <= 180.0).all()):
         return None  # NaN, infinities, out of range: the slow reader names the line
     columns = {name: np.array([cell.strip() for cell in table[name].to_numpy()], dtype=object)
-               for name in ("name", "alt", "date") if name in table}
+               for name in ("name", *HEIGHT_COLUMNS, "date") if name in table}
     return columns, np.arange(2, len(table) + 2), lat, lon
 
 
-def _read_slow(path):
+def _read_slow(path, mapping=None):
     """Row by row with :mod:`headingref.io` (any accepted coordinate form; errors name the line)."""
 
     from .. import io
 
-    table = io.read_table(path, required=["lat", "lon"], optional=["name", "alt", "date"], what="places")
+    table = io.read_table(path, required=["lat", "lon"], optional=PLACE_COLUMNS[2:], what="places", columns=mapping)
     lat = io.coordinate_column(table, "lat", "lat")
     lon = io.coordinate_column(table, "lon", "lon")
-    columns = {name: table[name].to_numpy(dtype=object) for name in ("name", "alt", "date") if name in table}
+    columns = {name: table[name].to_numpy(dtype=object) for name in ("name", *HEIGHT_COLUMNS, "date") if name in table}
     return columns, table.index.to_numpy(), lat, lon, table.attrs["source"]
 
 
@@ -191,18 +208,20 @@ def _inputs(args) -> _Places:
     import numpy as np
 
     from ..errors import InputError
+    from ..tables import parse_column_mapping
     from ..units import decimal_year, parse_coordinate, parse_height_km
 
     default_date = args.date or _dt.datetime.now(_dt.UTC).date().isoformat()
     if args.input:
         if args.lat or args.lon:
             raise InputError("give either --input or --lat/--lon, not both")
-        fast = _read_fast(args.input)
+        mapping = parse_column_mapping(getattr(args, "columns", None), PLACE_COLUMNS, "--columns")
+        fast = _read_fast(args.input, mapping)
         if fast is not None:
             columns, lines, lat, lon = fast
             source = Path(args.input).name
         else:
-            columns, lines, lat, lon, source = _read_slow(args.input)
+            columns, lines, lat, lon, source = _read_slow(args.input, mapping)
         alt, years = _heights_and_dates(columns, lines, source, default_date, args)
         names = columns.get("name")
         if names is None:

@@ -31,6 +31,7 @@ def register(subparsers) -> None:
     )
     parser.add_argument("--input", required=True, metavar="FILE",
                         help="waypoints in order: a CSV (name, lat, lon [, alt]) or a GPX, KML or GeoJSON route file")
+    parser.add_argument("--columns", metavar="MAP", help="column mapping NAME=COLUMN,... (e.g. name=ident,lat=wp_lat,lon=wp_lon)")
     parser.add_argument("--route", metavar="NAME", help="which route, track or line of a GPX/KML/GeoJSON file holding several")
     parser.add_argument("--date", required=True, help="date of the flight (YYYY-MM-DD or decimal year)")
     parser.add_argument(
@@ -96,6 +97,7 @@ def run(args) -> int:
         model=args.model,
         allow_extrapolation=args.extrapolate,
         route_name=args.route,
+        columns=args.columns,
     )
     legs = result.legs
     geojson_text = json.dumps(route_geojson(result), indent=1) if args.geojson else None

@@ -59,6 +59,7 @@ def register(subparsers) -> None:
         examples=EXAMPLES,
     )
     parser.add_argument("--input", required=True, metavar="CSV", help="swing readings (heading and compass reading or deviation columns)")
+    parser.add_argument("--columns", metavar="MAP", help="column mapping NAME=COLUMN,... (e.g. magnetic_heading_deg=hdg,compass_reading_deg=cr)")
     parser.add_argument(
         "--limit", default="10", metavar="DEG",
         help="largest deviation allowed as measured (default 10, 14 CFR 23/25/29.1327; tighter for remote-indicating systems)",
@@ -115,7 +116,7 @@ def _analyse(args):
     """Read the readings and fit the curve with the options' limits, method and card headings."""
     from ..swing import analyse_swing, read_swing_csv
 
-    magnetic, compass, rows = read_swing_csv(args.input)
+    magnetic, compass, rows = read_swing_csv(args.input, columns=args.columns)
     card_headings = number_list(args.card_headings, "--card-headings (card headings)") if args.card_headings else None
     limits = {name: option_number(getattr(args, attr), option) for name, attr, option in (
         ("limit_deg", "limit", "--limit"), ("compensated_limit_deg", "compensated_limit", "--compensated-limit"),
