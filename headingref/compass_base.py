@@ -177,6 +177,11 @@ class Site:
     history: tuple[tuple[float, float], ...] = ()
 
 
+SITE_COLUMNS = ("name", "lat", "lon", "surveyed_variation", "survey_date", "tolerance_deg", "resurvey_years",
+                "alt", "alt_m", "alt_ft", "alt_km")
+"""Columns of a compass-base CSV (the first five required); what a column mapping may map onto."""
+
+
 def _now_year() -> float:
     return float(decimal_year(pd.Timestamp.now(tz="UTC")))
 
@@ -243,8 +248,8 @@ def read_sites_csv(path: str | os.PathLike, tolerance_deg: float | None = None, 
 
     table = read_table(
         path,
-        required=["name", "lat", "lon", "surveyed_variation", "survey_date"],
-        optional=["tolerance_deg", "resurvey_years", "alt", "alt_m", "alt_ft", "alt_km"],
+        required=SITE_COLUMNS[:5],
+        optional=SITE_COLUMNS[5:],
         what="compass bases",
         columns=columns,
     )

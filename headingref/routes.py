@@ -89,6 +89,10 @@ class RouteResult(NamedTuple):
 # --------------------------------------------------------------------------- waypoints
 
 
+WAYPOINT_COLUMNS = ("name", "lat", "lon", "alt", "alt_ft", "alt_m", "alt_km")
+"""Columns of a waypoint CSV (name, lat, lon required; one height column); what a column mapping may map onto."""
+
+
 def _waypoint_records(waypoints: Any) -> list:
     if isinstance(waypoints, pd.DataFrame):
         return waypoints.to_dict("records")
@@ -163,7 +167,7 @@ def read_waypoints(waypoints: Any, alt_km: float = 0.0, route_name: str | None =
     elif route_name is not None:
         raise InputError(f"route name {route_name!r} applies to GPX, KML or GeoJSON files, not to {waypoints!r}")
     if isinstance(waypoints, (str, os.PathLike)):
-        table = read_table(Path(waypoints), required=["name", "lat", "lon"], optional=["alt", "alt_ft", "alt_m", "alt_km"],
+        table = read_table(Path(waypoints), required=WAYPOINT_COLUMNS[:3], optional=WAYPOINT_COLUMNS[3:],
                            what="route", columns=columns)
         source = table.attrs["source"]
         lat = coordinate_column(table, "lat", "lat")

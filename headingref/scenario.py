@@ -16,15 +16,15 @@ Layout (every section is optional; a missing section's job is left out of the re
     allow_extrapolation = false
     compare_models = ["IGRF-14", "WMM2025"]   # optional: the report's model comparison
 
-    [routes]        spacing_nm, path, grid, alt, and [[routes.plan]] name, file[, grid, alt]
+    [routes]        spacing_nm, path, grid, alt, columns, and [[routes.plan]] name, file[, route, grid, alt, columns]
     [zones]         cap, edge_lat_deg, step_deg, blackout_nT, caution_nT, compare_date
     [error_budget]  residual_field_nT, joint_limit_deg, slaving_rate_deg_per_min,
                     slaving_cutout_bank_deg, limit_deg (detector.DetectorSettings) and
                     bank_angle_deg, acceleration_mps2, pitch_deg, turn_duration_s (detector.Manoeuvre)
     [compass_bases] file, swing_date, tolerance_deg, resurvey_years, setting_out_lines_deg,
-                    setting_out_distances_m
+                    setting_out_distances_m, columns
     [swing]         file, base, limit_deg, compensated_limit_deg, verdict_on, method,
-                    card_after_compensation, date, aircraft, compass, swung_by, conditions
+                    card_after_compensation, date, aircraft, compass, swung_by, conditions, columns
     [runways]       file, horizon_years, boundary_band_deg, band_sigmas, columns
     [navaids]       file, tolerance_deg, horizon_years, columns
 
@@ -93,6 +93,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
                     "polar-south, polar:LON, lcc:LAT1,LAT2,LON0, utm:ZONE, EPSG:NNNN"),
         "alt": Key("height", 0.0, high=30.0, doc="altitude of waypoints that give none: km, or '35000 ft', 'FL350'"),
         "plan": Key("plans", required=True, doc="the routes, as [[routes.plan]] tables with name and file"),
+        "columns": Key("str", "", doc="column mapping of the waypoint CSVs NAME=COLUMN,... (e.g. 'name=ident,lat=wp_lat')"),
     },
     "routes.plan": {
         "name": Key("str", required=True, doc="route name"),
@@ -101,6 +102,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "route": Key("str", None, doc="which route, track or line of a GPX/KML/GeoJSON file holding several"),
         "grid": Key("grid", None, doc="this route's grid (default: the [routes] grid)"),
         "alt": Key("height", None, high=30.0, doc="this route's altitude of waypoints that give none (default: the [routes] alt)"),
+        "columns": Key("str", None, doc="this route's column mapping (default: the [routes] columns)"),
     },
     "zones": {
         "cap": Key("choice", "north", choices=("north", "south"), doc="polar cap to map"),
@@ -124,6 +126,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "setting_out_lines_deg": Key("floats", [float(h) for h in range(0, 360, 30)], low=0.0, high=360.0,
                                      doc="magnetic heading lines to set out, deg"),
         "setting_out_distances_m": Key("floats", [50.0, 100.0], low=0.0, high=10000.0, doc="distances of marks from the centre, m"),
+        "columns": Key("str", "", doc="column mapping NAME=COLUMN,... (e.g. 'name=site,surveyed_variation=var_deg')"),
     },
     "swing": {
         "file": Key("path", required=True, doc="readings CSV: magnetic_heading_deg, compass_reading_deg"),
@@ -138,6 +141,7 @@ SCHEMA: dict[str, dict[str, Key]] = {
         "compass": Key("str", "", doc="compass type and serial number, on the card"),
         "swung_by": Key("str", "", doc="person who swung the compass, on the card's signature line"),
         "conditions": Key("str", "", doc="swing conditions, e.g. 'engines running, radios on' (14 CFR 23.1547)"),
+        "columns": Key("str", "", doc="column mapping NAME=COLUMN,... (e.g. 'magnetic_heading_deg=hdg,deviation_deg=dev')"),
     },
     "runways": {
         "file": Key("path", required=True, doc="runway CSV or .xlsx: airport, runway, lat, lon and end_lat, end_lon or "
@@ -211,13 +215,14 @@ class Scenario:
         """
         settings = self.routes or {}
         default = {key: spec.default for key, spec in SCHEMA["routes"].items()}
-        pick = {key: settings.get(key, default[key]) for key in ("spacing_nm", "path", "grid", "alt")}
+        pick = {key: settings.get(key, default[key]) for key in ("spacing_nm", "path", "grid", "alt", "columns")}
         return {
             "alt_km": plan["alt"] if plan.get("alt") is not None else pick["alt"],
             "grid": plan["grid"] if plan.get("grid") is not None else pick["grid"],
             "spacing_nm": pick["spacing_nm"],
             "path": pick["path"],
             "route_name": plan.get("route"),
+            "columns": plan["columns"] if plan.get("columns") is not None else pick["columns"],
         }
 
     def heading_error_options(self, manoeuvre: bool = True) -> dict:
@@ -434,19 +439,29 @@ def _read_toml(path: Any) -> tuple[dict, Path, str]:
 
 
 def _check_column_mappings(sections: dict, where: str) -> None:
-    """Check the runways' and navaids' ``columns`` mappings now, not when the job runs."""
-    for name in ("runways", "navaids"):
-        if sections.get(name) and sections[name]["columns"]:
-            from importlib import import_module
+    """Check every section's ``columns`` mapping now, not when the job runs."""
+    from importlib import import_module
 
-            from .tables import parse_column_mapping
+    from .tables import parse_column_mapping
 
-            mod = import_module(f".{name}", __package__)
-            accepted = mod.ACCEPTED_COLUMNS if name == "runways" else mod.REQUIRED + mod.OPTIONAL
-            try:
-                parse_column_mapping(sections[name]["columns"], accepted, f"[{name}] columns")
-            except InputError as exc:
-                raise InputError(f"{where}: {exc}") from None
+    accepted_of = {"runways": ("runways", "ACCEPTED_COLUMNS"), "navaids": ("navaids", "COLUMNS"),
+                   "routes": ("routes", "WAYPOINT_COLUMNS"), "compass_bases": ("compass_base", "SITE_COLUMNS"),
+                   "swing": ("swing", "MAPPED_COLUMNS")}
+    for name, (module, constant) in accepted_of.items():
+        section = sections.get(name)
+        if not section:
+            continue
+        mappings = [(f"[{name}] columns", section.get("columns"))]
+        if name == "routes":
+            mappings += [(f"[[routes.plan]] {plan.get('name')!r} columns", plan.get("columns")) for plan in section["plan"]]
+        for label, text in mappings:
+            if text:
+                mod = import_module(f".{module}", __package__)
+                accepted = mod.REQUIRED + mod.OPTIONAL if constant == "COLUMNS" else getattr(mod, constant)
+                try:
+                    parse_column_mapping(text, accepted, label)
+                except InputError as exc:
+                    raise InputError(f"{where}: {exc}") from None
 
 
 def _fill_dependent_values(sections: dict, top: dict, where: str) -> None:

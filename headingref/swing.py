@@ -968,15 +968,15 @@ class CardDetails:
         return cls(**clean)
 
 
-def base_link(bases_csv, base_name: str, swing_date, model=None, allow_extrapolation: bool = False) -> dict:
+def base_link(bases_csv, base_name: str, swing_date, model=None, allow_extrapolation: bool = False, columns=None) -> dict:
     """The compass base a swing was made on, from a bases CSV (:func:`headingref.compass_base.read_sites_csv`).
 
     Returns ``name, marked_variation_deg, marked_variation`` (the value marked at the base's latest
     survey: the surveyed value), ``survey_date``, ``resurvey_due_date``, ``overdue`` (due on or
     before the swing date) and ``status`` (one line for the card). Raises InputError when the base is
-    not in the file (listing the names there).
+    not in the file (listing the names there). ``columns`` is the bases CSV's column mapping.
     """
-    sites = read_sites_csv(bases_csv)
+    sites = read_sites_csv(bases_csv, columns=columns)
     chosen = [s for s in sites if s.name == base_name]
     if not chosen:
         raise InputError(f"base {base_name!r} is not in {os.fspath(bases_csv)}; bases there: {', '.join(s.name for s in sites)}")
@@ -1069,15 +1069,17 @@ def card_html(analysis: SwingAnalysis, details: CardDetails | None = None, title
 """
 
 
-def swing_from_scenario(section: dict, bases_file=None, model=None, allow_extrapolation: bool = False) -> tuple[SwingAnalysis, CardDetails]:
+def swing_from_scenario(section: dict, bases_file=None, model=None, allow_extrapolation: bool = False,
+                        bases_columns=None) -> tuple[SwingAnalysis, CardDetails]:
     """Run the ``[swing]`` section of a scenario: the analysis and the card's identification.
 
     ``section`` as :attr:`headingref.scenario.Scenario.swing` (keys ``file, base, limit_deg,
     compensated_limit_deg, verdict_on, method, card_after_compensation, date, aircraft, compass,
     swung_by, conditions``); ``bases_file`` the ``[compass_bases]`` CSV, which links the card to the
-    base's marked variation and survey date when ``base`` names a base in it.
+    base's marked variation and survey date when ``base`` names a base in it (``bases_columns``:
+    that CSV's column mapping). The section's ``columns`` maps the readings' columns.
     """
-    magnetic, compass, labels = read_swing_csv(section["file"])
+    magnetic, compass, labels = read_swing_csv(section["file"], columns=section.get("columns"))
     analysis = analyse_swing(
         magnetic,
         compass,
@@ -1090,7 +1092,8 @@ def swing_from_scenario(section: dict, bases_file=None, model=None, allow_extrap
     )
     link = {}
     if bases_file is not None and section.get("base") and section.get("date") is not None:
-        link = base_link(bases_file, section["base"], section["date"], model=model, allow_extrapolation=allow_extrapolation)
+        link = base_link(bases_file, section["base"], section["date"], model=model, allow_extrapolation=allow_extrapolation,
+                         columns=bases_columns)
     details = CardDetails.make(
         aircraft=section.get("aircraft", ""), compass=section.get("compass", ""), base=section.get("base", ""),
         swing_date=section.get("date"), conditions=section.get("conditions", ""), swung_by=section.get("swung_by", ""),

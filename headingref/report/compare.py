@@ -39,7 +39,7 @@ def _places(ctx: Context) -> pd.DataFrame:
     sc = ctx.scenario
     rows = []
     if sc.compass_bases:
-        for site in read_sites_csv(sc.compass_bases["file"]):
+        for site in read_sites_csv(sc.compass_bases["file"], columns=sc.compass_bases.get("columns")):
             rows.append({"kind": "compass base", "name": site.name, "lat": site.lat_deg, "lon": site.lon_deg, "alt_km": site.alt_km})
     for name, result in ctx.routes:
         s = result.samples

@@ -71,7 +71,7 @@ def _summary(upkeep: pd.DataFrame, swing_date: str) -> list[SummaryItem]:
 def job(ctx: Context) -> Section:
     sc = ctx.scenario
     c = sc.compass_bases
-    sites = read_sites_csv(c["file"], tolerance_deg=c["tolerance_deg"], resurvey_years=c["resurvey_years"])
+    sites = read_sites_csv(c["file"], tolerance_deg=c["tolerance_deg"], resurvey_years=c["resurvey_years"], columns=c.get("columns"))
     upkeep = base_upkeep(sites, c["swing_date"], **ctx.common)
     history = survey_history(ctx, sites)
     grid = sc.routes["grid"] if sc.routes else "auto"  # auto: the polar grid of each base's hemisphere

@@ -42,7 +42,8 @@ def job(ctx: Context) -> Section:
     sc = ctx.scenario
     s = sc.swing
     bases = sc.compass_bases["file"] if sc.compass_bases else None
-    analysis, details = swing_from_scenario(s, bases_file=bases, model=ctx.model, allow_extrapolation=sc.allow_extrapolation)
+    analysis, details = swing_from_scenario(s, bases_file=bases, model=ctx.model, allow_extrapolation=sc.allow_extrapolation,
+                                            bases_columns=sc.compass_bases["columns"] if sc.compass_bases else None)
     summary_row = analysis.summary_row()
     where = f" on {s['base']}" if s["base"] else ""
     aircraft = f" of {details.aircraft}" if details.aircraft else ""
