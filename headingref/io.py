@@ -2,7 +2,9 @@
 
 - :func:`read_table` reads a CSV (comma, semicolon or tab separated; UTF-8 with or
   without a byte-order mark) into a DataFrame of stripped strings whose index is the
-  line number in the file, so that every later error can name its row.
+  line number in the file, so that every later error can name its row. Its ``columns=``
+  mapping (:func:`parse_column_mapping`, ``"lat=le_lat,lon=le_lon"``; applied by
+  :func:`apply_column_mapping`) renames the file's columns to headingref's names first.
 - :func:`float_column`, :func:`coordinate_column`, :func:`date_column` turn one
   column into a numpy array or raise :class:`InputError` naming file, line and value.
 - :func:`atomic_file`, :func:`atomic_path` and the ``write_*`` helpers write to a temporary
@@ -37,6 +39,63 @@ from .units import decimal_year, is_number_text, parse_coordinate, parse_number
 MAX_TABLE_BYTES = 200 * 1024 * 1024
 
 
+def parse_column_mapping(text: str | Mapping[str, str] | None, accepted: Sequence[str], what: str = "--columns") -> dict[str, str]:
+    """``'runway=ident,lat=le_lat'`` -> ``{'runway': 'ident', 'lat': 'le_lat'}`` (lower case).
+
+    Left of ``=``: headingref's column name (one of ``accepted``); right: the column in the file.
+    A dict is checked the same way. Raises InputError naming the bad item and what is accepted.
+    """
+    if text is None or (isinstance(text, str) and not text.strip()):
+        return {}
+    if isinstance(text, Mapping):
+        items = [(str(k), str(v)) for k, v in text.items()]
+    elif isinstance(text, str):
+        items = []
+        for part in (p for p in text.split(",") if p.strip()):
+            if part.count("=") != 1:
+                raise InputError(f"{what}: {part.strip()!r} is not NAME=COLUMN; write e.g. runway=ident,lat=le_lat")
+            left, right = part.split("=")
+            items.append((left, right))
+    else:
+        raise InputError(f"{what} = {text!r} must be text such as 'runway=ident,lat=le_lat'")
+    mapping: dict[str, str] = {}
+    for left, right in items:
+        name, column = left.strip().lower(), right.strip().lower()
+        if name not in accepted:
+            raise InputError(f"{what}: {name!r} is not a column headingref reads here; accepted: {', '.join(accepted)}")
+        if not column:
+            raise InputError(f"{what}: {name}= names no column of the file")
+        if name in mapping:
+            raise InputError(f"{what}: {name} is mapped twice")
+        mapping[name] = column
+    sources = list(mapping.values())
+    dupes = sorted({c for c in sources if sources.count(c) > 1})
+    if dupes:
+        raise InputError(f"{what}: file column(s) {', '.join(dupes)} mapped to more than one name")
+    return mapping
+
+
+def apply_column_mapping(frame: pd.DataFrame, mapping: Mapping[str, str], what: str = "table") -> pd.DataFrame:
+    """Rename the file's columns to headingref's names; a mapped column that is absent is an InputError.
+
+    A file column already carrying a headingref name that another column is mapped onto is
+    dropped (the mapping wins).
+    """
+    if not mapping:
+        return frame
+    columns = [str(c).strip().lower() for c in frame.columns]
+    missing = [f"{src} (for {name})" for name, src in mapping.items() if src not in columns]
+    if missing:
+        raise InputError(f"{what}: mapped column(s) {', '.join(missing)} not in the file; found {', '.join(columns) or 'none'}")
+    out = frame.copy()
+    out.columns = columns
+    shadowed = [name for name, src in mapping.items() if name in columns and name != src and name not in mapping.values()]
+    out = out.drop(columns=shadowed)
+    out = out.rename(columns={src: name for name, src in mapping.items()})
+    out.attrs = dict(frame.attrs)
+    return out
+
+
 def read_table(  # noqa: C901 - owned by the IO work in progress (issue 13 item 7 left it alone)
     path: str | os.PathLike,
     required: Sequence[str],
@@ -52,7 +111,7 @@ def read_table(  # noqa: C901 - owned by the IO work in progress (issue 13 item 
     named in ``required`` or ``optional`` are kept. Blank lines are skipped.
 
     ``columns`` maps headingref's names to the file's (``"lat=le_lat,lon=le_lon"`` or a dict,
-    read by :func:`headingref.tables.parse_column_mapping`; the names on the left must be among
+    read by :func:`parse_column_mapping`; the names on the left must be among
     ``accepted``, by default ``required`` + ``optional``). The file's columns are renamed right
     after the header is read, so every later check and message uses headingref's names.
 
@@ -117,8 +176,6 @@ def read_table(  # noqa: C901 - owned by the IO work in progress (issue 13 item 
         raise InputError(f"{label}: column(s) {', '.join(dupes)} appear more than once in the header")
     table = pd.DataFrame(rows, columns=header, index=pd.Index(line_numbers, name="line"), dtype=str)
     if columns:
-        from .tables import apply_column_mapping, parse_column_mapping
-
         names = list(required) + list(optional) if accepted is None else list(accepted)
         mapping = parse_column_mapping(columns, names, f"{label}: --columns")
         table = apply_column_mapping(table, mapping, label)

@@ -1,7 +1,8 @@
 """Tables as they come from authorities and open datasets: column mappings and Excel files.
 
 - :func:`parse_column_mapping` reads ``"runway=ident,lat=le_lat"`` (headingref's name on the
-  left, the file's column on the right) into a dict.
+  left, the file's column on the right) into a dict (defined in :mod:`headingref.io`, whose
+  ``read_table(columns=...)`` applies it; re-exported here).
 - :func:`read_source` reads a CSV (through :func:`headingref.io.read_table`) or an Excel
   workbook (``.xlsx``, first sheet, through openpyxl), renames mapped columns to headingref's
   names and checks the required ones. The result is the same as ``read_table``'s: a DataFrame of
@@ -28,68 +29,19 @@ import numpy as np
 import pandas as pd
 
 from .errors import InputError
-from .io import MAX_TABLE_BYTES, atomic_path, read_table, spreadsheet_safe, write_csv
+from .io import (
+    MAX_TABLE_BYTES,
+    apply_column_mapping,
+    atomic_path,
+    parse_column_mapping,
+    read_table,
+    spreadsheet_safe,
+    write_csv,
+)
 
 __all__ = ["apply_column_mapping", "column_decimals", "column_units", "parse_column_mapping", "read_source", "write_output", "write_table"]
 
 EXCEL_SUFFIXES = (".xlsx", ".xlsm")
-
-
-def parse_column_mapping(text: str | Mapping[str, str] | None, accepted: Sequence[str], what: str = "--columns") -> dict[str, str]:
-    """``'runway=ident,lat=le_lat'`` -> ``{'runway': 'ident', 'lat': 'le_lat'}`` (lower case).
-
-    Left of ``=``: headingref's column name (one of ``accepted``); right: the column in the file.
-    A dict is checked the same way. Raises InputError naming the bad item and what is accepted.
-    """
-    if text is None or (isinstance(text, str) and not text.strip()):
-        return {}
-    if isinstance(text, Mapping):
-        items = [(str(k), str(v)) for k, v in text.items()]
-    elif isinstance(text, str):
-        items = []
-        for part in (p for p in text.split(",") if p.strip()):
-            if part.count("=") != 1:
-                raise InputError(f"{what}: {part.strip()!r} is not NAME=COLUMN; write e.g. runway=ident,lat=le_lat")
-            left, right = part.split("=")
-            items.append((left, right))
-    else:
-        raise InputError(f"{what} = {text!r} must be text such as 'runway=ident,lat=le_lat'")
-    mapping: dict[str, str] = {}
-    for left, right in items:
-        name, column = left.strip().lower(), right.strip().lower()
-        if name not in accepted:
-            raise InputError(f"{what}: {name!r} is not a column headingref reads here; accepted: {', '.join(accepted)}")
-        if not column:
-            raise InputError(f"{what}: {name}= names no column of the file")
-        if name in mapping:
-            raise InputError(f"{what}: {name} is mapped twice")
-        mapping[name] = column
-    sources = list(mapping.values())
-    dupes = sorted({c for c in sources if sources.count(c) > 1})
-    if dupes:
-        raise InputError(f"{what}: file column(s) {', '.join(dupes)} mapped to more than one name")
-    return mapping
-
-
-def apply_column_mapping(frame: pd.DataFrame, mapping: Mapping[str, str], what: str = "table") -> pd.DataFrame:
-    """Rename the file's columns to headingref's names; a mapped column that is absent is an InputError.
-
-    A file column already carrying a headingref name that another column is mapped onto is
-    dropped (the mapping wins).
-    """
-    if not mapping:
-        return frame
-    columns = [str(c).strip().lower() for c in frame.columns]
-    missing = [f"{src} (for {name})" for name, src in mapping.items() if src not in columns]
-    if missing:
-        raise InputError(f"{what}: mapped column(s) {', '.join(missing)} not in the file; found {', '.join(columns) or 'none'}")
-    out = frame.copy()
-    out.columns = columns
-    shadowed = [name for name, src in mapping.items() if name in columns and name != src and name not in mapping.values()]
-    out = out.drop(columns=shadowed)
-    out = out.rename(columns={src: name for name, src in mapping.items()})
-    out.attrs = dict(frame.attrs)
-    return out
 
 
 def _cell_text(value) -> str:

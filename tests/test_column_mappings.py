@@ -12,9 +12,6 @@ that height in the ISA (ICAO Doc 7488; headingref.units docstring).
 
 from __future__ import annotations
 
-import contextlib
-import io as _io
-import warnings
 from pathlib import Path
 
 import numpy as np
@@ -22,8 +19,8 @@ import pandas as pd
 import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
+from test_cli import error_line, run  # the CLI run in-process, stdout and stderr captured
 
-from headingref.cli import main
 from headingref.errors import InputError
 
 DATA = Path(__file__).parent / "data"
@@ -31,23 +28,10 @@ DEMO = Path(__file__).parents[1] / "data" / "demo"
 DATE = "2026-12-02"
 
 
-def run(argv) -> tuple[int, str, str]:
-    """headingref.cli.main in-process; (status, stdout, stderr)."""
-    out, err = _io.StringIO(), _io.StringIO()
-    with contextlib.redirect_stdout(out), contextlib.redirect_stderr(err), warnings.catch_warnings():
-        try:
-            code = main([str(a) for a in argv])
-        except SystemExit as exc:
-            code = exc.code if isinstance(exc.code, int) else 2
-    return code, out.getvalue(), err.getvalue()
-
-
-def one_error_line(code: int, stderr: str) -> str:
-    assert code == 2, stderr
-    assert "Traceback" not in stderr
-    lines = [line for line in stderr.splitlines() if line.strip() and "warning" not in line.lower()]
-    assert len(lines) == 1, stderr
-    return lines[0]
+def one_error_line(argv) -> str:
+    """The single error line of a failed CLI run (test_cli.error_line: status 2, no traceback)."""
+    code, _, err = run(argv)
+    return error_line(code, err, argv[0])
 
 
 def foreign(plain: Path, folder: Path, renames: dict[str, str]) -> tuple[Path, str]:
@@ -106,7 +90,7 @@ def test_field_mapping_wins_over_a_column_of_the_same_name(tmp_path):
 def test_field_columns_errors_are_one_line(tmp_path, mapping, expected, text):
     path = write(tmp_path / "a" / "places.csv", text)
     out = tmp_path / "out.csv"
-    line = one_error_line(*run(["field", "--input", path, "--columns", mapping, "--date", DATE, "--output", out])[:3:2])
+    line = one_error_line(["field", "--input", path, "--columns", mapping, "--date", DATE, "--output", out])
     assert expected in line
     assert not out.exists()
 
@@ -118,7 +102,7 @@ def test_field_columns_errors_are_one_line(tmp_path, mapping, expected, text):
 def test_field_bare_number_under_alt_is_refused(tmp_path, body):
     # The documented rule for every height in a CSV (README, 'Conventions'): a bare number under plain 'alt' is refused.
     path = write(tmp_path / "a" / "p.csv", "lat,lon,alt\n" + body)
-    line = one_error_line(*run(["field", "--input", path, "--date", DATE, "--output", tmp_path / "o.csv"])[:3:2])
+    line = one_error_line(["field", "--input", path, "--date", DATE, "--output", tmp_path / "o.csv"])
     assert "p.csv line 2" in line and "'450' has no unit" in line and "alt_m" in line and "alt_ft" in line
 
 
@@ -149,7 +133,7 @@ def test_field_height_columns_agree(tmp_path, column, cells, dms):
 
 def test_field_two_height_columns_refused(tmp_path):
     path = write(tmp_path / "a" / "p.csv", "lat,lon,alt_m,alt_ft\n61.2,-149.9,450,1476\n")
-    line = one_error_line(*run(["field", "--input", path, "--date", DATE, "--output", tmp_path / "o.csv"])[:3:2])
+    line = one_error_line(["field", "--input", path, "--date", DATE, "--output", tmp_path / "o.csv"])
     assert "all give the height; keep one" in line
 
 
@@ -174,12 +158,12 @@ def test_route_waypoints_mapping_gives_the_plain_result(tmp_path):
 
 def test_route_mapping_errors(tmp_path):
     plain = DEMO / "routes" / "tm101_polar.csv"
-    line = one_error_line(*run(["route", "--input", plain, "--columns", "ident=name", "--date", DATE, "--output", tmp_path / "o.csv"])[:3:2])
+    line = one_error_line(["route", "--input", plain, "--columns", "ident=name", "--date", DATE, "--output", tmp_path / "o.csv"])
     assert "'ident' is not a column headingref reads here; accepted: name, lat, lon, alt, alt_ft, alt_m, alt_km" in line
-    line = one_error_line(*run(["route", "--input", plain, "--columns", "lat=wp_lat", "--date", DATE, "--output", tmp_path / "o.csv"])[:3:2])
+    line = one_error_line(["route", "--input", plain, "--columns", "lat=wp_lat", "--date", DATE, "--output", tmp_path / "o.csv"])
     assert "wp_lat (for lat) not in the file" in line
     gpx = write(tmp_path / "r.gpx", "<gpx/>")
-    line = one_error_line(*run(["route", "--input", gpx, "--columns", "lat=y", "--date", DATE, "--output", tmp_path / "o.csv"])[:3:2])
+    line = one_error_line(["route", "--input", gpx, "--columns", "lat=y", "--date", DATE, "--output", tmp_path / "o.csv"])
     assert "applies to CSV waypoint files" in line
 
 
@@ -204,9 +188,9 @@ def test_bases_mapping_gives_the_plain_result(tmp_path):
 
 def test_bases_mapping_errors(tmp_path):
     plain = DATA / "base_sites.csv"
-    line = one_error_line(*run(["base", "--input", plain, "--columns", "variation=var", "--date", DATE, "--output", tmp_path / "o.csv"])[:3:2])
+    line = one_error_line(["base", "--input", plain, "--columns", "variation=var", "--date", DATE, "--output", tmp_path / "o.csv"])
     assert "'variation' is not a column headingref reads here; accepted: name, lat, lon, surveyed_variation" in line
-    line = one_error_line(*run(["base", "--input", plain, "--columns", "name=site", "--date", DATE, "--output", tmp_path / "o.csv"])[:3:2])
+    line = one_error_line(["base", "--input", plain, "--columns", "name=site", "--date", DATE, "--output", tmp_path / "o.csv"])
     assert "site (for name) not in the file" in line
 
 
@@ -249,9 +233,9 @@ def test_swing_mapping_comes_before_the_flexible_names(tmp_path):
 
 def test_swing_mapping_errors(tmp_path):
     plain = DATA / "swing_handbook_501.csv"
-    line = one_error_line(*run(["swing", "--input", plain, "--columns", "heading=mh", "--output", tmp_path / "o.csv"])[:3:2])
+    line = one_error_line(["swing", "--input", plain, "--columns", "heading=mh", "--output", tmp_path / "o.csv"])
     assert "'heading' is not a column headingref reads here; accepted: magnetic_heading_deg, compass_reading_deg, deviation_deg" in line
-    line = one_error_line(*run(["swing", "--input", plain, "--columns", "deviation_deg=dev", "--output", tmp_path / "o.csv"])[:3:2])
+    line = one_error_line(["swing", "--input", plain, "--columns", "deviation_deg=dev", "--output", tmp_path / "o.csv"])
     assert "dev (for deviation_deg) not in the file" in line
 
 
