@@ -63,6 +63,15 @@ def strict_int(text: str) -> int:
     return int(text)
 
 
+def add_place_options(parser, input_help: str) -> None:
+    """The one-place options (--lat, --lon, --alt, --date) and --input for a CSV of places."""
+    parser.add_argument("--lat", help="latitude: 61.17, -33.9, N61°10.5′, 61 10 30 N, 7443N")
+    parser.add_argument("--lon", help="longitude: -150.0, 149 54 30 W, E015°38′, 09458W")
+    parser.add_argument("--alt", default="0", help="height above the WGS84 ellipsoid: km, or 450 m, 35000 ft, FL350 (default 0)")
+    parser.add_argument("--date", help="ISO date or decimal year (default: today, UTC)")
+    parser.add_argument("--input", metavar="CSV", help=input_help)
+
+
 def add_model_options(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--model", metavar="NAME|FILE",
                         help="model name (IGRF-14, WMM2015, WMM2015v2, WMM2020, WMM2025, WMMHR2025; see 'headingref models') "

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from .common import add_command
+from .common import add_command, add_place_options
 
 EXAMPLES = """\
   headingref compare --lat 64.5 --lon -20 --date 2026-06-01
@@ -39,11 +39,7 @@ def register(subparsers) -> None:
     )
     parser.add_argument("--models", default="IGRF-14,WMM2025,WMMHR2025",
                         help="comma-separated model names or files; the first is the reference (default IGRF-14,WMM2025,WMMHR2025)")
-    parser.add_argument("--lat", help="latitude: 61.17, -33.9, N61°10.5′")
-    parser.add_argument("--lon", help="longitude: -150.0, E015°38′")
-    parser.add_argument("--alt", default="0", help="height above the WGS84 ellipsoid: km, or 450 m, 35000 ft, FL350 (default 0)")
-    parser.add_argument("--date", help="ISO date or decimal year (default: today, UTC)")
-    parser.add_argument("--input", metavar="CSV", help="CSV of places (as for 'headingref field')")
+    add_place_options(parser, "CSV of places (as for 'headingref field')")
     parser.add_argument("--output", metavar="FILE", help="write the long table to this file (.csv, or .xlsx: rounded, units in the header)")
     parser.add_argument("--map", metavar="LAT0:LAT1:LON0:LON1", help="difference map of the first two models over this box (degrees)")
     parser.add_argument("--step", type=float, default=0.25, metavar="DEG", help="grid step of --map in degrees (default 0.25; 1 arc-minute is 0.016667)")

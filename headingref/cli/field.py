@@ -13,7 +13,7 @@ from __future__ import annotations
 import datetime as _dt
 import sys
 
-from .common import add_command, add_model_options
+from .common import add_command, add_model_options, add_place_options
 
 PLACE_COLUMNS = ("lat", "lon", "name", "alt", "alt_km", "alt_m", "alt_ft", "date")
 """Columns of a places CSV (lat, lon required); what ``--columns`` may map onto."""
@@ -49,11 +49,7 @@ def register(subparsers) -> None:
         "uncertainty and the weak-field zone.",
         EXAMPLES,
     )
-    parser.add_argument("--lat", help="latitude: 61.17, -33.9, N61°10.5′, 61 10 30 N")
-    parser.add_argument("--lon", help="longitude: -150.0, 149 54 30 W, E015°38′")
-    parser.add_argument("--alt", default="0", help="height above the WGS84 ellipsoid: km, or 450 m, 35000 ft, FL350 (default 0)")
-    parser.add_argument("--date", help="ISO date or decimal year (default: today, UTC)")
-    parser.add_argument("--input", metavar="CSV", help="CSV of places (see below)")
+    add_place_options(parser, "CSV of places (see below)")
     parser.add_argument("--columns", metavar="MAP", help="column mapping NAME=COLUMN,... (e.g. lat=latitude,lon=longitude,alt_m=elev)")
     parser.add_argument("--output", metavar="FILE", help="write the full table to this file (.csv, or .xlsx: rounded, units in the header)")
     parser.add_argument("--csv", action="store_true", help="print CSV (machine output, every row) instead of the readable table")
