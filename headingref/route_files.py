@@ -36,6 +36,7 @@ from pathlib import Path
 from typing import Any
 
 from .errors import InputError
+from .kml import KML_NS  # OGC 07-147r2, 6.1
 
 __all__ = ["KML_NS", "ROUTE_FILE_SUFFIXES", "read_route_file"]
 
@@ -43,7 +44,6 @@ ROUTE_FILE_SUFFIXES = {".gpx": "gpx", ".kml": "kml", ".geojson": "geojson", ".js
 """File name endings read by :func:`read_route_file` (any other ending is read as CSV)."""
 
 MAX_ROUTE_FILE_BYTES = 50 * 1024 * 1024
-KML_NS = "{http://www.opengis.net/kml/2.2}"
 
 
 def _read_text(path: Path, label: str) -> str:

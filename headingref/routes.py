@@ -56,11 +56,12 @@ import numpy as np
 import pandas as pd
 import pyproj
 
+from . import kml
 from ._types import DateLike, ModelLike
 from .errors import InputError
 from .headings import grivation_deg, normalize_heading, resolve_grid, warn_if_far_from_pole, wrap_angle
 from .io import coordinate_column, read_table
-from .route_files import KML_NS, ROUTE_FILE_SUFFIXES, read_route_file
+from .route_files import ROUTE_FILE_SUFFIXES, read_route_file
 from .units import NAUTICAL_MILE_M, ROUTE_HEIGHT_MAX_KM, decimal_year, height_column, parse_coordinate, parse_height_km
 
 __all__ = ["LEG_COLUMNS", "SAMPLE_COLUMNS", "WEAK_FIELD_KINDS", "RouteResult", "weak_field_stretches", "meridian_distance_m", "read_waypoints", "rhumb_inverse", "route", "route_geojson", "route_kml"]
@@ -768,11 +769,6 @@ _KML_STYLES = {
 }
 
 
-def _kml_coords(lat: Any, lon: Any) -> str:
-    """KML ``lon,lat,alt`` tuples (OGC 07-147r2, kml:coordinates), altitude 0 (lines are tessellated)."""
-    return " ".join(f"{float(lo):.7f},{float(la):.7f},0" for la, lo in zip(lat, lon, strict=True))
-
-
 def route_kml(result: RouteResult, name: str | None = None) -> str:
     """The route as a KML 2.2 document (text).
 
@@ -782,41 +778,26 @@ def route_kml(result: RouteResult, name: str | None = None) -> str:
     folders and styles), and one Point per waypoint. Lines are tessellated (drawn on the ground);
     samples every ``spacing_nm`` keep them on the route across the antimeridian and near the poles.
     """
-    import xml.etree.ElementTree as ET
-
     legs, samples = result.legs, result.samples
-    ET.register_namespace("", KML_NS[1:-1])
-
-    def sub(parent, tag: str, text: str | None = None, **attrib):
-        element = ET.SubElement(parent, KML_NS + tag, attrib)
-        if text is not None:
-            element.text = text
-        return element
-
-    root = ET.Element(KML_NS + "kml")
-    doc = sub(root, "Document")
     title = name or f"route {legs['from'].iloc[0]} to {legs['to'].iloc[-1]}"
-    sub(doc, "name", title)
-    sub(doc, "description", f"grid {legs.attrs.get('grid', '')}, {legs.attrs.get('path', '')}, decimal year "
-                            f"{legs.attrs.get('decimal_year', float('nan')):.3f}. Planning aid only: official publications "
-                            "and the aircraft's approved data govern.")
-    for style_id, (colour, width) in _KML_STYLES.items():
-        style = sub(doc, "Style", id=style_id)
-        line = sub(style, "LineStyle")
-        sub(line, "color", colour)
-        sub(line, "width", f"{width:g}")
+    root, doc = kml.new_document(
+        title, f"grid {legs.attrs.get('grid', '')}, {legs.attrs.get('path', '')}, decimal year "
+               f"{legs.attrs.get('decimal_year', float('nan')):.3f}. Planning aid only: official publications "
+               "and the aircraft's approved data govern.")
+    for style_id, line_style in _KML_STYLES.items():
+        kml.add_style(doc, style_id, line=line_style)
 
     def line_placemark(folder, label: str, style: str, lat, lon, description: str) -> None:
-        mark = sub(folder, "Placemark")
-        sub(mark, "name", label)
-        sub(mark, "description", description)
-        sub(mark, "styleUrl", f"#{style}")
-        line = sub(mark, "LineString")
-        sub(line, "tessellate", "1")
-        sub(line, "coordinates", _kml_coords(lat, lon))
+        mark = kml.sub(folder, "Placemark")
+        kml.sub(mark, "name", label)
+        kml.sub(mark, "description", description)
+        kml.sub(mark, "styleUrl", f"#{style}")
+        line = kml.sub(mark, "LineString")
+        kml.sub(line, "tessellate", "1")
+        kml.sub(line, "coordinates", kml.coordinates_text(lon, lat, decimals=7))
 
-    folder = sub(doc, "Folder")
-    sub(folder, "name", "legs")
+    folder = kml.sub(doc, "Folder")
+    kml.sub(folder, "name", "legs")
     for leg_no, part in samples.groupby("leg", sort=True):
         row = legs.iloc[int(leg_no) - 1]
         text = (f"{row.distance_nm:.1f} NM; true {row.true_course_deg:05.1f}, magnetic {row.magnetic_course_deg:05.1f}, "
@@ -827,20 +808,19 @@ def route_kml(result: RouteResult, name: str | None = None) -> str:
         chosen = [s for s in stretches if s["zone"] == zone]
         if not chosen:
             continue
-        folder = sub(doc, "Folder")
-        sub(folder, "name", WEAK_FIELD_KINDS[zone])
+        folder = kml.sub(doc, "Folder")
+        kml.sub(folder, "name", WEAK_FIELD_KINDS[zone])
         for s in chosen:
             text = (f"leg {s['leg']} ({s['from']} - {s['to']}): {s['from_nm']:.1f}-{s['to_nm']:.1f} NM from its start; "
                     f"least H {s['min_horizontal_nT']:.0f} nT. Use true or grid heading here.")
             line_placemark(folder, f"{zone} {s['from']} - {s['to']}", zone, s["lat_deg"], s["lon_deg"], text)
-    folder = sub(doc, "Folder")
-    sub(folder, "name", "waypoints")
+    folder = kml.sub(doc, "Folder")
+    kml.sub(folder, "name", "waypoints")
     names = list(legs["from"]) + [legs["to"].iloc[-1]]
     lats = list(legs.from_lat_deg) + [legs.to_lat_deg.iloc[-1]]
     lons = list(legs.from_lon_deg) + [legs.to_lon_deg.iloc[-1]]
     for wp_name, la, lo in zip(names, lats, lons, strict=True):
-        mark = sub(folder, "Placemark")
-        sub(mark, "name", str(wp_name))
-        sub(sub(mark, "Point"), "coordinates", _kml_coords([la], [lo]))
-    ET.indent(root, space=" ")
-    return '<?xml version="1.0" encoding="UTF-8"?>\n' + ET.tostring(root, encoding="unicode") + "\n"
+        mark = kml.sub(folder, "Placemark")
+        kml.sub(mark, "name", str(wp_name))
+        kml.sub(kml.sub(mark, "Point"), "coordinates", kml.coordinates_text([lo], [la], decimals=7))
+    return kml.to_text(root)
